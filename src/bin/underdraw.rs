@@ -1,0 +1,260 @@
+//! The `underdraw` command: parses arguments, calls the library, prints.
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use rayon::prelude::*;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use underdraw::check::check_mesh;
+use underdraw::cut::cut_layer;
+use underdraw::error::FileError;
+use underdraw::io::{load_alpha, load_mesh, write_atomic};
+use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+
+const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract violation; 2 bad usage or bad input (a batch finishes the good layers first and lists the failures).";
+
+/// Cut 2D sprite layers into an opaque mesh (drawn with blending off, so the
+/// GPU can cull what lies behind it) and a blended mesh for the remaining
+/// visible texels, under a vertex budget, with a guarantee: the opaque mesh
+/// never covers a texel that could sample as less than opaque under the
+/// chosen filter, and the two meshes never clip a visible texel.
+#[derive(Parser)]
+#[command(name = "underdraw", version, after_help = EXIT_HELP)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Cut PNG layers into `<OUT>/<stem>.mesh.json` mesh files.
+    #[command(after_help = EXIT_HELP)]
+    Cut(CutArgs),
+    /// Re-verify a mesh file against its layer, with code independent of `cut`.
+    #[command(after_help = EXIT_HELP)]
+    Check {
+        /// The mesh file (`.mesh.json`) written by `cut`.
+        mesh: PathBuf,
+        /// The PNG layer it was cut from.
+        image: PathBuf,
+    },
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum FilterArg {
+    Nearest,
+    Bilinear,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+enum WrapArg {
+    None,
+    X,
+    Y,
+    Xy,
+}
+
+#[derive(Args)]
+struct CutArgs {
+    /// PNG layers to cut (RGBA; images without alpha count as fully opaque).
+    #[arg(required = true)]
+    images: Vec<PathBuf>,
+    /// Folder for the mesh files (created if missing).
+    #[arg(long, short)]
+    out: PathBuf,
+    /// Most vertices per layer, both meshes together (a vertex they share
+    /// counts once). At least 4.
+    #[arg(long, default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
+    budget: u32,
+    /// Texture filter the layer is drawn with: `nearest` keeps the opaque mesh
+    /// inside opaque texels; `bilinear` also keeps it half a texel (at mip
+    /// level l, 2^(l-1) texels) away from any texel that is not opaque.
+    #[arg(long, value_enum, default_value = "bilinear")]
+    filter: FilterArg,
+    /// Highest mip level the layer may be sampled from (0: no mipmaps). The
+    /// meshes are made safe for every level up to this one.
+    #[arg(long, default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
+    mip_levels: u32,
+    /// Axes on which the layer's texture repeats (tiling strips); other axes
+    /// clamp to the edge texel.
+    #[arg(long, value_enum, default_value = "none")]
+    wrap: WrapArg,
+    /// Alpha (0-255) from which a texel counts as opaque.
+    #[arg(long, default_value_t = 255)]
+    opaque_min: u8,
+    /// Alpha (0-255) from which a texel counts as visible and must be covered.
+    #[arg(long, default_value_t = 1)]
+    visible_min: u8,
+}
+
+impl CutArgs {
+    fn settings(&self) -> CutSettings {
+        CutSettings {
+            budget: self.budget as usize,
+            filter: Filter {
+                mode: match self.filter {
+                    FilterArg::Nearest => FilterMode::Nearest,
+                    FilterArg::Bilinear => FilterMode::Bilinear,
+                },
+                mip_levels: self.mip_levels,
+            },
+            alpha: AlphaThresholds {
+                opaque_min: self.opaque_min,
+                visible_min: self.visible_min,
+            },
+            wrap: match self.wrap {
+                WrapArg::None => Wrap::None,
+                WrapArg::X => Wrap::X,
+                WrapArg::Y => Wrap::Y,
+                WrapArg::Xy => Wrap::Xy,
+            },
+        }
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Command::Cut(args) => cut(&args),
+        Command::Check { mesh, image } => check(&mesh, &image),
+    }
+}
+
+struct LayerLine {
+    name: String,
+    vertices: usize,
+    capture: f64,
+    excess: f64,
+    must_cover: f64,
+    notes: Vec<String>,
+}
+
+fn cut(args: &CutArgs) -> ExitCode {
+    let settings = args.settings();
+    if let Err(e) = settings.validate() {
+        eprintln!("error: {e}");
+        return ExitCode::from(2);
+    }
+    if let Err(e) = std::fs::create_dir_all(&args.out) {
+        eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", args.out.display());
+        return ExitCode::from(2);
+    }
+    let results: Vec<Result<LayerLine, FileError>> = args
+        .images
+        .par_iter()
+        .map(|path| cut_one(path, &args.out, &settings))
+        .collect();
+    println!(
+        "{:<28} {:>8} {:>9} {:>12}",
+        "layer", "vertices", "capture", "excess"
+    );
+    let (mut ok, mut vertices, mut failures) = (0usize, 0usize, Vec::new());
+    for r in results {
+        match r {
+            Ok(l) => {
+                println!(
+                    "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%)",
+                    l.name,
+                    l.vertices,
+                    100.0 * l.capture,
+                    l.excess,
+                    if l.must_cover > 0.0 {
+                        100.0 * l.excess / l.must_cover
+                    } else {
+                        0.0
+                    }
+                );
+                for n in &l.notes {
+                    println!("  note: {n}");
+                }
+                ok += 1;
+                vertices += l.vertices;
+            }
+            Err(e) => failures.push(e),
+        }
+    }
+    println!("total: {ok} layers, {vertices} vertices");
+    if failures.is_empty() {
+        return ExitCode::SUCCESS;
+    }
+    eprintln!("{} of {} layers failed:", failures.len(), args.images.len());
+    for e in &failures {
+        eprintln!("error: {e}");
+    }
+    ExitCode::from(2)
+}
+
+fn cut_one(path: &Path, out: &Path, settings: &CutSettings) -> Result<LayerLine, FileError> {
+    let map = load_alpha(path)?;
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "layer".into());
+    let name = path
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let dest = out.join(format!("{stem}.mesh.json"));
+    if same_file(&dest, path) {
+        return Err(FileError::new(
+            path,
+            "would be overwritten by its own mesh file",
+            "choose another --out folder",
+        ));
+    }
+    let outcome = cut_layer(&map, &name, settings);
+    let json = serde_json::to_vec_pretty(&outcome.mesh).expect("a mesh serializes");
+    write_atomic(&dest, &json)?;
+    let s = &outcome.mesh.stats;
+    Ok(LayerLine {
+        name,
+        vertices: s.vertices,
+        capture: s.opaque_capture(),
+        excess: s.excess(),
+        must_cover: s.must_cover_area,
+        notes: outcome.notes,
+    })
+}
+
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}
+
+fn check(mesh_path: &Path, image_path: &Path) -> ExitCode {
+    let mesh = match load_mesh(mesh_path) {
+        Ok(m) => m,
+        Err(e) => {
+            eprintln!("error: {e}");
+            return ExitCode::from(2);
+        }
+    };
+    let map = match load_alpha(image_path) {
+        Ok(m) => m,
+        Err(e) => {
+            eprintln!("error: {e}");
+            return ExitCode::from(2);
+        }
+    };
+    match check_mesh(&mesh, &map) {
+        Err(e) => {
+            eprintln!("error: {}: {e}", mesh_path.display());
+            ExitCode::from(2)
+        }
+        Ok(report) if report.holds() => {
+            println!(
+                "contract holds: opaque mesh {:.1} of {:.1} safe texels, meshes cover {:.1} of {:.1} must-cover texels, no overlap",
+                report.opaque_area, report.safe_area, report.covered_area, report.must_cover_area
+            );
+            ExitCode::SUCCESS
+        }
+        Ok(report) => {
+            println!("contract violated:");
+            for v in report.violations() {
+                println!("  {v}");
+            }
+            ExitCode::from(1)
+        }
+    }
+}

@@ -1,0 +1,354 @@
+//! The contract checker, independent of the builder: it recomputes the
+//! safe-opaque region S and the must-cover region C from the alpha channel
+//! and the definitions (see [`regions_for_check`]) and measures every
+//! violation of a mesh as an area, by polygon clipping (not by sampling).
+//!
+//! The contract, for a [`LayerMesh`] cut from an image W x H texels:
+//! * the opaque mesh lies inside S (which lies inside the image);
+//! * opaque + blended cover C; the blended mesh lies inside the image;
+//! * the two meshes do not overlap, nor do triangles within one mesh;
+//! * every triangle has the file's winding and a non-zero area.
+//!
+//! **Tolerance.** Areas are computed in f64 from the f32 positions; an area
+//! of at most [`AREA_TOLERANCE`] = 1e-6 texel² is float rounding and counts
+//! as zero. A triangle is degenerate when its doubled signed area, computed
+//! in f64 from the f32 coordinates, is exactly 0 (for practical coordinates
+//! the sign of that cross product is exact); degenerate triangles add
+//! nothing to any area and are not counted as wrongly wound.
+//!
+//! **How areas are combined.** Triangles are split into disjoint convex
+//! pieces (each triangle minus the earlier triangles it overlaps; opaque
+//! triangles come first and only subtract opaque ones), so `opaque_area`,
+//! `covered_area`, `opaque_outside_safe` and `uncovered` are exact for the
+//! union even when triangles overlap. If one triangle would split into more
+//! than [`MAX_PIECES`] pieces the subtraction stops for it and `uncovered`
+//! becomes a lower bound — this needs massive overlap, which is reported.
+//! Overlap areas are sums over triangle pairs; `blended_outside_image` is a
+//! sum over blended triangles.
+
+mod geom;
+mod regions;
+#[cfg(test)]
+mod tests;
+
+pub use regions::regions_for_check;
+
+use crate::alpha::AlphaMap;
+use crate::mesh::{LayerMesh, Winding, FORMAT, VERSION};
+use geom::Pt;
+
+/// Areas (texel²) at or below this are float rounding and count as zero.
+pub const AREA_TOLERANCE: f64 = 1e-6;
+/// Most convex pieces one triangle is split into while resolving overlaps.
+pub const MAX_PIECES: usize = 10_000;
+/// Pieces and overlaps below this (texel²) are dropped as clipping noise.
+const NOISE: f64 = 1e-12;
+
+/// What [`check_mesh`] measured. Areas in texels.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct ContractReport {
+    /// Area of the opaque mesh outside S (includes outside the image).
+    pub opaque_outside_safe: f64,
+    /// Area of C covered by neither mesh.
+    pub uncovered: f64,
+    /// Area of the blended mesh outside [0, W] x [0, H].
+    pub blended_outside_image: f64,
+    pub overlap_opaque_blended: f64,
+    pub overlap_within_opaque: f64,
+    pub overlap_within_blended: f64,
+    pub degenerate_triangles: usize,
+    /// Triangles whose winding differs from the file's.
+    pub wrong_winding: usize,
+    pub safe_area: f64,
+    pub must_cover_area: f64,
+    pub opaque_area: f64,
+    pub covered_area: f64,
+}
+
+/// Formats an area with at most 6 decimals, trailing zeros trimmed.
+fn texels(a: f64) -> String {
+    let s = format!("{a:.6}");
+    let s = s.trim_end_matches('0').trim_end_matches('.');
+    s.to_string()
+}
+
+impl ContractReport {
+    /// True when the contract holds (areas within [`AREA_TOLERANCE`]).
+    pub fn holds(&self) -> bool {
+        self.violations().is_empty()
+    }
+
+    /// One human-readable line per violated clause.
+    pub fn violations(&self) -> Vec<String> {
+        let areas = [
+            (
+                self.opaque_outside_safe,
+                "opaque mesh covers",
+                " outside the safe-opaque region",
+            ),
+            (
+                self.uncovered,
+                "the must-cover region has",
+                " covered by neither mesh",
+            ),
+            (
+                self.blended_outside_image,
+                "blended mesh covers",
+                " outside the image rectangle",
+            ),
+            (
+                self.overlap_opaque_blended,
+                "the opaque and blended meshes overlap by",
+                "",
+            ),
+            (
+                self.overlap_within_opaque,
+                "opaque triangles overlap each other by",
+                "",
+            ),
+            (
+                self.overlap_within_blended,
+                "blended triangles overlap each other by",
+                "",
+            ),
+        ];
+        let mut v: Vec<String> = areas
+            .iter()
+            .filter(|(a, _, _)| *a > AREA_TOLERANCE)
+            .map(|&(a, before, after)| format!("{before} {} texels{after}", texels(a)))
+            .collect();
+        if self.degenerate_triangles > 0 {
+            v.push(format!(
+                "{} triangle(s) have zero area",
+                self.degenerate_triangles
+            ));
+        }
+        if self.wrong_winding > 0 {
+            v.push(format!(
+                "{} triangle(s) are wound against the file's winding",
+                self.wrong_winding
+            ));
+        }
+        v
+    }
+}
+
+/// A mesh file that cannot be checked at all.
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
+pub enum CheckError {
+    #[error("the file's format is {found:?}, not {FORMAT:?}: pass a layer mesh file written by underdraw")]
+    WrongFormat { found: String },
+    #[error("the file is format version {found}, this underdraw reads version {VERSION}: re-cut the layer with this underdraw")]
+    WrongVersion { found: u32 },
+    #[error("the mesh is for a {mesh_w}x{mesh_h} image but the image is {image_w}x{image_h}: check it against the image it was cut from, or re-cut the layer")]
+    SizeMismatch {
+        mesh_w: u32,
+        mesh_h: u32,
+        image_w: u32,
+        image_h: u32,
+    },
+    #[error("the alpha map holds {len} values but is {width}x{height}: build it with AlphaMap::from_raw or from_image")]
+    BadAlphaMap { len: usize, width: u32, height: u32 },
+    #[error("positions holds {len} numbers, an odd count: it must be x, y pairs; fix or re-cut the mesh file")]
+    OddPositions { len: usize },
+    #[error("uvs holds {uvs} numbers but positions holds {positions}: there must be one u, v pair per vertex; fix or re-cut the mesh file")]
+    UvLengthMismatch { positions: usize, uvs: usize },
+    #[error("the {list} index list holds {len} indices, not a multiple of 3 (3 per triangle); fix or re-cut the mesh file")]
+    IndicesNotTriangles { list: &'static str, len: usize },
+    #[error("{list} triangle {triangle} uses vertex {index} but there are only {vertices} vertices; fix the index or re-cut the mesh file")]
+    IndexOutOfRange {
+        list: &'static str,
+        triangle: usize,
+        index: u32,
+        vertices: usize,
+    },
+    #[error("vertex {vertex} has a non-finite position ({x}, {y}); positions must be finite texel coordinates; fix or re-cut the mesh file")]
+    NonFinitePosition { vertex: usize, x: f32, y: f32 },
+}
+
+fn validate(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<(), CheckError> {
+    if mesh.format != FORMAT {
+        return Err(CheckError::WrongFormat {
+            found: mesh.format.clone(),
+        });
+    }
+    if mesh.version != VERSION {
+        return Err(CheckError::WrongVersion {
+            found: mesh.version,
+        });
+    }
+    if alpha.alpha.len() != alpha.width as usize * alpha.height as usize {
+        return Err(CheckError::BadAlphaMap {
+            len: alpha.alpha.len(),
+            width: alpha.width,
+            height: alpha.height,
+        });
+    }
+    if mesh.size != [alpha.width, alpha.height] {
+        return Err(CheckError::SizeMismatch {
+            mesh_w: mesh.size[0],
+            mesh_h: mesh.size[1],
+            image_w: alpha.width,
+            image_h: alpha.height,
+        });
+    }
+    if !mesh.positions.len().is_multiple_of(2) {
+        return Err(CheckError::OddPositions {
+            len: mesh.positions.len(),
+        });
+    }
+    if mesh.uvs.len() != mesh.positions.len() {
+        return Err(CheckError::UvLengthMismatch {
+            positions: mesh.positions.len(),
+            uvs: mesh.uvs.len(),
+        });
+    }
+    for (vertex, p) in mesh.positions.chunks(2).enumerate() {
+        if !p[0].is_finite() || !p[1].is_finite() {
+            return Err(CheckError::NonFinitePosition {
+                vertex,
+                x: p[0],
+                y: p[1],
+            });
+        }
+    }
+    let vertices = mesh.vertex_count();
+    for (list, tl) in [("opaque", &mesh.opaque), ("blended", &mesh.blended)] {
+        if !tl.indices.len().is_multiple_of(3) {
+            return Err(CheckError::IndicesNotTriangles {
+                list,
+                len: tl.indices.len(),
+            });
+        }
+        if let Some(k) = tl.indices.iter().position(|&i| i as usize >= vertices) {
+            return Err(CheckError::IndexOutOfRange {
+                list,
+                triangle: k / 3,
+                index: tl.indices[k],
+                vertices,
+            });
+        }
+    }
+    Ok(())
+}
+
+/// A non-degenerate triangle, positively oriented.
+struct Tri {
+    p: [Pt; 3],
+    opaque: bool,
+    bbox: [f64; 4],
+}
+
+/// Checks `mesh` against the contract for the layer whose alpha is `alpha`.
+pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, CheckError> {
+    validate(mesh, alpha)?;
+    let mut rep = ContractReport::default();
+    let (w, h) = (alpha.width as f64, alpha.height as f64);
+
+    // Triangles: degenerate and winding counts; opaque first, then blended.
+    let pos = |i: u32| {
+        let [x, y] = mesh.position(i);
+        [x as f64, y as f64]
+    };
+    let mut tris = Vec::new();
+    for (opaque, tl) in [(true, &mesh.opaque), (false, &mesh.blended)] {
+        for t in tl.indices.chunks(3) {
+            let (a, b, c) = (pos(t[0]), pos(t[1]), pos(t[2]));
+            let twice = (b[0] - a[0]) * (c[1] - a[1]) - (c[0] - a[0]) * (b[1] - a[1]);
+            if twice == 0.0 {
+                rep.degenerate_triangles += 1;
+                continue;
+            }
+            // "cw" = positive shoelace area with y down.
+            if (twice > 0.0) != (mesh.winding == Winding::Cw) {
+                rep.wrong_winding += 1;
+            }
+            let p = if twice > 0.0 { [a, b, c] } else { [a, c, b] };
+            tris.push(Tri {
+                p,
+                opaque,
+                bbox: geom::bbox(&p),
+            });
+        }
+    }
+
+    // Pairwise overlaps, bounding boxes swept in x order.
+    let mut earlier: Vec<Vec<usize>> = vec![Vec::new(); tris.len()];
+    let mut order: Vec<usize> = (0..tris.len()).collect();
+    order.sort_by(|&i, &j| tris[i].bbox[0].total_cmp(&tris[j].bbox[0]));
+    for (k, &i) in order.iter().enumerate() {
+        for &j in &order[k + 1..] {
+            if tris[j].bbox[0] >= tris[i].bbox[2] {
+                break;
+            }
+            if !geom::boxes_meet(&tris[i].bbox, &tris[j].bbox) {
+                continue;
+            }
+            let a = geom::area(&geom::intersect(&tris[i].p, &tris[j].p));
+            if a <= NOISE {
+                continue;
+            }
+            match (tris[i].opaque, tris[j].opaque) {
+                (true, true) => rep.overlap_within_opaque += a,
+                (false, false) => rep.overlap_within_blended += a,
+                _ => rep.overlap_opaque_blended += a,
+            }
+            earlier[i.max(j)].push(i.min(j));
+        }
+    }
+
+    // Regions.
+    let (safe, cover, gw, gh) = regions_for_check(alpha, mesh.filter, mesh.alpha, mesh.wrap);
+    rep.safe_area = safe.iter().filter(|&&s| s).count() as f64 * 0.25;
+    rep.must_cover_area = cover.iter().filter(|&&c| c).count() as f64 * 0.25;
+    let safe_runs = geom::row_runs(&safe, gw);
+    let cover_runs = geom::row_runs(&cover, gw);
+    drop((safe, cover));
+    let mut covered_in_row = vec![0.0f64; gh];
+
+    for (i, t) in tris.iter().enumerate() {
+        if !t.opaque {
+            rep.blended_outside_image += geom::area_outside_rect(&t.p, w, h);
+        }
+        // The part of t not in earlier triangles, as disjoint convex pieces.
+        let mut pieces = vec![t.p.to_vec()];
+        for &j in &earlier[i] {
+            if !t.opaque || tris[j].opaque {
+                let next: Vec<Vec<Pt>> = pieces
+                    .iter()
+                    .flat_map(|p| geom::subtract(p, &tris[j].p, NOISE))
+                    .collect();
+                if next.len() > MAX_PIECES {
+                    break;
+                }
+                pieces = next;
+            }
+        }
+        for piece in &pieces {
+            let a = geom::area(piece);
+            rep.covered_area += a;
+            if t.opaque {
+                rep.opaque_area += a;
+                rep.opaque_outside_safe += geom::area(&geom::clip_axis(piece, 1, 0.0, false))
+                    + geom::area(&geom::clip_axis(piece, 1, h, true));
+            }
+            geom::for_rows(piece, gh, |row, strip, strip_area| {
+                if t.opaque {
+                    rep.opaque_outside_safe +=
+                        strip_area - geom::area_in_runs(strip, strip_area, &safe_runs[row]);
+                }
+                covered_in_row[row] += geom::area_in_runs(strip, strip_area, &cover_runs[row]);
+            });
+        }
+    }
+    // Per row, C's area is exact (a multiple of 0.25), so the difference only
+    // carries the row's rounding, not the whole image's.
+    let uncovered: f64 = cover_runs
+        .iter()
+        .zip(&covered_in_row)
+        .map(|(runs, covered)| runs.iter().map(|r| (r.1 - r.0) * 0.5).sum::<f64>() - covered)
+        .sum();
+    rep.uncovered = uncovered.max(0.0);
+    rep.opaque_outside_safe = rep.opaque_outside_safe.max(0.0);
+    Ok(rep)
+}

@@ -1,0 +1,169 @@
+//! The whole cut of one layer: alpha analysis → outline tracing → fitting to
+//! the budget → triangulation → the mesh file's value, self-checked.
+//!
+//! Invariant: a [`LayerMesh`] returned by [`cut_layer`] satisfies the
+//! contract (as verified by the independent [`crate::check`]); when a step
+//! of the fast path fails that check, the cut falls back to a plainer mesh
+//! that passes it, and says so in [`CutOutcome::notes`].
+
+use crate::alpha::{AlphaMap, Regions};
+use crate::check::check_mesh;
+use crate::fit::{open_holes, Class, Fit, Fitter};
+use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
+use crate::outline::{trace, Point};
+use crate::settings::CutSettings;
+use crate::triangulate::{triangulate, Triangulation};
+
+/// A cut layer and what the user should know about it.
+#[derive(Clone, Debug)]
+pub struct CutOutcome {
+    pub mesh: LayerMesh,
+    /// Plain-language remarks ("fully transparent: empty meshes", fallbacks).
+    pub notes: Vec<String>,
+}
+
+/// The fitted outlines of a layer at a budget, before triangulation.
+pub struct Outlines {
+    pub regions: Regions,
+    pub fit: Fit,
+}
+
+/// Analyzes, traces and fits a layer's outlines to `settings.budget`.
+pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
+    let regions = Regions::analyze(map, settings);
+    let mut safe = regions.safe.clone();
+    safe.remove_pinches();
+    let mut cover = regions.cover.clone();
+    cover.fill_pinches();
+    let cover_rings = trace(&cover);
+    let mut fitter = Fitter::new(trace(&safe), cover_rings.clone(), &safe, &cover);
+    fitter.fit(settings.budget);
+    let mut best = (fitter.objective(), fitter.result());
+    // An island with more holes than the budget can keep may do better as
+    // one ring with notches: try the safe region with its holes opened.
+    if best.1.opaque.iter().map(|p| p.holes.len()).sum::<usize>() > 0
+        || (best.1.opaque.is_empty() && !safe.is_empty())
+    {
+        let mut opened = safe.clone();
+        open_holes(&mut opened);
+        opened.remove_pinches();
+        let mut other = Fitter::new(trace(&opened), cover_rings, &opened, &cover);
+        other.fit(settings.budget);
+        if other.objective() > best.0 {
+            best = (other.objective(), other.result());
+        }
+    }
+    Outlines {
+        regions,
+        fit: best.1,
+    }
+}
+
+/// Cuts one layer into its opaque and blended meshes.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, cut::cut_layer, settings::CutSettings};
+/// // a 16x16 fully opaque layer is one opaque quad
+/// let map = AlphaMap::from_raw(16, 16, vec![255; 256]);
+/// let out = cut_layer(&map, "quad.png", &CutSettings::default());
+/// assert_eq!(out.mesh.vertex_count(), 4);
+/// assert_eq!(out.mesh.opaque.triangle_count(), 2);
+/// assert_eq!(out.mesh.blended.triangle_count(), 0);
+/// ```
+pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
+    let Outlines { regions, fit } = fit_layer(map, settings);
+    let mut notes = Vec::new();
+    if fit.cover.is_empty() {
+        notes.push("fully transparent: the meshes are empty".to_string());
+    }
+    let attempt = triangulate(&fit).and_then(|t| {
+        let mesh = to_mesh(map, source, settings, &regions, &fit, &t);
+        let report = check_mesh(&mesh, map).map_err(|e| e.to_string())?;
+        if report.holds() {
+            Ok(mesh)
+        } else {
+            Err(report.violations().join("; "))
+        }
+    });
+    let mesh = match attempt {
+        Ok(mesh) => mesh,
+        Err(why) => {
+            // Plainer mesh: the covering outline alone, all blended.
+            notes.push(format!(
+                "opaque mesh left out: its triangulation failed the contract check ({why})"
+            ));
+            let plain = Fit {
+                opaque: Vec::new(),
+                cover: fit.cover.clone(),
+                vertices: fit.outline_vertices(Class::Cover),
+            };
+            let t = triangulate(&plain).unwrap_or_default();
+            to_mesh(map, source, settings, &regions, &plain, &t)
+        }
+    };
+    CutOutcome { mesh, notes }
+}
+
+fn area(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
+    tris.iter()
+        .map(|t| {
+            crate::fit::orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]) as f64
+                / 8.0
+        })
+        .sum()
+}
+
+fn to_mesh(
+    map: &AlphaMap,
+    source: &str,
+    settings: &CutSettings,
+    regions: &Regions,
+    fit: &Fit,
+    t: &Triangulation,
+) -> LayerMesh {
+    let (w, h) = (map.width as f32, map.height as f32);
+    let mut positions = Vec::with_capacity(t.positions.len() * 2);
+    let mut uvs = Vec::with_capacity(t.positions.len() * 2);
+    for p in &t.positions {
+        let (x, y) = (p[0] as f32 / 2.0, p[1] as f32 / 2.0);
+        positions.extend([x, y]);
+        uvs.extend([x / w, y / h]);
+    }
+    let flat = |tris: &[[u32; 3]]| TriangleList {
+        indices: tris.iter().flatten().copied().collect(),
+    };
+    let opaque_area = area(&t.positions, &t.opaque);
+    let s = regions.stats;
+    let stats = MeshStats {
+        safe_opaque_area: s.safe_opaque_area,
+        opaque_area,
+        must_cover_area: s.must_cover_area,
+        covered_area: opaque_area + area(&t.positions, &t.blended),
+        vertices: t.positions.len(),
+        opaque_outline_vertices: fit.outline_vertices(Class::Opaque),
+        cover_outline_vertices: fit.outline_vertices(Class::Cover),
+        opaque_triangles: t.opaque.len(),
+        blended_triangles: t.blended.len(),
+        opaque_texels: s.opaque_texels,
+        partial_texels: s.partial_texels,
+        transparent_texels: s.transparent_texels,
+        interior_edge_length_earcut: t.interior_length_earcut,
+        interior_edge_length: t.interior_length,
+    };
+    LayerMesh {
+        format: FORMAT.to_string(),
+        version: VERSION,
+        source: source.to_string(),
+        size: [map.width, map.height],
+        filter: settings.filter,
+        alpha: settings.alpha,
+        wrap: settings.wrap,
+        budget: Some(settings.budget),
+        winding: Winding::Cw,
+        positions,
+        uvs,
+        opaque: flat(&t.opaque),
+        blended: flat(&t.blended),
+        stats,
+    }
+}

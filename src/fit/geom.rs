@@ -1,0 +1,130 @@
+//! Exact integer predicates on lattice points (half-texel units).
+
+use crate::outline::Point;
+
+/// Twice the signed area of triangle (a, b, c); positive when a→b→c turns
+/// right on screen with y down (clockwise).
+#[inline]
+pub fn orient(a: Point, b: Point, c: Point) -> i64 {
+    (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0])
+}
+
+#[inline]
+fn on_segment(a: Point, b: Point, p: Point) -> bool {
+    p[0] >= a[0].min(b[0])
+        && p[0] <= a[0].max(b[0])
+        && p[1] >= a[1].min(b[1])
+        && p[1] <= a[1].max(b[1])
+}
+
+/// Whether closed segments ab and cd share any point.
+pub fn segments_touch(a: Point, b: Point, c: Point, d: Point) -> bool {
+    let d1 = orient(c, d, a).signum();
+    let d2 = orient(c, d, b).signum();
+    let d3 = orient(a, b, c).signum();
+    let d4 = orient(a, b, d).signum();
+    if d1 * d2 < 0 && d3 * d4 < 0 {
+        return true;
+    }
+    (d1 == 0 && on_segment(c, d, a))
+        || (d2 == 0 && on_segment(c, d, b))
+        || (d3 == 0 && on_segment(a, b, c))
+        || (d4 == 0 && on_segment(a, b, d))
+}
+
+/// Whether `p` lies inside or on the boundary of the simple polygon `poly`.
+pub fn in_closed_polygon(p: Point, poly: &[Point]) -> bool {
+    let n = poly.len();
+    let mut inside = false;
+    for i in 0..n {
+        let a = poly[i];
+        let b = poly[(i + 1) % n];
+        if orient(a, b, p) == 0 && on_segment(a, b, p) {
+            return true;
+        }
+        if (a[1] > p[1]) != (b[1] > p[1]) {
+            // x of the edge at p.y, compared exactly: p.x < a.x + (p.y-a.y)(b.x-a.x)/(b.y-a.y)
+            let lhs = (p[0] - a[0]) * (b[1] - a[1]);
+            let rhs = (p[1] - a[1]) * (b[0] - a[0]);
+            let left = if b[1] > a[1] { lhs < rhs } else { lhs > rhs };
+            if left {
+                inside = !inside;
+            }
+        }
+    }
+    inside
+}
+
+/// Twice the signed shoelace area of a closed polygon.
+pub fn twice_area(poly: &[Point]) -> i64 {
+    crate::outline::twice_area(poly)
+}
+
+fn floor_div(n: i64, d: i64) -> i64 {
+    n.div_euclid(d)
+}
+fn ceil_div(n: i64, d: i64) -> i64 {
+    -((-n).div_euclid(d))
+}
+
+/// For each grid row a convex polygon overlaps with positive area, the
+/// half-open span of cells `x0..x1` it overlaps with positive area; exact.
+pub fn convex_row_spans(poly: &[Point], mut f: impl FnMut(i64, i64, i64) -> bool) -> bool {
+    let ymin = poly.iter().map(|p| p[1]).min().unwrap();
+    let ymax = poly.iter().map(|p| p[1]).max().unwrap();
+    let n = poly.len();
+    for y in ymin..ymax {
+        // x-extent of poly ∩ [y, y+1] as rationals, tracked by floor(min) / ceil(max)
+        let mut lo = i64::MAX;
+        let mut hi = i64::MIN;
+        for i in 0..n {
+            let a = poly[i];
+            let b = poly[(i + 1) % n];
+            if a[1] >= y && a[1] <= y + 1 {
+                lo = lo.min(a[0]);
+                hi = hi.max(a[0]);
+            }
+            if a[1] == b[1] {
+                continue;
+            }
+            for yl in [y, y + 1] {
+                if (yl > a[1].min(b[1])) && (yl < a[1].max(b[1])) {
+                    let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
+                    let num = p[0] * (q[1] - p[1]) + (yl - p[1]) * (q[0] - p[0]);
+                    let den = q[1] - p[1];
+                    lo = lo.min(floor_div(num, den));
+                    hi = hi.max(ceil_div(num, den));
+                }
+            }
+        }
+        if lo < hi && !f(y, lo, hi) {
+            return false;
+        }
+    }
+    true
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn row_spans_of_right_triangle() {
+        let mut rows = Vec::new();
+        convex_row_spans(&[[0, 0], [4, 0], [0, 4]], |y, a, b| {
+            rows.push((y, a, b));
+            true
+        });
+        assert_eq!(rows, vec![(0, 0, 4), (1, 0, 3), (2, 0, 2), (3, 0, 1)]);
+    }
+
+    #[test]
+    fn touching_segments() {
+        assert!(segments_touch([0, 0], [4, 0], [2, 0], [2, 5]));
+        assert!(!segments_touch([0, 0], [4, 0], [5, 0], [6, 0]));
+        assert!(segments_touch([0, 0], [4, 4], [0, 4], [4, 0]));
+        assert!(in_closed_polygon([1, 1], &[[0, 0], [4, 0], [0, 4]]));
+        assert!(in_closed_polygon([2, 2], &[[0, 0], [4, 0], [0, 4]]));
+        assert!(!in_closed_polygon([3, 3], &[[0, 0], [4, 0], [0, 4]]));
+    }
+}

@@ -1,0 +1,119 @@
+//! The layer mesh: one vertex array shared by an opaque and a blended
+//! triangle list, and its file format (`<stem>.mesh.json`).
+//!
+//! Invariants of a mesh written by [`crate::cut`]: every index is below the
+//! vertex count, every triangle has the winding named in `winding` and a
+//! non-zero area, and the contract of [`crate::check`] holds.
+
+use crate::settings::{AlphaThresholds, Filter, Wrap};
+use serde::{Deserialize, Serialize};
+
+/// The file format's name, the value of the `format` key.
+pub const FORMAT: &str = "underdraw.layer";
+/// The file format's version.
+pub const VERSION: u32 = 1;
+
+/// A triangle list into the shared vertex array.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct TriangleList {
+    pub indices: Vec<u32>,
+}
+
+impl TriangleList {
+    pub fn triangle_count(&self) -> usize {
+        self.indices.len() / 3
+    }
+}
+
+/// Numbers that describe a cut; areas are in texels.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct MeshStats {
+    /// Area where an opaque mesh may lie (the safe-opaque region).
+    pub safe_opaque_area: f64,
+    /// Area of the opaque mesh.
+    pub opaque_area: f64,
+    /// Area the two meshes must cover (the must-cover region).
+    pub must_cover_area: f64,
+    /// Area of the two meshes together.
+    pub covered_area: f64,
+    /// Vertices in the shared array.
+    pub vertices: usize,
+    pub opaque_outline_vertices: usize,
+    pub cover_outline_vertices: usize,
+    pub opaque_triangles: usize,
+    pub blended_triangles: usize,
+    /// Texel counts by class.
+    #[serde(default)]
+    pub opaque_texels: u64,
+    #[serde(default)]
+    pub partial_texels: u64,
+    #[serde(default)]
+    pub transparent_texels: u64,
+    /// Total length of the edges inside each mesh, after plain ear clipping and after edge flips.
+    #[serde(default)]
+    pub interior_edge_length_earcut: f64,
+    #[serde(default)]
+    pub interior_edge_length: f64,
+}
+
+impl MeshStats {
+    /// opaque_area / safe_opaque_area; 1 when there is no safe area.
+    pub fn opaque_capture(&self) -> f64 {
+        if self.safe_opaque_area > 0.0 {
+            self.opaque_area / self.safe_opaque_area
+        } else {
+            1.0
+        }
+    }
+    /// covered_area - must_cover_area, in texels.
+    pub fn excess(&self) -> f64 {
+        self.covered_area - self.must_cover_area
+    }
+}
+
+/// Triangle winding as seen on screen with y down.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Winding {
+    Cw,
+    Ccw,
+}
+
+/// A layer cut into an opaque and a blended mesh, as stored in the mesh file.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LayerMesh {
+    pub format: String,
+    pub version: u32,
+    /// The image file name the mesh was cut from.
+    pub source: String,
+    /// Image size in texels, [W, H].
+    pub size: [u32; 2],
+    pub filter: Filter,
+    pub alpha: AlphaThresholds,
+    pub wrap: Wrap,
+    /// The budget the mesh was fitted to.
+    #[serde(default)]
+    pub budget: Option<usize>,
+    pub winding: Winding,
+    /// x0, y0, x1, y1, ... in texel units (x right, y down).
+    pub positions: Vec<f32>,
+    /// u0, v0, ...: position / size.
+    pub uvs: Vec<f32>,
+    /// Draw with blending off.
+    pub opaque: TriangleList,
+    /// Draw with blending on.
+    pub blended: TriangleList,
+    pub stats: MeshStats,
+}
+
+impl LayerMesh {
+    pub fn vertex_count(&self) -> usize {
+        self.positions.len() / 2
+    }
+    /// The position of vertex `i`.
+    pub fn position(&self, i: u32) -> [f32; 2] {
+        let i = i as usize * 2;
+        [self.positions[i], self.positions[i + 1]]
+    }
+}

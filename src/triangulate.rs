@@ -1,0 +1,261 @@
+//! Triangulation: fitted outlines to the two triangle lists over one shared
+//! vertex array.
+//!
+//! The opaque mesh is the opaque outlines ear-clipped (`earcutr`, holes
+//! included). The blended mesh is the covering outlines minus the opaque
+//! ones (`geo`'s boolean difference), ear-clipped the same way. Then edge
+//! flips shorten the edges inside each mesh: GPUs shade in 2x2 quads, so
+//! long thin slivers cost lanes along their length (common practice, no
+//! source). A flip never touches an outline edge, so the meshes keep their
+//! outlines exactly and the result is never worse than plain ear clipping.
+//!
+//! Invariants of [`Triangulation`]: all positions are lattice points (half
+//! texels), distinct; every triangle winds clockwise on screen (y down,
+//! positive shoelace area) and has non-zero area.
+
+use crate::fit::{orient, Fit, FitPolygon};
+use crate::outline::Point;
+use geo::{BooleanOps, Coord, LineString, MultiPolygon, Polygon};
+use std::collections::HashMap;
+
+/// Two triangle lists over one vertex array (lattice points, half texels).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Triangulation {
+    pub positions: Vec<Point>,
+    pub opaque: Vec<[u32; 3]>,
+    pub blended: Vec<[u32; 3]>,
+    /// Interior edge length (texels) after plain ear clipping, and after flips.
+    pub interior_length_earcut: f64,
+    pub interior_length: f64,
+}
+
+#[derive(Default)]
+struct Builder {
+    positions: Vec<Point>,
+    index: HashMap<Point, u32>,
+}
+
+impl Builder {
+    fn id(&mut self, p: Point) -> u32 {
+        let n = self.positions.len() as u32;
+        *self.index.entry(p).or_insert_with(|| {
+            self.positions.push(p);
+            n
+        })
+    }
+
+    /// Ear-clips a polygon with holes; keeps only non-degenerate triangles,
+    /// wound clockwise on screen.
+    fn earcut(
+        &mut self,
+        outer: &[Point],
+        holes: &[Vec<Point>],
+        out: &mut Vec<[u32; 3]>,
+    ) -> Result<(), String> {
+        let mut flat: Vec<f64> = Vec::new();
+        let mut pts: Vec<Point> = Vec::new();
+        let mut hole_starts = Vec::new();
+        for (k, ring) in std::iter::once(outer)
+            .chain(holes.iter().map(|h| h.as_slice()))
+            .enumerate()
+        {
+            if k > 0 {
+                hole_starts.push(pts.len());
+            }
+            for &p in ring {
+                flat.push(p[0] as f64);
+                flat.push(p[1] as f64);
+                pts.push(p);
+            }
+        }
+        let tris = earcutr::earcut(&flat, &hole_starts, 2)
+            .map_err(|e| format!("ear clipping failed: {e:?}"))?;
+        for t in tris.chunks_exact(3) {
+            let (a, b, c) = (pts[t[0]], pts[t[1]], pts[t[2]]);
+            let o = orient(a, b, c);
+            if o == 0 {
+                continue;
+            }
+            let (ia, ib, ic) = (self.id(a), self.id(b), self.id(c));
+            out.push(if o > 0 { [ia, ib, ic] } else { [ia, ic, ib] });
+        }
+        Ok(())
+    }
+}
+
+fn to_geo(poly: &FitPolygon) -> Polygon<f64> {
+    let ring = |r: &[Point]| {
+        LineString::from(
+            r.iter()
+                .map(|p| Coord {
+                    x: p[0] as f64,
+                    y: p[1] as f64,
+                })
+                .collect::<Vec<_>>(),
+        )
+    };
+    Polygon::new(
+        ring(&poly.outer),
+        poly.holes.iter().map(|h| ring(h)).collect(),
+    )
+}
+
+fn from_geo_ring(ls: &LineString<f64>) -> Result<Vec<Point>, String> {
+    let mut pts: Vec<Point> = Vec::with_capacity(ls.0.len());
+    for c in &ls.0 {
+        let p = [c.x.round() as i64, c.y.round() as i64];
+        if (c.x - p[0] as f64).abs() > 1e-9 || (c.y - p[1] as f64).abs() > 1e-9 {
+            return Err(format!(
+                "boolean difference produced a point off the lattice: ({}, {})",
+                c.x, c.y
+            ));
+        }
+        if pts.last() != Some(&p) {
+            pts.push(p);
+        }
+    }
+    if pts.len() > 1 && pts.first() == pts.last() {
+        pts.pop();
+    }
+    Ok(pts)
+}
+
+/// Triangulates a fit. Fails (with the reason) only when a library step
+/// produced something outside the lattice; the caller then falls back.
+pub fn triangulate(fit: &Fit) -> Result<Triangulation, String> {
+    let mut b = Builder::default();
+    let mut opaque = Vec::new();
+    for poly in &fit.opaque {
+        b.earcut(&poly.outer, &poly.holes, &mut opaque)?;
+    }
+    let mut blended = Vec::new();
+    if !fit.cover.is_empty() {
+        let cover = MultiPolygon::new(fit.cover.iter().map(to_geo).collect());
+        let diff = if fit.opaque.is_empty() {
+            cover
+        } else {
+            let op = MultiPolygon::new(fit.opaque.iter().map(to_geo).collect());
+            cover.difference(&op)
+        };
+        for poly in diff.0 {
+            let outer = from_geo_ring(poly.exterior())?;
+            if outer.len() < 3 {
+                continue;
+            }
+            let holes: Vec<Vec<Point>> = poly
+                .interiors()
+                .iter()
+                .map(from_geo_ring)
+                .collect::<Result<_, _>>()?;
+            let holes: Vec<Vec<Point>> = holes.into_iter().filter(|h| h.len() >= 3).collect();
+            b.earcut(&outer, &holes, &mut blended)?;
+        }
+    }
+    let before = interior_length(&b.positions, &opaque) + interior_length(&b.positions, &blended);
+    flip_to_shorter(&b.positions, &mut opaque);
+    flip_to_shorter(&b.positions, &mut blended);
+    let after = interior_length(&b.positions, &opaque) + interior_length(&b.positions, &blended);
+    Ok(Triangulation {
+        positions: b.positions,
+        opaque,
+        blended,
+        interior_length_earcut: before,
+        interior_length: after,
+    })
+}
+
+/// Interior edges (shared by two triangles of the list): (a, b) with a < b,
+/// mapped to the two (triangle, opposite vertex) pairs.
+fn interior_edges(tris: &[[u32; 3]]) -> HashMap<(u32, u32), Vec<(usize, u32)>> {
+    let mut edges: HashMap<(u32, u32), Vec<(usize, u32)>> = HashMap::new();
+    for (i, t) in tris.iter().enumerate() {
+        for k in 0..3 {
+            let (a, b, c) = (t[k], t[(k + 1) % 3], t[(k + 2) % 3]);
+            edges.entry((a.min(b), a.max(b))).or_default().push((i, c));
+        }
+    }
+    edges.retain(|_, v| v.len() == 2);
+    edges
+}
+
+fn len2(p: Point, q: Point) -> i64 {
+    (p[0] - q[0]).pow(2) + (p[1] - q[1]).pow(2)
+}
+
+/// Total length, in texels, of the edges shared by two triangles.
+pub fn interior_length(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
+    interior_edges(tris)
+        .keys()
+        .map(|&(a, b)| (len2(pos[a as usize], pos[b as usize]) as f64).sqrt() / 2.0)
+        .sum()
+}
+
+/// Flips interior edges of convex quads to the shorter diagonal until none
+/// is left; each flip strictly shortens the total, so this ends.
+fn flip_to_shorter(pos: &[Point], tris: &mut [[u32; 3]]) {
+    loop {
+        let mut flipped = false;
+        let mut edges: Vec<_> = interior_edges(tris).into_iter().collect();
+        edges.sort_unstable_by_key(|(k, _)| *k);
+        let mut touched = vec![false; tris.len()];
+        for ((a, b), sides) in edges {
+            let (t1, c) = sides[0];
+            let (t2, d) = sides[1];
+            if touched[t1] || touched[t2] {
+                continue;
+            }
+            let (pa, pb, pc, pd) = (
+                pos[a as usize],
+                pos[b as usize],
+                pos[c as usize],
+                pos[d as usize],
+            );
+            // strictly convex quad: a and b on opposite sides of cd, c and d of ab
+            let convex = orient(pc, pd, pa).signum() * orient(pc, pd, pb).signum() < 0
+                && orient(pa, pb, pc).signum() * orient(pa, pb, pd).signum() < 0;
+            if !convex || len2(pc, pd) >= len2(pa, pb) {
+                continue;
+            }
+            let wind = |t: [u32; 3]| {
+                if orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]) > 0 {
+                    t
+                } else {
+                    [t[0], t[2], t[1]]
+                }
+            };
+            tris[t1] = wind([a, c, d]);
+            tris[t2] = wind([b, c, d]);
+            touched[t1] = true;
+            touched[t2] = true;
+            flipped = true;
+        }
+        if !flipped {
+            break;
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn flips_shorten_a_long_diagonal() {
+        // a kite whose ear clipping may pick the long diagonal
+        let pos = vec![[0, 0], [100, 1], [200, 0], [100, -1]];
+        let mut tris = vec![[0, 2, 1], [0, 3, 2]];
+        for t in tris.iter_mut() {
+            if orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]) < 0 {
+                t.swap(1, 2);
+            }
+        }
+        let before = interior_length(&pos, &tris);
+        flip_to_shorter(&pos, &mut tris);
+        let after = interior_length(&pos, &tris);
+        assert!((before - 100.0).abs() < 1e-9);
+        assert!((after - 1.0).abs() < 1e-9);
+        for t in &tris {
+            assert!(orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]) > 0);
+        }
+    }
+}
