@@ -154,53 +154,154 @@ fn block_mask(texels: &[bool], w: usize, h: usize, level: u32, all: bool) -> Mas
         }
     }
     let mut m = Mask::new(2 * w, 2 * h, false);
-    for y in 0..2 * h {
-        let by = (y / 2) >> level;
-        for x in 0..2 * w {
-            let bx = (x / 2) >> level;
-            m.cells[y * 2 * w + x] = blocks[by * bw + bx] as u8;
+    let mut row = vec![0u8; 2 * w];
+    for ty in 0..h {
+        let by = ty >> level;
+        for (x, c) in row.iter_mut().enumerate() {
+            *c = blocks[by * bw + ((x / 2) >> level)] as u8;
         }
+        m.cells[2 * ty * 2 * w..(2 * ty + 1) * 2 * w].copy_from_slice(&row);
+        m.cells[(2 * ty + 1) * 2 * w..(2 * ty + 2) * 2 * w].copy_from_slice(&row);
     }
     m
 }
 
 /// A separable square min (`erode`) or max filter of radius `k` cells, with
-/// clamp-to-edge or repeat addressing per axis.
+/// clamp-to-edge or repeat addressing per axis. Each line is extended by
+/// its addressing and filtered with a running count, so the cost does not
+/// grow with `k`.
 fn window_filter(m: &Mask, k: usize, wrap: Wrap, erode: bool) -> Mask {
-    let pass = |src: &Mask, horizontal: bool, repeat: bool| -> Mask {
-        let (w, h) = (src.width, src.height);
-        let mut out = Mask::new(w, h, false);
-        let n = if horizontal { w } else { h } as i64;
-        for y in 0..h {
-            for x in 0..w {
-                let c = if horizontal { x } else { y } as i64;
-                let mut acc = erode;
-                for d in -(k as i64)..=(k as i64) {
-                    let mut i = c + d;
-                    i = if repeat {
-                        i.rem_euclid(n)
+    let (w, h) = (m.width, m.height);
+    let mut line = Vec::new();
+    let mut ext = Vec::new();
+    let mut filter_line = |line: &mut Vec<u8>, repeat: bool| {
+        let n = line.len() as i64;
+        ext.clear();
+        for i in -(k as i64)..n + k as i64 {
+            let j = if repeat {
+                i.rem_euclid(n)
+            } else {
+                i.clamp(0, n - 1)
+            };
+            ext.push(line[j as usize]);
+        }
+        let win = 2 * k + 1;
+        let mut count: usize = ext[..win - 1].iter().map(|&v| v as usize).sum();
+        for x in 0..n as usize {
+            count += ext[x + win - 1] as usize;
+            line[x] = if erode {
+                (count == win) as u8
+            } else {
+                (count > 0) as u8
+            };
+            count -= ext[x] as usize;
+        }
+    };
+    let mut out = m.clone();
+    for y in 0..h {
+        line.clear();
+        line.extend_from_slice(&out.cells[y * w..(y + 1) * w]);
+        filter_line(&mut line, wrap.x());
+        out.cells[y * w..(y + 1) * w].copy_from_slice(&line);
+    }
+    // vertical pass, row by row: a running count per column
+    let src = out.clone();
+    let row_of = |i: i64| -> usize {
+        let n = h as i64;
+        (if wrap.y() {
+            i.rem_euclid(n)
+        } else {
+            i.clamp(0, n - 1)
+        }) as usize
+    };
+    let win = (2 * k + 1) as u32;
+    let mut count = vec![0u32; w];
+    for i in -(k as i64)..k as i64 {
+        let r = row_of(i);
+        for (c, &v) in count.iter_mut().zip(&src.cells[r * w..(r + 1) * w]) {
+            *c += v as u32;
+        }
+    }
+    for y in 0..h {
+        let add = row_of(y as i64 + k as i64);
+        for (c, &v) in count.iter_mut().zip(&src.cells[add * w..(add + 1) * w]) {
+            *c += v as u32;
+        }
+        for (o, &c) in out.cells[y * w..(y + 1) * w].iter_mut().zip(&count) {
+            *o = if erode {
+                (c == win) as u8
+            } else {
+                (c > 0) as u8
+            };
+        }
+        let sub = row_of(y as i64 - k as i64);
+        for (c, &v) in count.iter_mut().zip(&src.cells[sub * w..(sub + 1) * w]) {
+            *c -= v as u32;
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::check::regions_for_check;
+    use crate::settings::Filter;
+
+    /// The builder's separable filters give exactly the regions that the
+    /// independent checker derives from the definitions, cell by cell.
+    #[test]
+    fn regions_match_the_checker_definitions() {
+        let mut seed = 99u64;
+        let mut rnd = move || {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (seed >> 33) as u32
+        };
+        for case in 0..300 {
+            let (w, h) = (1 + rnd() % 19, 1 + rnd() % 17);
+            let density = rnd() % 100;
+            let alpha: Vec<u8> = (0..w * h)
+                .map(|_| match rnd() % 100 {
+                    r if r < density => 255,
+                    r if r < density + 10 => (rnd() % 255) as u8,
+                    _ => 0,
+                })
+                .collect();
+            let map = AlphaMap::from_raw(w, h, alpha);
+            let settings = CutSettings {
+                budget: 64,
+                filter: Filter {
+                    mode: if case % 2 == 0 {
+                        FilterMode::Bilinear
                     } else {
-                        i.clamp(0, n - 1)
-                    };
-                    let v = if horizontal {
-                        src.get(i as usize, y)
-                    } else {
-                        src.get(x, i as usize)
-                    };
-                    if erode {
-                        acc &= v;
-                    } else {
-                        acc |= v;
-                    }
-                    if acc != erode {
-                        break;
-                    }
-                }
-                out.set(x, y, acc);
+                        FilterMode::Nearest
+                    },
+                    mip_levels: rnd() % 4,
+                },
+                alpha: AlphaThresholds {
+                    opaque_min: 200 + (rnd() % 56) as u8,
+                    visible_min: 1 + (rnd() % 100) as u8,
+                },
+                wrap: [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy][(rnd() % 4) as usize],
+            };
+            let ours = Regions::analyze(&map, &settings);
+            let (s, c, gw, gh) =
+                regions_for_check(&map, settings.filter, settings.alpha, settings.wrap);
+            assert_eq!((gw, gh), (ours.safe.width, ours.safe.height));
+            for i in 0..gw * gh {
+                assert_eq!(
+                    s[i],
+                    ours.safe.cells[i] != 0,
+                    "case {case}: safe cell {i} differs ({settings:?})"
+                );
+                assert_eq!(
+                    c[i],
+                    ours.cover.cells[i] != 0,
+                    "case {case}: cover cell {i} differs ({settings:?})"
+                );
             }
         }
-        out
-    };
-    let a = pass(m, true, wrap.x());
-    pass(&a, false, wrap.y())
+    }
 }

@@ -9,8 +9,6 @@
 //! `component` is shared by an island's outer ring and its holes.
 
 use crate::mask::Mask;
-use image::{GrayImage, Luma};
-use imageproc::region_labelling::{connected_components, Connectivity};
 
 /// A lattice point in half-texel units.
 pub type Point = [i64; 2];
@@ -50,23 +48,33 @@ pub fn trace(mask: &Mask) -> Vec<Ring> {
     let lw = w + 1;
     // Outgoing boundary direction at each lattice point (0: none).
     let mut out = vec![0u8; lw * (h + 1)];
-    let set = |x: i64, y: i64| mask.get_i(x, y);
+    let cells = &mask.cells;
     for y in 0..h {
+        let row = &cells[y * w..(y + 1) * w];
+        let above = if y > 0 {
+            Some(&cells[(y - 1) * w..y * w])
+        } else {
+            None
+        };
+        let below = if y + 1 < h {
+            Some(&cells[(y + 1) * w..(y + 2) * w])
+        } else {
+            None
+        };
         for x in 0..w {
-            if !mask.get(x, y) {
+            if row[x] == 0 {
                 continue;
             }
-            let (xi, yi) = (x as i64, y as i64);
-            if !set(xi, yi - 1) {
+            if above.map_or(true, |r| r[x] == 0) {
                 out[y * lw + x] = RIGHT;
             }
-            if !set(xi + 1, yi) {
+            if x + 1 == w || row[x + 1] == 0 {
                 out[y * lw + x + 1] = DOWN;
             }
-            if !set(xi, yi + 1) {
+            if below.map_or(true, |r| r[x] == 0) {
                 out[(y + 1) * lw + x + 1] = LEFT;
             }
-            if !set(xi - 1, yi) {
+            if x == 0 || row[x - 1] == 0 {
                 out[(y + 1) * lw + x] = UP;
             }
         }
@@ -125,10 +133,7 @@ pub fn trace(mask: &Mask) -> Vec<Ring> {
 /// 4-connected component labels of the set cells, row-major (0 for unset
 /// cells); the numbering [`Ring::component`] uses.
 pub fn label(mask: &Mask) -> Vec<u32> {
-    let img = GrayImage::from_fn(mask.width as u32, mask.height as u32, |x, y| {
-        Luma([mask.get(x as usize, y as usize) as u8])
-    });
-    connected_components(&img, Connectivity::Four, Luma([0u8])).into_raw()
+    mask.components()
 }
 
 #[cfg(test)]

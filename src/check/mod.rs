@@ -23,8 +23,9 @@
 //! union even when triangles overlap. If one triangle would split into more
 //! than [`MAX_PIECES`] pieces the subtraction stops for it and `uncovered`
 //! becomes a lower bound — this needs massive overlap, which is reported.
-//! Overlap areas are sums over triangle pairs; `blended_outside_image` is a
-//! sum over blended triangles.
+//! Overlap areas are sums over triangle pairs (pairs overlapping by at most
+//! 1e-12 texel², e.g. along a shared edge, add nothing); `blended_outside_image`
+//! is a sum over blended triangles.
 
 mod geom;
 mod regions;
@@ -298,13 +299,17 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
     }
 
     // Regions.
-    let (safe, cover, gw, gh) = regions_for_check(alpha, mesh.filter, mesh.alpha, mesh.wrap);
+    let (safe, cover, gw, _gh) = regions_for_check(alpha, mesh.filter, mesh.alpha, mesh.wrap);
     rep.safe_area = safe.iter().filter(|&&s| s).count() as f64 * 0.25;
     rep.must_cover_area = cover.iter().filter(|&&c| c).count() as f64 * 0.25;
     let safe_runs = geom::row_runs(&safe, gw);
     let cover_runs = geom::row_runs(&cover, gw);
     drop((safe, cover));
-    let mut covered_in_row = vec![0.0f64; gh];
+    // Mask rows (none for an empty image, even when the grid height is not 0).
+    let rows = safe_runs.len();
+    let mut covered_in_row = vec![0.0f64; rows];
+    // Opaque area above / below the mask rows is outside S.
+    let mask_h = rows as f64 * 0.5;
 
     for (i, t) in tris.iter().enumerate() {
         if !t.opaque {
@@ -330,9 +335,9 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
             if t.opaque {
                 rep.opaque_area += a;
                 rep.opaque_outside_safe += geom::area(&geom::clip_axis(piece, 1, 0.0, false))
-                    + geom::area(&geom::clip_axis(piece, 1, h, true));
+                    + geom::area(&geom::clip_axis(piece, 1, mask_h, true));
             }
-            geom::for_rows(piece, gh, |row, strip, strip_area| {
+            geom::for_rows(piece, rows, |row, strip, strip_area| {
                 if t.opaque {
                     rep.opaque_outside_safe +=
                         strip_area - geom::area_in_runs(strip, strip_area, &safe_runs[row]);

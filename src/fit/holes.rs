@@ -6,8 +6,6 @@
 //! notches, instead of being dropped whole.
 
 use crate::mask::Mask;
-use image::{GrayImage, Luma};
-use imageproc::region_labelling::{connected_components, Connectivity};
 
 /// Opens every hole of `mask` (see the module docs).
 pub fn open_holes(mask: &mut Mask) {
@@ -15,11 +13,13 @@ pub fn open_holes(mask: &mut Mask) {
     if w == 0 || h == 0 {
         return;
     }
-    let img = GrayImage::from_fn(w as u32, h as u32, |x, y| {
-        Luma([!mask.get(x as usize, y as usize) as u8])
-    });
-    let labels = connected_components(&img, Connectivity::Four, Luma([0u8]));
-    let n = labels.pixels().map(|p| p.0[0]).max().unwrap_or(0) as usize;
+    let complement = Mask {
+        width: w,
+        height: h,
+        cells: mask.cells.iter().map(|&c| (c == 0) as u8).collect(),
+    };
+    let labels = complement.components();
+    let n = labels.iter().copied().max().unwrap_or(0) as usize;
     if n == 0 {
         return;
     }
@@ -27,7 +27,7 @@ pub fn open_holes(mask: &mut Mask) {
     let mut boxes = vec![(usize::MAX, usize::MAX, 0usize, 0usize, false); n + 1];
     for y in 0..h {
         for x in 0..w {
-            let l = labels.get_pixel(x as u32, y as u32).0[0] as usize;
+            let l = labels[y * w + x] as usize;
             if l == 0 {
                 continue;
             }
