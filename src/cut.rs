@@ -77,6 +77,13 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
         notes.push("fully transparent: the meshes are empty".to_string());
     }
     let attempt = triangulate(&fit).and_then(|t| {
+        if t.positions.len() > settings.budget {
+            return Err(format!(
+                "{} vertices after triangulation, over the budget of {}",
+                t.positions.len(),
+                settings.budget
+            ));
+        }
         let mesh = to_mesh(map, source, settings, &regions, &fit, &t);
         let report = check_mesh(&mesh, map).map_err(|e| e.to_string())?;
         if report.holds() {
