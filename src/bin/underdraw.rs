@@ -138,10 +138,37 @@ fn cut(args: &CutArgs) -> ExitCode {
         eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", args.out.display());
         return ExitCode::from(2);
     }
+    // two layers with one stem would write one mesh file: refuse the later ones
+    let mut seen = std::collections::HashMap::new();
+    let clash: Vec<Option<PathBuf>> = args
+        .images
+        .iter()
+        .map(|p| {
+            let stem = p.file_stem().map(|s| s.to_os_string()).unwrap_or_default();
+            match seen.get(&stem) {
+                Some(first) => Some(PathBuf::clone(first)),
+                None => {
+                    seen.insert(stem, p.clone());
+                    None
+                }
+            }
+        })
+        .collect();
     let results: Vec<Result<LayerLine, FileError>> = args
         .images
         .par_iter()
-        .map(|path| cut_one(path, &args.out, &settings))
+        .zip(clash.par_iter())
+        .map(|(path, clash)| match clash {
+            Some(first) => Err(FileError::new(
+                path,
+                format!(
+                    "has the same name as {} and would overwrite its mesh file",
+                    first.display()
+                ),
+                "rename one of them, or cut them into separate --out folders",
+            )),
+            None => cut_one(path, &args.out, &settings),
+        })
         .collect();
     println!(
         "{:<28} {:>8} {:>9} {:>12}",
@@ -206,7 +233,7 @@ fn cut_one(path: &Path, out: &Path, settings: &CutSettings) -> Result<LayerLine,
     write_atomic(&dest, &json)?;
     let s = &outcome.mesh.stats;
     Ok(LayerLine {
-        name,
+        name: path.display().to_string(),
         vertices: s.vertices,
         capture: s.opaque_capture(),
         excess: s.excess(),
