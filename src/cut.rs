@@ -111,13 +111,13 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
     CutOutcome { mesh, notes }
 }
 
+/// Area in texels (orient is twice the area in half units: / 8).
 fn area(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
-    tris.iter()
-        .map(|t| {
-            crate::fit::orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]) as f64
-                / 8.0
-        })
-        .sum()
+    let twice_half_units: i64 = tris
+        .iter()
+        .map(|t| crate::fit::orient(pos[t[0] as usize], pos[t[1] as usize], pos[t[2] as usize]))
+        .sum();
+    twice_half_units as f64 / 8.0
 }
 
 fn to_mesh(

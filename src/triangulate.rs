@@ -184,8 +184,11 @@ fn len2(p: Point, q: Point) -> i64 {
 
 /// Total length, in texels, of the edges shared by two triangles.
 pub fn interior_length(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
-    interior_edges(tris)
-        .keys()
+    // summed in a fixed order, so the result is the same on every run
+    let mut edges: Vec<(u32, u32)> = interior_edges(tris).into_keys().collect();
+    edges.sort_unstable();
+    edges
+        .iter()
         .map(|&(a, b)| (len2(pos[a as usize], pos[b as usize]) as f64).sqrt() / 2.0)
         .sum()
 }

@@ -8,7 +8,9 @@ use underdraw::check::check_mesh;
 use underdraw::cut::cut_layer;
 use underdraw::error::FileError;
 use underdraw::io::{load_alpha, load_mesh, write_atomic};
+use underdraw::scene::run::{run_scene, SceneOptions};
 use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+use underdraw::sweep::{knee, sweep_layer, to_csv, to_table, BUDGETS};
 
 const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract violation; 2 bad usage or bad input (a batch finishes the good layers first and lists the failures).";
 
@@ -37,6 +39,14 @@ enum Command {
         /// The PNG layer it was cut from.
         image: PathBuf,
     },
+    /// Score a parallax scene on a simulated GPU: overdraw, lanes, vertices
+    /// and draws per strategy (rect, outline, split) and per layer, with
+    /// heatmaps; optionally choose a vertex budget per layer.
+    #[command(after_help = EXIT_HELP)]
+    Scene(SceneArgs),
+    /// Cut one layer at budgets 4 to 256 and find the knee of its saving curve.
+    #[command(after_help = EXIT_HELP)]
+    Sweep(SweepArgs),
 }
 
 #[derive(Clone, Copy, ValueEnum)]
@@ -65,6 +75,13 @@ struct CutArgs {
     /// counts once). At least 4.
     #[arg(long, default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
     budget: u32,
+    #[command(flatten)]
+    options: CutOptions,
+}
+
+/// The cut settings other than the budget.
+#[derive(Args)]
+struct CutOptions {
     /// Texture filter the layer is drawn with: `nearest` keeps the opaque mesh
     /// inside opaque texels; `bilinear` also keeps it half a texel (at mip
     /// level l, 2^(l-1) texels) away from any texel that is not opaque.
@@ -86,10 +103,10 @@ struct CutArgs {
     visible_min: u8,
 }
 
-impl CutArgs {
-    fn settings(&self) -> CutSettings {
+impl CutOptions {
+    fn settings(&self, budget: usize) -> CutSettings {
         CutSettings {
-            budget: self.budget as usize,
+            budget,
             filter: Filter {
                 mode: match self.filter {
                     FilterArg::Nearest => FilterMode::Nearest,
@@ -111,11 +128,53 @@ impl CutArgs {
     }
 }
 
+impl CutArgs {
+    fn settings(&self) -> CutSettings {
+        self.options.settings(self.budget as usize)
+    }
+}
+
+#[derive(Args)]
+struct SceneArgs {
+    /// The scene file (`.scene.json`, see the README's Scenes section).
+    scene: PathBuf,
+    /// Folder for the report, heatmaps and meshes (created if missing;
+    /// default `out/<scene name>`).
+    #[arg(long, short)]
+    out: Option<PathBuf>,
+    /// Also write camera sample K's draws (`frame-K.json`) and per-pixel
+    /// fragment counts (`counts-K-<strategy>.png`, 16-bit grey).
+    #[arg(long, value_name = "K")]
+    dump_frame: Option<usize>,
+    /// Split N vertices over the layers cut on the fly to save the most
+    /// fragments with the split strategy; writes `<layer>.mesh.json` and
+    /// compares against the same total spread evenly.
+    #[arg(long, value_name = "N")]
+    vertex_total: Option<usize>,
+}
+
+#[derive(Args)]
+struct SweepArgs {
+    /// The PNG layer to cut at each budget.
+    image: PathBuf,
+    #[command(flatten)]
+    options: CutOptions,
+    /// Folder for `<stem>.sweep.csv` (created if missing; default `out/sweep`).
+    #[arg(long, short)]
+    out: Option<PathBuf>,
+    /// The knee is the smallest budget whose saving reaches this fraction of
+    /// the saving at the largest budget tried (the 80/20 rule by default).
+    #[arg(long, default_value_t = 0.8)]
+    knee: f64,
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Cut(args) => cut(&args),
         Command::Check { mesh, image } => check(&mesh, &image),
+        Command::Scene(args) => scene(&args),
+        Command::Sweep(args) => sweep(&args),
     }
 }
 
@@ -284,4 +343,96 @@ fn check(mesh_path: &Path, image_path: &Path) -> ExitCode {
             ExitCode::from(1)
         }
     }
+}
+
+fn scene(args: &SceneArgs) -> ExitCode {
+    let out = args.out.clone().unwrap_or_else(|| {
+        let stem = args
+            .scene
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        let stem = stem.trim_end_matches(".json").trim_end_matches(".scene");
+        Path::new("out").join(stem)
+    });
+    let opts = SceneOptions {
+        scene: args.scene.clone(),
+        out,
+        dump_frame: args.dump_frame,
+        vertex_total: args.vertex_total,
+    };
+    match run_scene(&opts) {
+        Ok(report) => {
+            print!("{}", report.table());
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            eprintln!("error: {e}");
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn sweep(args: &SweepArgs) -> ExitCode {
+    let fail = |e: FileError| {
+        eprintln!("error: {e}");
+        ExitCode::from(2)
+    };
+    if !(args.knee > 0.0 && args.knee <= 1.0) {
+        eprintln!(
+            "error: --knee {} is not a fraction in (0, 1]\n  hint: give e.g. --knee 0.8",
+            args.knee
+        );
+        return ExitCode::from(2);
+    }
+    let base = args.options.settings(4);
+    if let Err(e) = base.validate() {
+        eprintln!("error: {e}");
+        return ExitCode::from(2);
+    }
+    let map = match load_alpha(&args.image) {
+        Ok(m) => m,
+        Err(e) => return fail(e),
+    };
+    let out = args
+        .out
+        .clone()
+        .unwrap_or_else(|| Path::new("out").join("sweep"));
+    if let Err(e) = std::fs::create_dir_all(&out) {
+        eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", out.display());
+        return ExitCode::from(2);
+    }
+    let stem = args
+        .image
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "layer".into());
+    let name = args
+        .image
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let dest = out.join(format!("{stem}.sweep.csv"));
+    if same_file(&dest, &args.image) {
+        return fail(FileError::new(
+            &args.image,
+            "would be overwritten by its own sweep file",
+            "choose another --out folder",
+        ));
+    }
+    let points = sweep_layer(&map, &name, &base, &BUDGETS);
+    let knee_budget = knee(&points, args.knee);
+    print!("{}", to_table(&points, knee_budget));
+    if let Some(k) = knee_budget {
+        println!(
+            "knee: budget {k} (smallest reaching {:.0}% of the saving at budget {})",
+            100.0 * args.knee,
+            BUDGETS[BUDGETS.len() - 1]
+        );
+    }
+    if let Err(e) = write_atomic(&dest, to_csv(&points).as_bytes()) {
+        return fail(e);
+    }
+    println!("wrote {}", dest.display());
+    ExitCode::SUCCESS
 }

@@ -116,6 +116,7 @@ enum OpKind {
     FillHole,
     RectComp,
     BoxComp,
+    MergeComp,
 }
 
 struct Cand {
@@ -145,6 +146,41 @@ impl Ord for Cand {
     }
 }
 
+/// Islands of the covering outline above which merging is not tried (the
+/// bounding-box fallback still bounds the vertex count).
+const MAX_MERGE_ISLANDS: usize = 256;
+
+/// Convex hull (monotone chain) of lattice points, without collinear
+/// points, with a positive shoelace area (clockwise on screen).
+fn convex_hull(mut pts: Vec<Point>) -> Vec<Point> {
+    pts.sort_unstable();
+    pts.dedup();
+    if pts.len() < 3 {
+        return pts;
+    }
+    let mut lower: Vec<Point> = Vec::new();
+    for &p in &pts {
+        while lower.len() >= 2 && orient(lower[lower.len() - 2], lower[lower.len() - 1], p) <= 0 {
+            lower.pop();
+        }
+        lower.push(p);
+    }
+    let mut upper: Vec<Point> = Vec::new();
+    for &p in pts.iter().rev() {
+        while upper.len() >= 2 && orient(upper[upper.len() - 2], upper[upper.len() - 1], p) <= 0 {
+            upper.pop();
+        }
+        upper.push(p);
+    }
+    lower.pop();
+    upper.pop();
+    lower.extend(upper);
+    if geom::twice_area(&lower) < 0 {
+        lower.reverse();
+    }
+    lower
+}
+
 /// Corners of rectangle `[x0, y0, x1, y1]`, clockwise on screen.
 fn rect_points(r: [i64; 4]) -> [Point; 4] {
     [[r[0], r[1]], [r[2], r[1]], [r[2], r[3]], [r[0], r[3]]]
@@ -170,6 +206,7 @@ pub struct Fitter<'a> {
     cover: RowPrefix,
     size: Point,
     heap: BinaryHeap<Cand>,
+    budget: usize,
     _m: std::marker::PhantomData<&'a ()>,
 }
 
@@ -197,6 +234,7 @@ impl<'a> Fitter<'a> {
             cover: must_cover.row_prefix(),
             size,
             heap: BinaryHeap::new(),
+            budget: usize::MAX,
             _m: std::marker::PhantomData,
         };
         let rects = rects::largest_rectangles(safe, &crate::outline::label(safe));
@@ -306,6 +344,7 @@ impl<'a> Fitter<'a> {
     /// and no free improvement is left. Any `budget >= 4` is reached.
     pub fn fit(&mut self, budget: usize) {
         assert!(budget >= 4, "a budget below 4 vertices cannot hold a quad");
+        self.budget = budget;
         self.seed();
         self.run(budget);
         if self.distinct > budget {
@@ -341,7 +380,9 @@ impl<'a> Fitter<'a> {
             if e.saved <= 0 {
                 return;
             }
-            e.cost as f64 / e.saved as f64
+            // vertices saved beyond what the budget needs are worth nothing
+            let need = (self.distinct as i64 - self.budget as i64).max(1);
+            e.cost as f64 / e.saved.min(need) as f64
         };
         self.heap.push(Cand {
             key,
@@ -361,15 +402,25 @@ impl<'a> Fitter<'a> {
         }
     }
     fn push_comp_op(&mut self, c: u32) {
+        for kind in [
+            OpKind::DropComp,
+            OpKind::RectComp,
+            OpKind::BoxComp,
+            OpKind::MergeComp,
+        ] {
+            self.push_comp_kind(c, kind);
+        }
+    }
+    fn push_comp_kind(&mut self, c: u32, kind: OpKind) {
         let stamp = self.comps[c as usize].version;
-        if let Some(e) = self.eval_drop_comp(c) {
-            self.push(OpKind::DropComp, c, stamp, &e);
-        }
-        if let Some(e) = self.eval_rect_comp(c) {
-            self.push(OpKind::RectComp, c, stamp, &e);
-        }
-        if let Some(e) = self.eval_box_comp(c) {
-            self.push(OpKind::BoxComp, c, stamp, &e);
+        let e = match kind {
+            OpKind::DropComp => self.eval_drop_comp(c),
+            OpKind::RectComp => self.eval_rect_comp(c),
+            OpKind::BoxComp => self.eval_box_comp(c),
+            _ => self.eval_merge_comp(c).map(|(e, _, _)| e),
+        };
+        if let Some(e) = e {
+            self.push(kind, c, stamp, &e);
         }
     }
     fn push_hole_op(&mut self, r: u32) {
@@ -405,20 +456,40 @@ impl<'a> Fitter<'a> {
                         self.apply_collapse(c.id, e.point);
                     }
                 }
-                OpKind::DropComp | OpKind::RectComp | OpKind::BoxComp => {
+                OpKind::DropComp | OpKind::RectComp | OpKind::BoxComp | OpKind::MergeComp => {
                     let comp = &self.comps[c.id as usize];
                     if !comp.alive {
                         continue;
                     }
                     if comp.version != c.stamp {
-                        self.push_comp_op(c.id);
+                        self.push_comp_kind(c.id, c.kind);
                         continue;
+                    }
+                    let e = match c.kind {
+                        OpKind::DropComp => self.eval_drop_comp(c.id),
+                        OpKind::RectComp => self.eval_rect_comp(c.id),
+                        OpKind::BoxComp => self.eval_box_comp(c.id),
+                        _ => None, // merges are re-evaluated below
+                    };
+                    if let Some(e) = e {
+                        if !self.still_best(&c, &e) {
+                            continue;
+                        }
                     }
                     match c.kind {
                         OpKind::DropComp => self.apply_drop_comp(c.id),
                         OpKind::RectComp => {
                             let r = self.comps[c.id as usize].rect.take().expect("a rectangle");
                             self.replace_comp(c.id, r);
+                        }
+                        OpKind::MergeComp => {
+                            let Some((e, set, hull)) = self.eval_merge_comp(c.id) else {
+                                continue;
+                            };
+                            if !self.still_best(&c, &e) {
+                                continue;
+                            }
+                            self.apply_merge(c.id, &set, &hull);
                         }
                         _ => {
                             let Some(r) = self.comp_box(c.id) else {
@@ -438,6 +509,12 @@ impl<'a> Fitter<'a> {
                     }
                     if self.comps[r.comp as usize].version != c.stamp {
                         self.push_hole_op(c.id);
+                        continue;
+                    }
+                    let Some(e) = self.eval_fill_hole(c.id) else {
+                        continue;
+                    };
+                    if !self.still_best(&c, &e) {
                         continue;
                     }
                     self.apply_fill_hole(c.id);
@@ -745,16 +822,20 @@ impl<'a> Fitter<'a> {
 
     /// Distinct vertices saved by replacing island `c` with rectangle `r`.
     fn saved_by_replacing(&self, c: u32, r: [i64; 4]) -> i64 {
-        let ids = self.comp_vertices(c);
+        self.saved_by_swapping(&self.comp_vertices(c), &rect_points(r))
+    }
+
+    /// Distinct vertices saved by removing vertices `ids` and adding points `new`.
+    fn saved_by_swapping(&self, ids: &[u32], new: &[Point]) -> i64 {
         let mut count: HashMap<Point, u32> = HashMap::new();
-        for &v in &ids {
+        for &v in ids {
             *count.entry(self.verts[v as usize].p).or_insert(0) += 1;
         }
         let freed = count
             .iter()
             .filter(|(p, &n)| self.refs_at(**p) == n)
             .count() as i64;
-        let added = rect_points(r)
+        let added = new
             .iter()
             .filter(|p| self.refs_at(**p) == count.get(*p).copied().unwrap_or(0))
             .count() as i64;
@@ -844,6 +925,123 @@ impl<'a> Fitter<'a> {
         }
         self.add_ring(class, false, c, &rect_points(r));
         self.comps[c as usize].version += 1;
+        let n = self.verts.len() as u32;
+        for v in n - 4..n {
+            self.push_vertex_ops(v);
+        }
+    }
+
+    /// Alive rings of island `c`.
+    fn comp_rings(&self, c: u32) -> impl Iterator<Item = u32> + '_ {
+        self.comps[c as usize]
+            .rings
+            .iter()
+            .copied()
+            .filter(|&r| self.rings[r as usize].alive)
+    }
+
+    /// Whether any ring of island `e` touches the closed convex polygon `hull`.
+    fn comp_touches(&self, e: u32, hull: &[Point]) -> bool {
+        let n = hull.len();
+        for r in self.comp_rings(e) {
+            let mut ids = Vec::new();
+            self.ring_vertices_into(r, &mut ids);
+            for (k, &v) in ids.iter().enumerate() {
+                let p = self.verts[v as usize].p;
+                if in_closed_polygon(p, hull) {
+                    return true;
+                }
+                let q = self.verts[ids[(k + 1) % ids.len()] as usize].p;
+                if (0..n).any(|i| segments_touch(hull[i], hull[(i + 1) % n], p, q)) {
+                    return true;
+                }
+            }
+        }
+        false
+    }
+
+    /// Merging covering island `c` with its nearest neighbour into their
+    /// convex hull, grown until it touches no other covering island (those
+    /// it touches join the merge). Hull corners are existing positions.
+    fn eval_merge_comp(&self, c: u32) -> Option<(Eval, Vec<u32>, Vec<Point>)> {
+        let comp = &self.comps[c as usize];
+        if !comp.alive || comp.class != Class::Cover {
+            return None;
+        }
+        let alive: Vec<u32> = (0..self.comps.len() as u32)
+            .filter(|&d| {
+                self.comps[d as usize].alive && self.comps[d as usize].class == Class::Cover
+            })
+            .collect();
+        if alive.len() < 2 || alive.len() > MAX_MERGE_ISLANDS {
+            return None;
+        }
+        let bc = self.comp_box(c)?;
+        let gap = |b: [i64; 4]| {
+            (b[0] - bc[2]).max(bc[0] - b[2]).max(0) + (b[1] - bc[3]).max(bc[1] - b[3]).max(0)
+        };
+        let d = alive
+            .iter()
+            .copied()
+            .filter(|&d| d != c)
+            .min_by_key(|&d| (self.comp_box(d).map_or(i64::MAX, gap), d))?;
+        let mut set = vec![c, d];
+        loop {
+            let mut pts = Vec::new();
+            for &m in &set {
+                for r in self.comp_rings(m) {
+                    if !self.rings[r as usize].hole {
+                        let mut ids = Vec::new();
+                        self.ring_vertices_into(r, &mut ids);
+                        pts.extend(ids.iter().map(|&v| self.verts[v as usize].p));
+                    }
+                }
+            }
+            let hull = convex_hull(pts);
+            if hull.len() < 3 {
+                return None;
+            }
+            let before = set.len();
+            for &e in &alive {
+                if !set.contains(&e) && self.comp_touches(e, &hull) {
+                    set.push(e);
+                }
+            }
+            if set.len() == before {
+                let area: i64 = set.iter().map(|&m| self.comps[m as usize].area2).sum();
+                let cost = geom::twice_area(&hull) - area;
+                let ids: Vec<u32> = set.iter().flat_map(|&m| self.comp_vertices(m)).collect();
+                let saved = self.saved_by_swapping(&ids, &hull);
+                return Some((
+                    Eval {
+                        cost,
+                        saved,
+                        point: [0, 0],
+                    },
+                    set,
+                    hull,
+                ));
+            }
+        }
+    }
+
+    fn apply_merge(&mut self, c: u32, set: &[u32], hull: &[Point]) {
+        for &m in set {
+            for r in self.comps[m as usize].rings.clone() {
+                if self.rings[r as usize].alive {
+                    self.kill_ring(r);
+                }
+            }
+            if m != c {
+                self.comps[m as usize].alive = false;
+            }
+        }
+        self.add_ring(Class::Cover, false, c, hull);
+        self.comps[c as usize].version += 1;
+        let n = self.verts.len() as u32;
+        for v in n - hull.len() as u32..n {
+            self.push_vertex_ops(v);
+        }
     }
 
     fn eval_fill_hole(&self, r: u32) -> Option<Eval> {

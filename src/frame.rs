@@ -1,0 +1,234 @@
+//! A frame on a simulated GPU: draws with depth, and what they cost.
+//!
+//! [`render`] draws a list of [`Draw`]s in order into a viewport and counts,
+//! per pixel and per draw, the work a GPU would do. The model:
+//!
+//! * **Coverage**: pixel centres with the top-left rule, on vertex positions
+//!   snapped to 1/256 pixel, exactly (see [`crate::raster`]). Pixels outside
+//!   the viewport are not counted.
+//! * **Depth**: a depth buffer initialised to 1.0 (far). A draw has one
+//!   constant depth in [0, 1], 0 nearest. With `depth_test` a fragment
+//!   passes iff its depth is *less* than the stored one (LESS); without, it
+//!   always passes. With `depth_write` a passing fragment stores its depth.
+//!   Triangles are drawn in order, within a draw too.
+//! * **Fragments**: covered pixels that pass the depth test. Only they are
+//!   shaded; a fragment failing the test is discarded before shading and
+//!   costs nothing (an ideal early depth test).
+//! * **Lanes**: fragments are shaded in aligned 2x2 quads, each triangle on
+//!   its own; a quad holding at least one fragment of a triangle costs 4
+//!   shader lanes, its idle lanes included (common practice, no source).
+//!   Quads are formed from the fragments that *pass* the depth test, so a
+//!   quad whose pixels all fail costs nothing. A triangle's lanes are 4 x the
+//!   number of quads holding at least one of its fragments.
+//! * **Vertices**: the number of distinct indices a draw references, i.e.
+//!   vertex shader invocations assuming a perfect post-transform vertex
+//!   cache within a draw. **Triangles**: `indices.len() / 3`, drawn or not.
+//! * **Blending** changes no count; `blend` is carried for the record.
+//!
+//! `counts` in the result holds, per pixel, the fragments shaded there.
+
+use crate::raster::{QuadTracker, Triangle};
+use serde::{Deserialize, Serialize};
+
+/// One draw call: a triangle list at one constant depth.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Draw {
+    /// The layer's name, for reports.
+    pub layer: String,
+    /// Drawn with blending on (changes no count).
+    pub blend: bool,
+    /// In [0, 1], 0 nearest.
+    pub depth: f32,
+    /// Test LESS against the depth buffer.
+    pub depth_test: bool,
+    /// Store the depth of passing fragments.
+    pub depth_write: bool,
+    /// x0, y0, x1, y1, ...: screen pixels, origin top-left, y down.
+    pub positions: Vec<f32>,
+    /// A triangle list into `positions`.
+    pub indices: Vec<u32>,
+}
+
+impl Draw {
+    /// Checks what [`render`] requires of a draw: an even number of finite
+    /// coordinates, whole triangles, every index naming a vertex, and a
+    /// depth in [0, 1]. The message names the layer and says what is wrong.
+    pub fn validate(&self) -> Result<(), String> {
+        let layer = &self.layer;
+        if !(0.0..=1.0).contains(&self.depth) {
+            return Err(format!(
+                "layer {layer}: depth {} is outside [0, 1]; give a depth from 0 (nearest) to 1 (farthest)",
+                self.depth
+            ));
+        }
+        if self.positions.len() % 2 != 0 {
+            return Err(format!(
+                "layer {layer}: {} position coordinates is an odd number; positions are x, y pairs",
+                self.positions.len()
+            ));
+        }
+        if let Some(i) = self.positions.iter().position(|v| !v.is_finite()) {
+            return Err(format!(
+                "layer {layer}: position coordinate {i} is {}; positions must be finite",
+                self.positions[i]
+            ));
+        }
+        if self.indices.len() % 3 != 0 {
+            return Err(format!(
+                "layer {layer}: {} indices is not a whole number of triangles (a multiple of 3)",
+                self.indices.len()
+            ));
+        }
+        let n = self.positions.len() / 2;
+        if let Some(&i) = self.indices.iter().find(|&&i| i as usize >= n) {
+            return Err(format!(
+                "layer {layer}: index {i} names no vertex; the draw has {n} vertices"
+            ));
+        }
+        Ok(())
+    }
+
+    fn vertex(&self, i: u32) -> [f32; 2] {
+        let i = i as usize * 2;
+        [self.positions[i], self.positions[i + 1]]
+    }
+
+    /// Distinct indices referenced (vertex shader invocations with a perfect
+    /// post-transform cache).
+    fn distinct_vertices(&self) -> u64 {
+        let mut seen = vec![false; self.positions.len() / 2];
+        let mut n = 0;
+        for &i in &self.indices {
+            if !std::mem::replace(&mut seen[i as usize], true) {
+                n += 1;
+            }
+        }
+        n
+    }
+}
+
+/// What a draw, or the frame, costs.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct DrawStats {
+    /// Fragments shaded (covered and passing the depth test).
+    pub fragments: u64,
+    /// Shader lanes: 4 per (triangle, 2x2 quad) with a shaded fragment.
+    pub lanes: u64,
+    /// Vertex shader invocations (distinct indices referenced).
+    pub vertices: u64,
+    /// Triangles submitted.
+    pub triangles: u64,
+}
+
+impl DrawStats {
+    fn add(&mut self, o: &DrawStats) {
+        self.fragments += o.fragments;
+        self.lanes += o.lanes;
+        self.vertices += o.vertices;
+        self.triangles += o.triangles;
+    }
+}
+
+/// The counts of a rendered frame.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FrameResult {
+    pub width: u32,
+    pub height: u32,
+    /// Per pixel, row-major: fragments shaded there.
+    pub counts: Vec<u32>,
+    /// Per draw, in the order of the draws.
+    pub per_draw: Vec<DrawStats>,
+    /// The sum over the draws.
+    pub total: DrawStats,
+}
+
+impl FrameResult {
+    /// Pixels in the viewport.
+    pub fn pixels(&self) -> u64 {
+        self.width as u64 * self.height as u64
+    }
+
+    /// Mean fragments shaded per pixel of the viewport (0 if it is empty).
+    pub fn fragments_per_pixel(&self) -> f64 {
+        self.per_pixel(self.total.fragments)
+    }
+
+    /// Mean shader lanes per pixel of the viewport (0 if it is empty).
+    pub fn lanes_per_pixel(&self) -> f64 {
+        self.per_pixel(self.total.lanes)
+    }
+
+    fn per_pixel(&self, n: u64) -> f64 {
+        match self.pixels() {
+            0 => 0.0,
+            p => n as f64 / p as f64,
+        }
+    }
+}
+
+/// Draws `draws` in order into a viewport of [width, height] pixels and
+/// counts the work (see the module docs for the model).
+///
+/// # Panics
+/// If a draw fails [`Draw::validate`]; validate draws built from input
+/// first to report the problem as an error.
+pub fn render(viewport: [u32; 2], draws: &[Draw]) -> FrameResult {
+    let [width, height] = viewport;
+    let w = width as usize;
+    let mut counts = vec![0u32; w * height as usize];
+    let mut depth = vec![1.0f32; counts.len()];
+    let mut quads = QuadTracker::new(width);
+    let mut per_draw = Vec::with_capacity(draws.len());
+    let mut total = DrawStats::default();
+    for (n, d) in draws.iter().enumerate() {
+        if let Err(e) = d.validate() {
+            panic!("render: draw {n}: {e}");
+        }
+        let mut st = DrawStats {
+            vertices: d.distinct_vertices(),
+            triangles: (d.indices.len() / 3) as u64,
+            ..DrawStats::default()
+        };
+        for t in d.indices.chunks_exact(3) {
+            let (a, b, c) = (d.vertex(t[0]), d.vertex(t[1]), d.vertex(t[2]));
+            let Some(tri) = Triangle::new(a, b, c, viewport) else {
+                continue;
+            };
+            quads.next_triangle();
+            for y in tri.rows() {
+                let span = tri.span(y);
+                let row = y as usize * w;
+                let passes =
+                    |depth: &[f32], x: u32| !d.depth_test || d.depth < depth[row + x as usize];
+                let mut x = span.start;
+                while x < span.end {
+                    if !passes(&depth, x) {
+                        x += 1;
+                        continue;
+                    }
+                    // a run of pixels that pass the depth test
+                    let start = x;
+                    while x < span.end && passes(&depth, x) {
+                        x += 1;
+                    }
+                    let run = row + start as usize..row + x as usize;
+                    counts[run.clone()].iter_mut().for_each(|c| *c += 1);
+                    if d.depth_write {
+                        depth[run].fill(d.depth);
+                    }
+                    st.fragments += (x - start) as u64;
+                    st.lanes += 4 * quads.mark(y, start..x);
+                }
+            }
+        }
+        total.add(&st);
+        per_draw.push(st);
+    }
+    FrameResult {
+        width,
+        height,
+        counts,
+        per_draw,
+        total,
+    }
+}

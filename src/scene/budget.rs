@@ -1,0 +1,383 @@
+//! Choosing a vertex budget per layer for a vertex total: the layers'
+//! sweep curves, scored by what each layer's cut saves *in the scene*, and
+//! split by marginal gain ([`crate::sweep::allocate`]).
+//!
+//! **The gain model.** With the split strategy, a pixel p is shaded by layer
+//! L when L's meshes cover p and no nearer layer's opaque mesh does. So with
+//! the other layers' meshes fixed, changing L's mesh changes the frame's
+//! fragments by exactly two terms:
+//!
+//! * L's own fragments: the pixels its meshes cover, counted where p is not
+//!   behind a nearer opaque mesh (weight `vis_L(p)`);
+//! * what L's opaque mesh hides: at a pixel of its opaque mesh, the
+//!   fragments the layers behind L would shade there (`behind_L(p)`, each
+//!   farther layer counted unless a layer between it and L is opaque at p),
+//!   again only where `vis_L(p)`.
+//!
+//! Both weights depend on the other layers only. Rendering every candidate
+//! mesh of every layer into the full scene at every camera sample would
+//! cost a frame per (layer, budget, sample); instead the weights are
+//! rendered once per sample from a reference cut of every layer and pulled
+//! back into the layer's texel grid (each screen pixel adds its weights to
+//! the texel under its centre), summed over the samples. A candidate mesh
+//! is then rendered once, in texel space, and its cost is the weights it
+//! covers: `sum(cover * vis) - sum(opaque * vis * behind)`. This is the
+//! scene's exact change for one layer at a time up to where texel centres
+//! and pixel centres disagree (under a texel at the mesh's edges), and it
+//! ignores how two layers' changes interact; so the choice is made twice,
+//! the second time with the first choice as the reference, and each choice
+//! is scored exactly (every sample rendered) and the better one kept. The
+//! first reference is the even spread, the choice it is compared against.
+
+use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
+use super::file::{MeshSource, Scene};
+use super::prepare::{cut_all, Layer};
+use super::score::mean_fragments;
+use crate::error::FileError;
+use crate::frame::{render, Draw};
+use crate::mesh::LayerMesh;
+use crate::sweep::{allocate, CurvePoint, BUDGETS};
+use rayon::prelude::*;
+use serde::Serialize;
+use std::path::PathBuf;
+
+/// Choices made, each scored exactly.
+const ROUNDS: usize = 2;
+
+/// A layer's choice.
+#[derive(Clone, Debug, Serialize)]
+pub struct LayerChoice {
+    pub name: String,
+    /// Budget chosen (`None` for a mesh file, kept as it is).
+    pub budget: Option<usize>,
+    pub vertices: usize,
+    /// Budget and vertices in the even spread.
+    pub even_budget: Option<usize>,
+    pub even_vertices: usize,
+    /// The layer's curve in the last round: fragments saved per frame
+    /// against its rectangle, by the gain model.
+    pub curve: Vec<CurveEntry>,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct CurveEntry {
+    pub budget: usize,
+    pub vertices: usize,
+    pub gain: f64,
+}
+
+/// An assignment of meshes, scored exactly with the split strategy.
+#[derive(Clone, Debug, Serialize)]
+pub struct Scored {
+    pub vertices: usize,
+    /// Mean fragments per frame.
+    pub fragments: f64,
+    pub overdraw: f64,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct AllocationReport {
+    pub vertex_total: usize,
+    pub layers: Vec<LayerChoice>,
+    pub allocated: Scored,
+    pub even: Scored,
+    /// Each round's choice, scored exactly.
+    pub rounds: Vec<Scored>,
+    /// even.fragments - allocated.fragments, per frame.
+    pub saved_vs_even: f64,
+}
+
+pub struct AllocationOutcome {
+    pub report: AllocationReport,
+    /// The chosen mesh of each layer, in the scene's order.
+    pub meshes: Vec<LayerMesh>,
+}
+
+/// Per layer, texel-space weight sums over the camera samples.
+struct Weights {
+    /// sum of vis over the pixels whose centre falls in each texel
+    vis: Vec<Vec<u64>>,
+    /// sum of vis * behind
+    hidden: Vec<Vec<u64>>,
+}
+
+fn draw_counts(viewport: [u32; 2], d: Option<Draw>) -> Vec<u32> {
+    match d {
+        Some(d) => render(viewport, &[d]).counts,
+        None => vec![0; viewport[0] as usize * viewport[1] as usize],
+    }
+}
+
+/// The weights of every layer against the reference `meshes`.
+fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
+    let n = layers.len();
+    let vp = scene.viewport;
+    let (vw, vh) = (vp[0] as usize, vp[1] as usize);
+    let mut vis_sum: Vec<Vec<u64>> = layers
+        .iter()
+        .map(|l| vec![0; (l.mesh.size[0] * l.mesh.size[1]) as usize])
+        .collect();
+    let mut hidden_sum = vis_sum.clone();
+    for cam in scene.camera_positions() {
+        // each layer's opaque and covering pixels, alone
+        let maps: Vec<(Vec<u32>, Vec<u32>)> = (0..n)
+            .into_par_iter()
+            .map(|i| {
+                let one =
+                    |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
+                (
+                    draw_counts(vp, one(Part::Opaque)),
+                    draw_counts(vp, one(Part::Cover)),
+                )
+            })
+            .collect();
+        // front to back: is the pixel free of nearer opaque meshes?
+        let mut nearer = vec![false; vw * vh];
+        let mut vis: Vec<Vec<bool>> = vec![Vec::new(); n];
+        for i in (0..n).rev() {
+            vis[i] = nearer.iter().map(|&b| !b).collect();
+            for (b, &o) in nearer.iter_mut().zip(&maps[i].0) {
+                *b |= o > 0;
+            }
+        }
+        // back to front: fragments the layers behind would shade
+        let mut behind: Vec<Vec<u32>> = vec![Vec::new(); n];
+        let mut acc = vec![0u32; vw * vh];
+        for i in 0..n {
+            behind[i] = acc.clone();
+            for ((a, &o), &c) in acc.iter_mut().zip(&maps[i].0).zip(&maps[i].1) {
+                *a = if o > 0 { c } else { *a + c };
+            }
+        }
+        vis_sum
+            .par_iter_mut()
+            .zip(hidden_sum.par_iter_mut())
+            .enumerate()
+            .for_each(|(i, (vs, hs))| {
+                let spec = &layers[i].spec;
+                let [w, h] = layers[i].mesh.size;
+                for o in copy_origins(spec, [w, h], vp, cam) {
+                    let s = spec.scale;
+                    let x0 = o[0].max(0.0).floor() as usize;
+                    let x1 = (o[0] + s * w as f64).ceil().clamp(0.0, vw as f64) as usize;
+                    let y0 = o[1].max(0.0).floor() as usize;
+                    let y1 = (o[1] + s * h as f64).ceil().clamp(0.0, vh as f64) as usize;
+                    for y in y0..y1 {
+                        let ty = ((y as f64 + 0.5 - o[1]) / s).floor();
+                        if ty < 0.0 || ty >= h as f64 {
+                            continue;
+                        }
+                        for x in x0..x1 {
+                            let tx = ((x as f64 + 0.5 - o[0]) / s).floor();
+                            if tx < 0.0 || tx >= w as f64 {
+                                continue;
+                            }
+                            let p = y * vw + x;
+                            if vis[i][p] {
+                                let t = ty as usize * w as usize + tx as usize;
+                                vs[t] += 1;
+                                hs[t] += behind[i][p] as u64;
+                            }
+                        }
+                    }
+                }
+            });
+    }
+    Weights {
+        vis: vis_sum,
+        hidden: hidden_sum,
+    }
+}
+
+/// A candidate mesh's gain against the layer's rectangle, summed over the samples.
+fn gain(mesh: &LayerMesh, vis: &[u64], hidden: &[u64]) -> f64 {
+    let flat = |indices: &[u32]| {
+        (!indices.is_empty()).then(|| Draw {
+            layer: String::new(),
+            blend: false,
+            depth: 0.5,
+            depth_test: false,
+            depth_write: false,
+            positions: mesh.positions.clone(),
+            indices: indices.to_vec(),
+        })
+    };
+    let mut cover = mesh.opaque.indices.clone();
+    cover.extend(&mesh.blended.indices);
+    let opaque = draw_counts(mesh.size, flat(&mesh.opaque.indices));
+    let cover = draw_counts(mesh.size, flat(&cover));
+    let rect: u64 = vis.iter().sum();
+    let own: u64 = cover.iter().zip(vis).map(|(&c, &v)| c as u64 * v).sum();
+    let hides: u64 = opaque.iter().zip(hidden).map(|(&o, &h)| o as u64 * h).sum();
+    rect as f64 - own as f64 + hides as f64
+}
+
+fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
+    FileError::new(
+        &scene.path,
+        format!(
+            "a vertex total of {total} cannot hold the scene's smallest meshes ({need} vertices)"
+        ),
+        format!("give --vertex-total {need} or more"),
+    )
+}
+
+/// Chooses a budget per layer cut on the fly so that all the scene's meshes
+/// together have at most `total` vertices (layers read from mesh files keep
+/// theirs), saving the most fragments with the split strategy.
+pub fn allocate_scene(
+    scene: &Scene,
+    layers: &[Layer],
+    total: usize,
+) -> Result<AllocationOutcome, FileError> {
+    let free: Vec<usize> = (0..layers.len())
+        .filter(|&i| layers[i].alpha.is_some())
+        .collect();
+    let fixed: usize = layers
+        .iter()
+        .filter(|l| l.alpha.is_none())
+        .map(|l| l.mesh.vertex_count())
+        .sum();
+    if free.is_empty() {
+        return Err(FileError::new(
+            &scene.path,
+            "every layer is read from a mesh file: there is no budget to choose",
+            "give \"cut\" settings (or none) instead of \"mesh\" for the layers to allocate",
+        ));
+    }
+    let avail = total
+        .checked_sub(fixed)
+        .ok_or_else(|| too_small(scene, total, fixed + 4 * free.len()))?;
+    let even = avail / free.len();
+    if even < 4 {
+        return Err(too_small(scene, total, fixed + 4 * free.len()));
+    }
+    let max_budget = avail - 4 * (free.len() - 1);
+    let mut budgets: Vec<usize> = BUDGETS
+        .iter()
+        .copied()
+        .filter(|&b| b <= max_budget)
+        .collect();
+    budgets.push(even);
+    budgets.sort_unstable();
+    budgets.dedup();
+    // every candidate cut, each distinct one once
+    let setting = |i: usize, budget: usize| match layers[i].spec.mesh {
+        MeshSource::Cut(s) => (
+            layers[i].spec.image.clone(),
+            crate::settings::CutSettings { budget, ..s },
+        ),
+        MeshSource::File(_) => unreachable!("free layers are cut on the fly"),
+    };
+    let jobs: Vec<(PathBuf, crate::settings::CutSettings)> = free
+        .iter()
+        .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
+        .map(|(i, b)| setting(i, b))
+        .collect();
+    let maps = layers
+        .iter()
+        .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
+        .collect();
+    let cuts = cut_all(&jobs, &maps);
+    let candidate = |i: usize, b: usize| &cuts[&setting(i, b)].0;
+    let assign = |choice: &[Option<usize>]| -> Vec<&LayerMesh> {
+        (0..layers.len())
+            .map(|i| match choice[i] {
+                Some(b) => candidate(i, b),
+                None => &layers[i].mesh,
+            })
+            .collect()
+    };
+    let cams = scene.camera_positions();
+    let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
+    let score = |choice: &[Option<usize>]| {
+        let meshes = assign(choice);
+        let fragments = mean_fragments(Strategy::Split, &specs, &meshes, scene.viewport, &cams);
+        Scored {
+            vertices: meshes.iter().map(|m| m.vertex_count()).sum(),
+            fragments,
+            overdraw: fragments / (scene.viewport[0] as f64 * scene.viewport[1] as f64),
+        }
+    };
+    let even_choice: Vec<Option<usize>> = (0..layers.len())
+        .map(|i| layers[i].alpha.is_some().then_some(even))
+        .collect();
+    let even_score = score(&even_choice);
+    let mut reference = even_choice.clone();
+    let mut rounds = Vec::new();
+    let mut best: Option<(Scored, Vec<Option<usize>>, Vec<Vec<CurveEntry>>)> = None;
+    for _ in 0..ROUNDS {
+        let w = weights(scene, layers, &assign(&reference));
+        let samples = cams.len() as f64;
+        let curves: Vec<Vec<CurveEntry>> = free
+            .par_iter()
+            .map(|&i| {
+                budgets
+                    .par_iter()
+                    .map(|&b| {
+                        let m = candidate(i, b);
+                        CurveEntry {
+                            budget: b,
+                            vertices: m.vertex_count(),
+                            gain: gain(m, &w.vis[i], &w.hidden[i]) / samples,
+                        }
+                    })
+                    .collect()
+            })
+            .collect();
+        let points: Vec<Vec<CurvePoint>> = curves
+            .iter()
+            .map(|c| {
+                c.iter()
+                    .map(|e| CurvePoint {
+                        vertices: e.vertices,
+                        gain: e.gain,
+                    })
+                    .collect()
+            })
+            .collect();
+        let pick = allocate(&points, avail)
+            .ok_or_else(|| too_small(scene, total, fixed + 4 * free.len()))?;
+        let mut choice = vec![None; layers.len()];
+        for (k, &i) in free.iter().enumerate() {
+            choice[i] = Some(curves[k][pick[k]].budget);
+        }
+        let s = score(&choice);
+        rounds.push(s.clone());
+        if best.as_ref().is_none_or(|b| s.fragments < b.0.fragments) {
+            best = Some((s, choice.clone(), curves));
+        }
+        if choice == reference {
+            break; // the next round would repeat this one
+        }
+        reference = choice;
+    }
+    let (allocated, choice, curves) = best.expect("at least one round");
+    let meshes: Vec<LayerMesh> = assign(&choice).into_iter().cloned().collect();
+    let even_meshes = assign(&even_choice);
+    let layers_out = (0..layers.len())
+        .map(|i| LayerChoice {
+            name: layers[i].spec.name.clone(),
+            budget: choice[i],
+            vertices: meshes[i].vertex_count(),
+            even_budget: even_choice[i],
+            even_vertices: even_meshes[i].vertex_count(),
+            curve: free
+                .iter()
+                .position(|&f| f == i)
+                .map(|k| curves[k].clone())
+                .unwrap_or_default(),
+        })
+        .collect();
+    Ok(AllocationOutcome {
+        report: AllocationReport {
+            vertex_total: total,
+            layers: layers_out,
+            saved_vs_even: even_score.fragments - allocated.fragments,
+            allocated,
+            even: even_score,
+            rounds,
+        },
+        meshes,
+    })
+}

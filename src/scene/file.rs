@@ -1,0 +1,397 @@
+//! The scene file (`<name>.scene.json`, our own format): the viewport, the
+//! layers back to front with their placement, and the camera's travel.
+//!
+//! ```text
+//! {"viewport": [1920, 1080],
+//!  "camera": {"travel": 1920, "samples": 16},
+//!  "layers": [                                  // back to front
+//!    {"name": "sky", "image": "sky.png",        // relative to the scene file
+//!     "cut": {"budget": 8, "wrap": "x"},        // or "mesh": "sky.mesh.json"
+//!     "position": [0, 0], "scale": 1.06,        // top-left on screen at camera 0
+//!     "parallax": 0.1, "repeat_x": true}]}
+//! ```
+//!
+//! A texel (tx, ty) of a layer lands on screen at
+//! `(position.x + scale * tx - camera_x * parallax, position.y + scale * ty)`.
+//!
+//! Invariants of a [`Scene`] returned by [`load_scene`]: the viewport is
+//! non-empty, there is at least one layer, layer names are unique and safe
+//! as file names, every scale is positive and finite, every number finite,
+//! `samples >= 1`, every image exists, every cut's settings validate, and a
+//! layer has either cut settings or a mesh file, not both.
+
+use crate::error::FileError;
+use crate::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+use serde::Deserialize;
+use std::collections::HashSet;
+use std::path::{Path, PathBuf};
+
+/// Largest viewport side accepted.
+pub const MAX_VIEWPORT: u32 = 16384;
+/// Most camera samples accepted.
+pub const MAX_SAMPLES: u32 = 4096;
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct SceneJson {
+    viewport: [u32; 2],
+    camera: CameraJson,
+    layers: Vec<LayerJson>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct CameraJson {
+    travel: f64,
+    samples: u32,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct LayerJson {
+    name: String,
+    image: PathBuf,
+    #[serde(default)]
+    cut: Option<CutJson>,
+    #[serde(default)]
+    mesh: Option<PathBuf>,
+    #[serde(default)]
+    position: [f64; 2],
+    #[serde(default = "one")]
+    scale: f64,
+    #[serde(default = "one")]
+    parallax: f64,
+    #[serde(default)]
+    repeat_x: bool,
+}
+
+fn one() -> f64 {
+    1.0
+}
+
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct CutJson {
+    budget: Option<usize>,
+    filter: Option<FilterMode>,
+    mip_levels: Option<u32>,
+    wrap: Option<Wrap>,
+    opaque_min: Option<u8>,
+    visible_min: Option<u8>,
+}
+
+impl CutJson {
+    fn settings(&self) -> CutSettings {
+        let d = CutSettings::default();
+        CutSettings {
+            budget: self.budget.unwrap_or(d.budget),
+            filter: Filter {
+                mode: self.filter.unwrap_or(d.filter.mode),
+                mip_levels: self.mip_levels.unwrap_or(d.filter.mip_levels),
+            },
+            alpha: AlphaThresholds {
+                opaque_min: self.opaque_min.unwrap_or(d.alpha.opaque_min),
+                visible_min: self.visible_min.unwrap_or(d.alpha.visible_min),
+            },
+            wrap: self.wrap.unwrap_or(d.wrap),
+        }
+    }
+}
+
+/// Where a layer's meshes come from.
+#[derive(Clone, Debug, PartialEq)]
+pub enum MeshSource {
+    /// Cut from the image with these settings when the scene is loaded.
+    Cut(CutSettings),
+    /// Read from a mesh file (resolved path).
+    File(PathBuf),
+}
+
+/// One layer of a scene, paths resolved against the scene file's folder.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LayerSpec {
+    pub name: String,
+    pub image: PathBuf,
+    pub mesh: MeshSource,
+    /// Top-left on screen at camera 0, pixels.
+    pub position: [f64; 2],
+    /// Screen pixels per texel.
+    pub scale: f64,
+    /// Screen pixels the layer moves left per pixel of camera travel.
+    pub parallax: f64,
+    /// Tile horizontally to fill the viewport's width.
+    pub repeat_x: bool,
+}
+
+/// A loaded, validated scene.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Scene {
+    /// The scene file.
+    pub path: PathBuf,
+    pub viewport: [u32; 2],
+    /// Pixels of horizontal camera travel.
+    pub travel: f64,
+    /// Camera positions, evenly spaced over [0, travel].
+    pub samples: u32,
+    /// Back to front.
+    pub layers: Vec<LayerSpec>,
+}
+
+impl Scene {
+    /// The camera positions: `samples` values evenly spaced over
+    /// [0, travel], both ends included (one sample: 0).
+    pub fn camera_positions(&self) -> Vec<f64> {
+        let n = self.samples;
+        (0..n)
+            .map(|i| {
+                if n == 1 {
+                    0.0
+                } else {
+                    self.travel * i as f64 / (n - 1) as f64
+                }
+            })
+            .collect()
+    }
+
+    /// Every file the scene reads: the scene file, images, mesh files.
+    pub fn inputs(&self) -> Vec<PathBuf> {
+        let mut v = vec![self.path.clone()];
+        for l in &self.layers {
+            v.push(l.image.clone());
+            if let MeshSource::File(m) = &l.mesh {
+                v.push(m.clone());
+            }
+        }
+        v
+    }
+}
+
+/// Reads and validates a scene file.
+pub fn load_scene(path: &Path) -> Result<Scene, FileError> {
+    let text = std::fs::read_to_string(path).map_err(|e| {
+        FileError::new(
+            path,
+            format!("cannot be read ({e})"),
+            "check the path to the scene file",
+        )
+    })?;
+    parse_scene(path, &text)
+}
+
+/// Parses and validates scene text (`path` names the file in errors and
+/// anchors relative paths).
+pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
+    let json: SceneJson = serde_json::from_str(text).map_err(|e| json_error(path, &e))?;
+    let dir = path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let bad = |what: String, hint: &str| Err(FileError::new(path, what, hint));
+    let [w, h] = json.viewport;
+    if w == 0 || h == 0 || w > MAX_VIEWPORT || h > MAX_VIEWPORT {
+        return bad(
+            format!("viewport {w} x {h} is not a usable screen size"),
+            &format!("give \"viewport\": [width, height] in pixels, each from 1 to {MAX_VIEWPORT}"),
+        );
+    }
+    let cam = &json.camera;
+    if cam.samples == 0 || cam.samples > MAX_SAMPLES {
+        return bad(
+            format!(
+                "camera.samples is {}: the scene needs at least one camera position to be scored",
+                cam.samples
+            ),
+            &format!("give \"samples\" from 1 to {MAX_SAMPLES} (16 is plenty for a smooth pan)"),
+        );
+    }
+    if !cam.travel.is_finite() {
+        return bad(
+            "camera.travel is not a finite number".into(),
+            "give the camera's horizontal travel in pixels",
+        );
+    }
+    if json.layers.is_empty() {
+        return bad(
+            "has no layers".into(),
+            "list the layers back to front under \"layers\"",
+        );
+    }
+    let mut names = HashSet::new();
+    let mut layers = Vec::with_capacity(json.layers.len());
+    for (i, l) in json.layers.into_iter().enumerate() {
+        let at = format!("layers[{i}] (\"{}\")", l.name);
+        if !valid_name(&l.name) {
+            return bad(
+                format!("layers[{i}]: name \"{}\" cannot name a mesh file", l.name),
+                "use letters, digits, '-', '_' and '.', not starting with '.'",
+            );
+        }
+        if !names.insert(l.name.clone()) {
+            return bad(
+                format!("{at}: the name is used by an earlier layer too"),
+                "give every layer its own name (the report and the mesh files are named after it)",
+            );
+        }
+        if !(l.scale.is_finite() && l.scale > 0.0) {
+            return bad(
+                format!("{at}: scale {} is not a positive number", l.scale),
+                "give a scale above 0: screen pixels per texel (1 draws a texel as a pixel)",
+            );
+        }
+        if !(l.parallax.is_finite() && l.position.iter().all(|v| v.is_finite())) {
+            return bad(
+                format!("{at}: position or parallax is not a finite number"),
+                "give finite numbers",
+            );
+        }
+        let image = dir.join(&l.image);
+        if !image.is_file() {
+            return bad(
+                format!("{at}: image {} does not exist", image.display()),
+                "check the path; image and mesh paths are relative to the scene file's folder",
+            );
+        }
+        let mesh = match (l.cut, l.mesh) {
+            (Some(_), Some(_)) => {
+                return bad(
+                    format!("{at}: has both \"cut\" settings and a \"mesh\" file"),
+                    "keep one: \"cut\" to cut the layer when the scene is loaded, or \"mesh\" to use a mesh cut before",
+                )
+            }
+            (None, Some(m)) => {
+                let m = dir.join(m);
+                if !m.is_file() {
+                    return bad(
+                        format!("{at}: mesh file {} does not exist", m.display()),
+                        "check the path, or write it with `underdraw cut`, or give \"cut\" settings instead",
+                    );
+                }
+                MeshSource::File(m)
+            }
+            (cut, None) => {
+                let settings = cut.unwrap_or_default().settings();
+                if let Err(e) = settings.validate() {
+                    return bad(
+                        format!("{at}.cut: {e}"),
+                        "fix the layer's \"cut\" settings",
+                    );
+                }
+                MeshSource::Cut(settings)
+            }
+        };
+        layers.push(LayerSpec {
+            name: l.name,
+            image,
+            mesh,
+            position: l.position,
+            scale: l.scale,
+            parallax: l.parallax,
+            repeat_x: l.repeat_x,
+        });
+    }
+    Ok(Scene {
+        path: path.to_path_buf(),
+        viewport: json.viewport,
+        travel: cam.travel,
+        samples: cam.samples,
+        layers,
+    })
+}
+
+/// A name usable as `<name>.mesh.json`.
+fn valid_name(name: &str) -> bool {
+    !name.is_empty()
+        && name.len() <= 100
+        && !name.starts_with('.')
+        && name
+            .chars()
+            .all(|c| c.is_ascii_alphanumeric() || matches!(c, '-' | '_' | '.'))
+}
+
+/// A JSON error with its line and column; serde names an unknown key in its
+/// message (`unknown field `x``), and the position is the key's.
+fn json_error(path: &Path, e: &serde_json::Error) -> FileError {
+    use serde_json::error::Category;
+    let (line, col) = (e.line(), e.column());
+    // serde_json appends " at line L column C" to its message; keep the message alone.
+    let msg = e.to_string();
+    let msg = msg
+        .rsplit_once(" at line ")
+        .map(|(m, _)| m.to_string())
+        .unwrap_or(msg);
+    let (what, hint) = match e.classify() {
+        Category::Syntax | Category::Eof => (
+            "is not valid JSON",
+            "fix the JSON at that place (a missing comma, quote or bracket is the usual cause)",
+        ),
+        Category::Data if msg.starts_with("unknown field") => (
+            "has a key the scene format does not know",
+            "remove or rename the key; the keys are listed in the README's Scenes section",
+        ),
+        _ => (
+            "does not match the scene format",
+            "see the README's Scenes section for the keys and their types",
+        ),
+    };
+    FileError::new(
+        path,
+        format!("{what}: {msg}, at line {line}, column {col}"),
+        hint,
+    )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn scene_with(layers: &str) -> String {
+        format!(
+            r#"{{"viewport": [100, 50], "camera": {{"travel": 30, "samples": 4}}, "layers": [{layers}]}}"#
+        )
+    }
+
+    fn here() -> PathBuf {
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("demo-layers/x.scene.json")
+    }
+
+    #[test]
+    fn defaults_and_camera_positions() {
+        let s = parse_scene(&here(), &scene_with(r#"{"name": "a", "image": "sky.png"}"#)).unwrap();
+        let l = &s.layers[0];
+        assert_eq!(
+            (l.scale, l.parallax, l.position, l.repeat_x),
+            (1.0, 1.0, [0.0, 0.0], false)
+        );
+        assert_eq!(l.mesh, MeshSource::Cut(CutSettings::default()));
+        // 4 samples evenly spaced over [0, 30], both ends included
+        assert_eq!(s.camera_positions(), vec![0.0, 10.0, 20.0, 30.0]);
+    }
+
+    #[test]
+    fn cut_settings_override_defaults() {
+        let s = parse_scene(
+            &here(),
+            &scene_with(r#"{"name": "a", "image": "sky.png", "cut": {"budget": 12, "filter": "nearest", "wrap": "x", "opaque_min": 200}}"#),
+        )
+        .unwrap();
+        let MeshSource::Cut(c) = s.layers[0].mesh else {
+            panic!("expected cut settings")
+        };
+        assert_eq!(c.budget, 12);
+        assert_eq!(c.filter.mode, FilterMode::Nearest);
+        assert_eq!(c.wrap, Wrap::X);
+        assert_eq!(c.alpha.opaque_min, 200);
+        assert_eq!(c.alpha.visible_min, 1);
+    }
+
+    #[test]
+    fn unsafe_names_and_both_sources_are_refused() {
+        for name in ["", "../up", "a/b", ".hidden"] {
+            let text = scene_with(&format!(r#"{{"name": "{name}", "image": "sky.png"}}"#));
+            assert!(parse_scene(&here(), &text).is_err(), "{name}");
+        }
+        let text = scene_with(r#"{"name": "a", "image": "sky.png", "cut": {}, "mesh": "sky.png"}"#);
+        let e = parse_scene(&here(), &text).unwrap_err();
+        assert!(e.problem.contains("both"), "{e}");
+    }
+}

@@ -1,0 +1,17 @@
+//! Scenes: parallax layers on a simulated GPU, scored per drawing strategy,
+//! and a vertex total split over the layers.
+//!
+//! * [`file`]: the scene file and its validation ([`file::load_scene`]).
+//! * [`prepare`]: each layer's mesh, cut on the fly or read from a file.
+//! * [`draws`]: the draws of a frame per [`draws::Strategy`] and camera position.
+//! * [`score`]: every strategy at every camera sample rendered with
+//!   [`crate::frame::render`], summarized per strategy and per layer.
+//! * [`budget`]: the budget per layer for a vertex total, by marginal gain.
+//! * [`report`], [`run`]: the `underdraw scene` command's report and outputs.
+pub mod budget;
+pub mod draws;
+pub mod file;
+pub mod prepare;
+pub mod report;
+pub mod run;
+pub mod score;

@@ -1,0 +1,178 @@
+//! A scene's layers made ready to draw: each with its mesh, cut on the fly
+//! from its image or read from its mesh file.
+//!
+//! Invariants of a [`Layer`]: its mesh's indices all name vertices, its
+//! positions are finite, whole triangles, and its `size` is the image's.
+//! An image used by several layers is decoded once, and a cut shared by
+//! several layers (same image, same settings) is made once.
+
+use super::file::{LayerSpec, MeshSource, Scene};
+use crate::alpha::AlphaMap;
+use crate::cut::cut_layer;
+use crate::error::FileError;
+use crate::io::{load_alpha, load_mesh};
+use crate::mesh::LayerMesh;
+use crate::settings::CutSettings;
+use rayon::prelude::*;
+use std::collections::{HashMap, HashSet};
+use std::path::{Path, PathBuf};
+use std::sync::Arc;
+
+/// A layer of a scene with its mesh.
+#[derive(Clone, Debug)]
+pub struct Layer {
+    pub spec: LayerSpec,
+    pub mesh: LayerMesh,
+    /// The alpha map of a layer cut on the fly (to cut it again at other
+    /// budgets); `None` for a layer read from a mesh file.
+    pub alpha: Option<Arc<AlphaMap>>,
+    /// The cut's remarks.
+    pub notes: Vec<String>,
+}
+
+impl Layer {
+    /// The settings the layer was cut with (`None` for a mesh file).
+    pub fn cut_settings(&self) -> Option<CutSettings> {
+        match self.spec.mesh {
+            MeshSource::Cut(s) => Some(s),
+            MeshSource::File(_) => None,
+        }
+    }
+}
+
+/// The image's file name, recorded as the mesh's `source`.
+pub fn source_name(image: &Path) -> String {
+    image
+        .file_name()
+        .map(|n| n.to_string_lossy().into_owned())
+        .unwrap_or_default()
+}
+
+/// Decodes the images of the layers cut on the fly, each once, in parallel.
+pub fn decode_images(scene: &Scene) -> Result<HashMap<PathBuf, Arc<AlphaMap>>, FileError> {
+    let mut paths: Vec<&PathBuf> = scene
+        .layers
+        .iter()
+        .filter(|l| matches!(l.mesh, MeshSource::Cut(_)))
+        .map(|l| &l.image)
+        .collect();
+    paths.sort();
+    paths.dedup();
+    let maps: Vec<Result<(PathBuf, Arc<AlphaMap>), FileError>> = paths
+        .par_iter()
+        .map(|p| load_alpha(p).map(|m| ((*p).clone(), Arc::new(m))))
+        .collect();
+    maps.into_iter().collect()
+}
+
+/// Cuts each distinct (image, settings) pair once, in parallel.
+pub fn cut_all(
+    jobs: &[(PathBuf, CutSettings)],
+    maps: &HashMap<PathBuf, Arc<AlphaMap>>,
+) -> HashMap<(PathBuf, CutSettings), (LayerMesh, Vec<String>)> {
+    let unique: HashSet<&(PathBuf, CutSettings)> = jobs.iter().collect();
+    let unique: Vec<_> = unique.into_iter().collect();
+    unique
+        .par_iter()
+        .map(|(path, settings)| {
+            let out = cut_layer(&maps[path], &source_name(path), settings);
+            ((path.clone(), *settings), (out.mesh, out.notes))
+        })
+        .collect()
+}
+
+/// Loads every layer's mesh: cuts the layers with cut settings (in
+/// parallel), reads the mesh files and checks them against their images.
+pub fn prepare_layers(scene: &Scene) -> Result<Vec<Layer>, FileError> {
+    let maps = decode_images(scene)?;
+    let jobs: Vec<(PathBuf, CutSettings)> = scene
+        .layers
+        .iter()
+        .filter_map(|l| match l.mesh {
+            MeshSource::Cut(s) => Some((l.image.clone(), s)),
+            MeshSource::File(_) => None,
+        })
+        .collect();
+    let cuts = cut_all(&jobs, &maps);
+    scene
+        .layers
+        .iter()
+        .map(|spec| match &spec.mesh {
+            MeshSource::Cut(s) => {
+                let (mesh, notes) = cuts[&(spec.image.clone(), *s)].clone();
+                Ok(Layer {
+                    spec: spec.clone(),
+                    mesh,
+                    alpha: Some(maps[&spec.image].clone()),
+                    notes,
+                })
+            }
+            MeshSource::File(path) => {
+                let mesh = load_mesh(path)?;
+                check_mesh_file(path, &mesh, &spec.image)?;
+                Ok(Layer {
+                    spec: spec.clone(),
+                    mesh,
+                    alpha: None,
+                    notes: Vec::new(),
+                })
+            }
+        })
+        .collect()
+}
+
+/// What drawing a mesh file needs: whole triangles, indices naming vertices,
+/// finite positions, and the size of the layer's image.
+fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), FileError> {
+    let hint = "cut the layer again with `underdraw cut`";
+    let n = mesh.positions.len() / 2;
+    if mesh.positions.len() % 2 != 0 || mesh.positions.iter().any(|v| !v.is_finite()) {
+        return Err(FileError::new(
+            path,
+            "has an odd number of position coordinates or a coordinate that is not finite",
+            hint,
+        ));
+    }
+    for (list, name) in [(&mesh.opaque, "opaque"), (&mesh.blended, "blended")] {
+        if list.indices.len() % 3 != 0 {
+            return Err(FileError::new(
+                path,
+                format!("its {name} index list is not a whole number of triangles"),
+                hint,
+            ));
+        }
+        if let Some(i) = list.indices.iter().find(|&&i| i as usize >= n) {
+            return Err(FileError::new(
+                path,
+                format!("its {name} index {i} names no vertex (the mesh has {n})"),
+                hint,
+            ));
+        }
+    }
+    let dims = image::ImageReader::open(image)
+        .and_then(|r| r.with_guessed_format())
+        .map_err(|e| e.to_string())
+        .and_then(|r| r.into_dimensions().map_err(|e| e.to_string()))
+        .map_err(|e| {
+            FileError::new(
+                image,
+                format!("cannot be read as an image ({e})"),
+                "export the layer as PNG",
+            )
+        })?;
+    if [dims.0, dims.1] != mesh.size {
+        return Err(FileError::new(
+            path,
+            format!(
+                "was cut for a {} x {} layer, but {} is {} x {}",
+                mesh.size[0],
+                mesh.size[1],
+                image.display(),
+                dims.0,
+                dims.1
+            ),
+            "cut the mesh from this image again, or point the layer at the image it was cut from",
+        ));
+    }
+    Ok(())
+}

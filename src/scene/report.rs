@@ -1,0 +1,129 @@
+//! The scene report: what `underdraw scene` prints and writes to
+//! `scene-report.json`.
+
+use super::budget::AllocationReport;
+use super::score::{LayerReport, StrategyReport};
+use serde::Serialize;
+
+/// A heatmap written, and the frame it shows.
+#[derive(Clone, Debug, Serialize)]
+pub struct HeatmapInfo {
+    pub file: String,
+    pub sample: usize,
+    pub camera_x: f64,
+    /// The colour scale's top count (`top` and more share the last colour).
+    pub top: u32,
+}
+
+#[derive(Clone, Debug, Serialize)]
+pub struct SceneReport {
+    pub scene: String,
+    pub viewport: [u32; 2],
+    pub camera_positions: Vec<f64>,
+    pub strategies: Vec<StrategyReport>,
+    pub layers: Vec<LayerReport>,
+    pub heatmaps: Vec<HeatmapInfo>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub allocation: Option<AllocationReport>,
+    /// The cuts' remarks, prefixed by the layer's name.
+    pub notes: Vec<String>,
+    /// Files written, the report last.
+    pub outputs: Vec<String>,
+}
+
+fn opt(v: Option<usize>) -> String {
+    v.map_or("file".to_string(), |b| b.to_string())
+}
+
+impl SceneReport {
+    /// The report as the plain-text tables `underdraw scene` prints.
+    pub fn table(&self) -> String {
+        let mut s = format!(
+            "scene {}: {} x {}, {} layers, {} camera samples from x = {} to {}\n\n",
+            self.scene,
+            self.viewport[0],
+            self.viewport[1],
+            self.layers.len(),
+            self.camera_positions.len(),
+            self.camera_positions.first().copied().unwrap_or(0.0),
+            self.camera_positions.last().copied().unwrap_or(0.0),
+        );
+        s += &format!(
+            "{:<8} {:>9} {:>14} {:>12} {:>9} {:>6} {:>8}\n",
+            "strategy", "overdraw", "peak (sample)", "lanes", "vertices", "draws", "vert/tri"
+        );
+        for r in &self.strategies {
+            s += &format!(
+                "{:<8} {:>9.3} {:>9.3} ({:>2}) {:>12.0} {:>9.0} {:>6.1} {:>8.2}\n",
+                r.strategy.name(),
+                r.mean_overdraw,
+                r.peak_overdraw,
+                r.peak_sample,
+                r.per_frame.lanes,
+                r.per_frame.vertices,
+                r.per_frame.draws,
+                r.vertices_per_triangle
+            );
+        }
+        s += "(overdraw: fragments per pixel, mean over the samples; lanes, vertices, draws: per frame)\n\n";
+        s += &format!(
+            "{:<16} {:>6} {:>8} {:>14} {:>14} {:>9} {:>11}\n",
+            "layer",
+            "budget",
+            "vertices",
+            "saved vs outl.",
+            "saved vs rect",
+            "+vertices",
+            "saved/vert."
+        );
+        for l in &self.layers {
+            s += &format!(
+                "{:<16} {:>6} {:>8} {:>14.0} {:>14.0} {:>9.0} {:>11}\n",
+                l.name,
+                opt(l.budget),
+                l.mesh_vertices,
+                l.saved_vs_outline,
+                l.saved_vs_rect,
+                l.vertices_added,
+                l.saved_per_vertex
+                    .map_or("-".to_string(), |v| format!("{v:.0}"))
+            );
+        }
+        s += "(split against outline and rect: fragments saved and vertices added per frame)\n";
+        if let Some(a) = &self.allocation {
+            s += &format!(
+                "\nallocation of {} vertices (split strategy, scored on every sample):\n",
+                a.vertex_total
+            );
+            s += &format!(
+                "{:<16} {:>6} {:>8} {:>12} {:>8}\n",
+                "layer", "budget", "vertices", "even budget", "vertices"
+            );
+            for l in &a.layers {
+                s += &format!(
+                    "{:<16} {:>6} {:>8} {:>12} {:>8}\n",
+                    l.name,
+                    opt(l.budget),
+                    l.vertices,
+                    opt(l.even_budget),
+                    l.even_vertices
+                );
+            }
+            for (name, r) in [("allocated", &a.allocated), ("even spread", &a.even)] {
+                s += &format!(
+                    "{:<12} {:>6} vertices, {:>10.0} fragments per frame, overdraw {:.3}\n",
+                    name, r.vertices, r.fragments, r.overdraw
+                );
+            }
+            s += &format!(
+                "saved against the even spread: {:.0} fragments per frame\n",
+                a.saved_vs_even
+            );
+        }
+        for n in &self.notes {
+            s += &format!("note: {n}\n");
+        }
+        s += &format!("wrote {}\n", self.outputs.join(", "));
+        s
+    }
+}

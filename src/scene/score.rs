@@ -1,0 +1,235 @@
+//! Scoring a scene: every strategy at every camera sample rendered on the
+//! simulated GPU ([`crate::frame::render`]), summed per frame and per layer.
+//!
+//! Overdraw is fragments shaded per viewport pixel. A strategy's **mean**
+//! overdraw is the mean over the camera samples of each frame's overdraw,
+//! its **peak** the highest frame's. Per-frame numbers (lanes, vertices,
+//! draws) are means over the samples; vertices per triangle is the ratio
+//! of the sums.
+
+use super::draws::{frame_draws, Strategy};
+use super::file::LayerSpec;
+use crate::frame::{render, FrameResult};
+use crate::mesh::LayerMesh;
+use rayon::prelude::*;
+use serde::{Deserialize, Serialize};
+use std::collections::HashMap;
+
+/// Work on the simulated GPU, summed or averaged.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Serialize, Deserialize)]
+pub struct Work {
+    pub fragments: f64,
+    pub lanes: f64,
+    pub vertices: f64,
+    pub triangles: f64,
+    pub draws: f64,
+}
+
+impl Work {
+    fn add(&mut self, o: &Work) {
+        self.fragments += o.fragments;
+        self.lanes += o.lanes;
+        self.vertices += o.vertices;
+        self.triangles += o.triangles;
+        self.draws += o.draws;
+    }
+    fn scaled(mut self, k: f64) -> Work {
+        self.fragments *= k;
+        self.lanes *= k;
+        self.vertices *= k;
+        self.triangles *= k;
+        self.draws *= k;
+        self
+    }
+}
+
+/// One rendered frame, summarized.
+#[derive(Clone, Debug)]
+pub struct FrameScore {
+    pub strategy: Strategy,
+    /// Index of the camera sample.
+    pub sample: usize,
+    pub total: Work,
+    /// Per layer, in the scene's order.
+    pub per_layer: Vec<Work>,
+    /// Most fragments shaded at one pixel.
+    pub max_pixel: u32,
+}
+
+/// Renders one frame.
+pub fn render_frame(
+    strategy: Strategy,
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+    camera_x: f64,
+) -> FrameResult {
+    render(
+        viewport,
+        &frame_draws(strategy, specs, meshes, viewport, camera_x),
+    )
+}
+
+/// Renders every strategy at every camera position, in parallel.
+pub fn score_frames(
+    strategies: &[Strategy],
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+    cameras: &[f64],
+) -> Vec<FrameScore> {
+    let index: HashMap<&str, usize> = specs
+        .iter()
+        .enumerate()
+        .map(|(i, s)| (s.name.as_str(), i))
+        .collect();
+    let jobs: Vec<(Strategy, usize)> = strategies
+        .iter()
+        .flat_map(|&s| (0..cameras.len()).map(move |k| (s, k)))
+        .collect();
+    jobs.par_iter()
+        .map(|&(strategy, sample)| {
+            let draws = frame_draws(strategy, specs, meshes, viewport, cameras[sample]);
+            let r = render(viewport, &draws);
+            let mut per_layer = vec![Work::default(); specs.len()];
+            for (d, st) in draws.iter().zip(&r.per_draw) {
+                per_layer[index[d.layer.as_str()]].add(&Work {
+                    fragments: st.fragments as f64,
+                    lanes: st.lanes as f64,
+                    vertices: st.vertices as f64,
+                    triangles: st.triangles as f64,
+                    draws: 1.0,
+                });
+            }
+            let mut total = Work::default();
+            per_layer.iter().for_each(|w| total.add(w));
+            FrameScore {
+                strategy,
+                sample,
+                total,
+                per_layer,
+                max_pixel: r.counts.iter().copied().max().unwrap_or(0),
+            }
+        })
+        .collect()
+}
+
+/// A strategy's numbers over the camera samples.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StrategyReport {
+    pub strategy: Strategy,
+    /// Mean over the samples of the frame's fragments per pixel.
+    pub mean_overdraw: f64,
+    /// The highest frame's fragments per pixel, and its sample.
+    pub peak_overdraw: f64,
+    pub peak_sample: usize,
+    /// Most fragments at one pixel in any frame.
+    pub max_pixel: u32,
+    /// Per frame, means over the samples.
+    pub per_frame: Work,
+    /// Vertices / triangles, over all frames.
+    pub vertices_per_triangle: f64,
+}
+
+/// One layer's numbers, per frame (means over the samples).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct LayerReport {
+    pub name: String,
+    /// The budget it was cut to (`None` for a mesh file without one).
+    pub budget: Option<usize>,
+    pub mesh_vertices: usize,
+    pub rect: Work,
+    pub outline: Work,
+    pub split: Work,
+    /// Fragments split shades fewer than outline and than rect.
+    pub saved_vs_outline: f64,
+    pub saved_vs_rect: f64,
+    /// Vertices split processes more than rect.
+    pub vertices_added: f64,
+    /// saved_vs_rect / vertices_added (`None` when no vertex is added).
+    pub saved_per_vertex: Option<f64>,
+}
+
+/// Means per strategy and per layer from the frames of [`score_frames`].
+pub fn summarize(
+    frames: &[FrameScore],
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+) -> (Vec<StrategyReport>, Vec<LayerReport>) {
+    let pixels = viewport[0] as f64 * viewport[1] as f64;
+    let mut strategies = Vec::new();
+    let mut layer_means: HashMap<Strategy, Vec<Work>> = HashMap::new();
+    for s in Strategy::ALL {
+        let fs: Vec<&FrameScore> = frames.iter().filter(|f| f.strategy == s).collect();
+        if fs.is_empty() {
+            continue;
+        }
+        let k = 1.0 / fs.len() as f64;
+        let mut sum = Work::default();
+        let mut layers = vec![Work::default(); specs.len()];
+        for f in &fs {
+            sum.add(&f.total);
+            for (a, w) in layers.iter_mut().zip(&f.per_layer) {
+                a.add(w);
+            }
+        }
+        let peak = fs
+            .iter()
+            .max_by(|a, b| a.total.fragments.total_cmp(&b.total.fragments))
+            .expect("a frame");
+        strategies.push(StrategyReport {
+            strategy: s,
+            mean_overdraw: sum.fragments * k / pixels,
+            peak_overdraw: peak.total.fragments / pixels,
+            peak_sample: peak.sample,
+            max_pixel: fs.iter().map(|f| f.max_pixel).max().unwrap_or(0),
+            per_frame: sum.scaled(k),
+            vertices_per_triangle: if sum.triangles > 0.0 {
+                sum.vertices / sum.triangles
+            } else {
+                0.0
+            },
+        });
+        layer_means.insert(s, layers.into_iter().map(|w| w.scaled(k)).collect());
+    }
+    let get = |s: Strategy, i: usize| layer_means.get(&s).map(|v| v[i]).unwrap_or_default();
+    let layers = specs
+        .iter()
+        .enumerate()
+        .map(|(i, spec)| {
+            let (rect, outline, split) = (
+                get(Strategy::Rect, i),
+                get(Strategy::Outline, i),
+                get(Strategy::Split, i),
+            );
+            let saved_vs_rect = rect.fragments - split.fragments;
+            let vertices_added = split.vertices - rect.vertices;
+            LayerReport {
+                name: spec.name.clone(),
+                budget: meshes[i].budget,
+                mesh_vertices: meshes[i].vertex_count(),
+                rect,
+                outline,
+                split,
+                saved_vs_outline: outline.fragments - split.fragments,
+                saved_vs_rect,
+                vertices_added,
+                saved_per_vertex: (vertices_added > 0.0).then(|| saved_vs_rect / vertices_added),
+            }
+        })
+        .collect();
+    (strategies, layers)
+}
+
+/// Mean fragments per frame of `strategy` over the camera positions.
+pub fn mean_fragments(
+    strategy: Strategy,
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+    cameras: &[f64],
+) -> f64 {
+    let frames = score_frames(&[strategy], specs, meshes, viewport, cameras);
+    frames.iter().map(|f| f.total.fragments).sum::<f64>() / frames.len().max(1) as f64
+}
