@@ -8,11 +8,12 @@
 
 use crate::alpha::{AlphaMap, Regions};
 use crate::check::check_mesh;
-use crate::fit::{open_holes, Class, Fit, Fitter};
+use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
-use crate::outline::{trace, Point};
+use crate::outline::Point;
 use crate::settings::CutSettings;
 use crate::triangulate::{triangulate, Triangulation};
+use rayon::prelude::*;
 
 /// A cut layer and what the user should know about it.
 #[derive(Clone, Debug)]
@@ -35,24 +36,40 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     safe.remove_pinches();
     let mut cover = regions.cover.clone();
     cover.fill_pinches();
-    let cover_rings = trace(&cover);
-    let mut fitter = Fitter::new(trace(&safe), cover_rings.clone(), &safe, &cover);
-    fitter.fit(settings.budget);
-    let mut best = (fitter.objective(), fitter.result());
+    let cover = Prepared::new(&cover, false);
+    let plain = Prepared::new(&safe, true);
     // An island with more holes than the budget can keep may do better as
-    // one ring with notches: try the safe region with its holes opened.
-    if best.1.opaque.iter().map(|p| p.holes.len()).sum::<usize>() > 0
-        || (best.1.opaque.is_empty() && !safe.is_empty())
-    {
-        let mut opened = safe.clone();
-        open_holes(&mut opened);
-        opened.remove_pinches();
-        let mut other = Fitter::new(trace(&opened), cover_rings, &opened, &cover);
-        other.fit(settings.budget);
-        if other.objective() > best.0 {
-            best = (other.objective(), other.result());
-        }
+    // one ring with notches: then also try the safe region with its holes
+    // opened. Each region is fitted with both rankings of large edits; the
+    // best result (opaque area minus covering area) wins.
+    let opened = plain.has_holes().then(|| {
+        let mut m = safe.clone();
+        open_holes(&mut m);
+        m.remove_pinches();
+        Prepared::new(&m, true)
+    });
+    let mut variants: Vec<(&Prepared, bool)> = vec![(&plain, true), (&plain, false)];
+    if let Some(o) = &opened {
+        variants.push((o, true));
+        variants.push((o, false));
     }
+    let results: Vec<(i64, Fit)> = variants
+        .par_iter()
+        .map(|&(safe, cap)| {
+            let mut fitter = Fitter::new(safe, &cover);
+            fitter.set_cap_savings(cap);
+            fitter.fit(settings.budget);
+            (fitter.objective(), fitter.result())
+        })
+        .collect();
+    // the first of the best, so the choice does not depend on scheduling
+    let mut best = results
+        .into_iter()
+        .enumerate()
+        .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
+        .map(|(_, r)| r)
+        .expect("at least one variant");
+    let _ = &mut best;
     Outlines {
         regions,
         fit: best.1,

@@ -41,6 +41,11 @@ const UP: u8 = 4;
 
 /// Traces every boundary of `mask`. The mask must have no pinches.
 pub fn trace(mask: &Mask) -> Vec<Ring> {
+    trace_labelled(mask, &label(mask))
+}
+
+/// [`trace`] with the mask's component labels ([`label`]) already made.
+pub fn trace_labelled(mask: &Mask, labels: &[u32]) -> Vec<Ring> {
     let (w, h) = (mask.width, mask.height);
     if w == 0 || h == 0 || mask.is_empty() {
         return Vec::new();
@@ -79,7 +84,6 @@ pub fn trace(mask: &Mask) -> Vec<Ring> {
             }
         }
     }
-    let labels = label(mask);
     let mut rings = Vec::new();
     for start in 0..out.len() {
         if out[start] == 0 {

@@ -194,6 +194,38 @@ struct Eval {
     point: Point,
 }
 
+/// A region made ready for fitting: its exact rings, the row prefix sums
+/// the fitter's containment tests read, and each island's largest
+/// rectangle. Made once per region and shared by every fit of it.
+pub struct Prepared {
+    pub rings: Vec<Ring>,
+    prefix: RowPrefix,
+    rects: HashMap<u32, [i64; 4]>,
+    size: Point,
+}
+
+impl Prepared {
+    /// Traces `mask` (which must have no pinches); `with_rects` also finds
+    /// the islands' largest rectangles (wanted for the safe region).
+    pub fn new(mask: &Mask, with_rects: bool) -> Prepared {
+        let labels = crate::outline::label(mask);
+        Prepared {
+            rings: crate::outline::trace_labelled(mask, &labels),
+            prefix: mask.row_prefix(),
+            rects: if with_rects {
+                rects::largest_rectangles(mask, &labels)
+            } else {
+                HashMap::new()
+            },
+            size: [mask.width as i64, mask.height as i64],
+        }
+    }
+    /// Whether the region has a hole.
+    pub fn has_holes(&self) -> bool {
+        self.rings.iter().any(|r| r.hole)
+    }
+}
+
 /// The fitter's state; see the module docs.
 pub struct Fitter<'a> {
     verts: Vec<Vert>,
@@ -202,24 +234,19 @@ pub struct Fitter<'a> {
     grids: [BucketGrid; 2],
     refs: HashMap<Point, u32>,
     distinct: usize,
-    safe: RowPrefix,
-    cover: RowPrefix,
+    safe: &'a RowPrefix,
+    cover: &'a RowPrefix,
     size: Point,
     heap: BinaryHeap<Cand>,
     budget: usize,
-    _m: std::marker::PhantomData<&'a ()>,
+    cap_savings: bool,
 }
 
 impl<'a> Fitter<'a> {
     /// Starts from exact rings of the safe region (`opaque`) and of the
     /// must-cover region (`cover`), with the masks they were traced from.
-    pub fn new(
-        opaque: Vec<Ring>,
-        cover: Vec<Ring>,
-        safe: &'a Mask,
-        must_cover: &'a Mask,
-    ) -> Fitter<'a> {
-        let size = [safe.width as i64, safe.height as i64];
+    pub fn new(opaque: &'a Prepared, cover: &'a Prepared) -> Fitter<'a> {
+        let size = opaque.size;
         let mut f = Fitter {
             verts: Vec::new(),
             rings: Vec::new(),
@@ -230,14 +257,15 @@ impl<'a> Fitter<'a> {
             ],
             refs: HashMap::new(),
             distinct: 0,
-            safe: safe.row_prefix(),
-            cover: must_cover.row_prefix(),
+            safe: &opaque.prefix,
+            cover: &cover.prefix,
             size,
             heap: BinaryHeap::new(),
             budget: usize::MAX,
-            _m: std::marker::PhantomData,
+            cap_savings: true,
         };
-        let rects = rects::largest_rectangles(safe, &crate::outline::label(safe));
+        let rects = &opaque.rects;
+        let (opaque, cover) = (opaque.rings.clone(), cover.rings.clone());
         for (class, rings) in [(Class::Opaque, opaque), (Class::Cover, cover)] {
             let mut comp_of: HashMap<u32, u32> = HashMap::new();
             for r in rings {
@@ -320,6 +348,15 @@ impl<'a> Fitter<'a> {
         self.refs.get(&p).copied().unwrap_or(0)
     }
 
+    /// Whether an edit that saves more vertices than the budget still needs
+    /// is ranked by the needed ones only (the default), or by all it saves.
+    /// The first avoids overshooting the budget with one large edit; the
+    /// second lets a large edit (an island with many holes replaced by its
+    /// largest rectangle) win before many small ones are spent.
+    pub fn set_cap_savings(&mut self, cap: bool) {
+        self.cap_savings = cap;
+    }
+
     /// Opaque area minus covering area, in quarter texels (higher is better).
     pub fn objective(&self) -> i64 {
         let mut total = 0i64;
@@ -380,9 +417,13 @@ impl<'a> Fitter<'a> {
             if e.saved <= 0 {
                 return;
             }
-            // vertices saved beyond what the budget needs are worth nothing
-            let need = (self.distinct as i64 - self.budget as i64).max(1);
-            e.cost as f64 / e.saved.min(need) as f64
+            if self.cap_savings {
+                // vertices saved beyond what the budget needs are worth nothing
+                let need = (self.distinct as i64 - self.budget as i64).max(1);
+                e.cost as f64 / e.saved.min(need) as f64
+            } else {
+                e.cost as f64 / e.saved as f64
+            }
         };
         self.heap.push(Cand {
             key,
