@@ -61,7 +61,7 @@ impl Draw {
                 self.depth
             ));
         }
-        if self.positions.len() % 2 != 0 {
+        if !self.positions.len().is_multiple_of(2) {
             return Err(format!(
                 "layer {layer}: {} position coordinates is an odd number; positions are x, y pairs",
                 self.positions.len()
@@ -73,7 +73,7 @@ impl Draw {
                 self.positions[i]
             ));
         }
-        if self.indices.len() % 3 != 0 {
+        if !self.indices.len().is_multiple_of(3) {
             return Err(format!(
                 "layer {layer}: {} indices is not a whole number of triangles (a multiple of 3)",
                 self.indices.len()
@@ -230,5 +230,69 @@ pub fn render(viewport: [u32; 2], draws: &[Draw]) -> FrameResult {
         counts,
         per_draw,
         total,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn square() -> Draw {
+        Draw {
+            layer: "sky".into(),
+            blend: false,
+            depth: 0.5,
+            depth_test: true,
+            depth_write: true,
+            positions: vec![0.0, 0.0, 4.0, 0.0, 4.0, 4.0, 0.0, 4.0],
+            indices: vec![0, 1, 2, 0, 2, 3],
+        }
+    }
+
+    #[test]
+    fn validate_names_the_layer_and_the_problem() {
+        assert_eq!(square().validate(), Ok(()));
+        type Spoil = fn(&mut Draw);
+        let bad: [(Spoil, &str); 5] = [
+            (|d| d.depth = 1.5, "depth"),
+            (|d| d.depth = f32::NAN, "depth"),
+            (|d| d.positions.push(1.0), "odd"),
+            (|d| d.positions[3] = f32::INFINITY, "finite"),
+            (|d| d.indices.push(0), "multiple of 3"),
+        ];
+        for (spoil, word) in bad {
+            let mut d = square();
+            spoil(&mut d);
+            let e = d.validate().unwrap_err();
+            assert!(e.contains("sky") && e.contains(word), "{e}");
+        }
+        let mut d = square();
+        d.indices[4] = 4;
+        let e = d.validate().unwrap_err();
+        assert!(e.contains("index 4") && e.contains("4 vertices"), "{e}");
+    }
+
+    #[test]
+    #[should_panic(expected = "draw 1")]
+    fn render_refuses_an_invalid_draw() {
+        let mut d = square();
+        d.indices[0] = 9;
+        render([8, 8], &[square(), d]);
+    }
+
+    #[test]
+    fn equal_depth_fails_less_and_totals_add_up() {
+        // LESS: a second draw at the same depth is hidden by the first.
+        let r = render([8, 8], &[square(), square()]);
+        assert_eq!(r.per_draw[1].fragments, 0);
+        assert_eq!(r.per_draw[1].lanes, 0);
+        assert_eq!(r.total.fragments, 16);
+        // 4 quads; the diagonal (0, 0)-(4, 4) splits quads (0, 0) and (1, 1)
+        // between the two triangles, which pay for them both: 6 x 4 lanes.
+        assert_eq!(r.total.lanes, 24);
+        assert_eq!(r.total.vertices, 8);
+        assert_eq!(r.total.triangles, 4);
+        assert_eq!(r.fragments_per_pixel(), 16.0 / 64.0);
+        assert_eq!(render([0, 0], &[square()]).fragments_per_pixel(), 0.0);
     }
 }
