@@ -126,7 +126,7 @@ pub fn prepare_layers(scene: &Scene) -> Result<Vec<Layer>, FileError> {
 fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), FileError> {
     let hint = "cut the layer again with `underdraw cut`";
     let n = mesh.positions.len() / 2;
-    if mesh.positions.len() % 2 != 0 || mesh.positions.iter().any(|v| !v.is_finite()) {
+    if !mesh.positions.len().is_multiple_of(2) || mesh.positions.iter().any(|v| !v.is_finite()) {
         return Err(FileError::new(
             path,
             "has an odd number of position coordinates or a coordinate that is not finite",
@@ -134,7 +134,7 @@ fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), Fi
         ));
     }
     for (list, name) in [(&mesh.opaque, "opaque"), (&mesh.blended, "blended")] {
-        if list.indices.len() % 3 != 0 {
+        if !list.indices.len().is_multiple_of(3) {
             return Err(FileError::new(
                 path,
                 format!("its {name} index list is not a whole number of triangles"),

@@ -1,0 +1,390 @@
+//! `underdraw scene` on the demo scene and on broken scene files, through
+//! the binary as a user runs it.
+//!
+//! The demo scene is run once (with a frame dump and a vertex total) and
+//! its outputs are shared by the tests below; each broken scene lives in
+//! its own folder under the system temp dir, removed when the test ends.
+
+use image::{ImageFormat, Rgba, RgbaImage};
+use serde_json::Value;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::OnceLock;
+use underdraw::check::check_mesh;
+use underdraw::frame::render;
+use underdraw::io::{load_alpha, load_mesh};
+use underdraw::scene::run::load_frame_dump;
+
+const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
+const DUMPED: usize = 5;
+const VERTEX_TOTAL: usize = 360;
+
+fn root() -> PathBuf {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// A fresh folder, removed on drop.
+struct TempDir(PathBuf);
+
+impl TempDir {
+    fn new(test: &str) -> TempDir {
+        static N: AtomicUsize = AtomicUsize::new(0);
+        let dir = std::env::temp_dir().join(format!(
+            "underdraw-scene-{test}-{}-{}",
+            std::process::id(),
+            N.fetch_add(1, Ordering::Relaxed)
+        ));
+        let _ = fs::remove_dir_all(&dir);
+        fs::create_dir_all(&dir).expect("create the test folder");
+        TempDir(dir)
+    }
+}
+
+impl Drop for TempDir {
+    fn drop(&mut self) {
+        let _ = fs::remove_dir_all(&self.0);
+    }
+}
+
+struct DemoRun {
+    _dir: TempDir,
+    out: PathBuf,
+    report: Value,
+}
+
+/// The demo scene, run once for all the tests of this file.
+fn demo() -> &'static DemoRun {
+    static RUN: OnceLock<DemoRun> = OnceLock::new();
+    RUN.get_or_init(|| {
+        let dir = TempDir::new("demo");
+        let out = dir.0.join("out");
+        let o = Command::new(BIN)
+            .arg("scene")
+            .arg(root().join("demo-layers/harbour.scene.json"))
+            .arg("--out")
+            .arg(&out)
+            .args(["--dump-frame", &DUMPED.to_string()])
+            .args(["--vertex-total", &VERTEX_TOTAL.to_string()])
+            .output()
+            .expect("run underdraw");
+        assert!(
+            o.status.success(),
+            "scene failed: {}",
+            String::from_utf8_lossy(&o.stderr)
+        );
+        let text = fs::read_to_string(out.join("scene-report.json")).expect("the report");
+        DemoRun {
+            report: serde_json::from_str(&text).expect("the report is JSON"),
+            out,
+            _dir: dir,
+        }
+    })
+}
+
+fn strategy(report: &Value, name: &str) -> Value {
+    report["strategies"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["strategy"] == name)
+        .unwrap_or_else(|| panic!("no strategy {name}"))
+        .clone()
+}
+
+/// Drawing only what is visible shades less than drawing rectangles, and
+/// culling behind opaque meshes less again: the point of cutting meshes
+/// (common practice, no source).
+#[test]
+fn split_shades_less_than_outline_and_outline_less_than_rect() {
+    let r = &demo().report;
+    let mean = |s| strategy(r, s)["mean_overdraw"].as_f64().unwrap();
+    let (rect, outline, split) = (mean("rect"), mean("outline"), mean("split"));
+    assert!(
+        split < outline && outline < rect,
+        "split {split}, outline {outline}, rect {rect}"
+    );
+    for s in ["rect", "outline", "split"] {
+        let st = strategy(r, s);
+        assert!(st["peak_overdraw"].as_f64().unwrap() >= st["mean_overdraw"].as_f64().unwrap());
+    }
+}
+
+/// With rect, every layer copy shades every pixel centre of its rectangle
+/// on screen: the rect strategy's fragments are the rectangles' areas
+/// clipped to the viewport, computed here from the scene file and the PNG
+/// headers alone, up to a pixel row or column per rectangle edge.
+#[test]
+fn rect_fragments_are_the_clipped_rectangle_areas() {
+    let scene_path = root().join("demo-layers/harbour.scene.json");
+    let scene: Value = serde_json::from_str(&fs::read_to_string(&scene_path).unwrap()).unwrap();
+    let (vw, vh) = (
+        scene["viewport"][0].as_f64().unwrap(),
+        scene["viewport"][1].as_f64().unwrap(),
+    );
+    let travel = scene["camera"]["travel"].as_f64().unwrap();
+    let samples = scene["camera"]["samples"].as_u64().unwrap() as usize;
+    let (mut area, mut slack) = (0.0, 0.0);
+    for k in 0..samples {
+        let cam = travel * k as f64 / (samples - 1) as f64;
+        for l in scene["layers"].as_array().unwrap() {
+            let img = root()
+                .join("demo-layers")
+                .join(l["image"].as_str().unwrap());
+            let (w, h) = image::image_dimensions(&img).unwrap();
+            let s = l["scale"].as_f64().unwrap_or(1.0);
+            let (w, h) = (w as f64 * s, h as f64 * s);
+            let x =
+                l["position"][0].as_f64().unwrap() - cam * l["parallax"].as_f64().unwrap_or(1.0);
+            let y = l["position"][1].as_f64().unwrap();
+            let rows = (y + h).min(vh) - y.max(0.0);
+            let cols = if l["repeat_x"].as_bool().unwrap_or(false) {
+                vw
+            } else {
+                (x + w).min(vw) - x.max(0.0)
+            };
+            if rows > 0.0 && cols > 0.0 {
+                area += rows * cols;
+                slack += 2.0 * (rows + cols);
+            }
+        }
+    }
+    let expected = area / samples as f64;
+    let slack = slack / samples as f64;
+    let got = strategy(&demo().report, "rect")["per_frame"]["fragments"]
+        .as_f64()
+        .unwrap();
+    assert!(
+        (got - expected).abs() <= slack,
+        "rect {got} vs areas {expected} +- {slack}"
+    );
+}
+
+/// The chosen budgets beat the same total spread evenly (both scored by
+/// rendering every sample), fit the total, and their meshes pass the
+/// contract checker against their images.
+#[test]
+fn allocation_beats_the_even_spread() {
+    let run = demo();
+    let a = &run.report["allocation"];
+    let alloc = a["allocated"]["fragments"].as_f64().unwrap();
+    let even = a["even"]["fragments"].as_f64().unwrap();
+    assert!(alloc < even, "allocated {alloc} vs even {even}");
+    let mut vertices = 0;
+    let scene: Value = serde_json::from_str(
+        &fs::read_to_string(root().join("demo-layers/harbour.scene.json")).unwrap(),
+    )
+    .unwrap();
+    for l in a["layers"].as_array().unwrap() {
+        let name = l["name"].as_str().unwrap();
+        let mesh = load_mesh(&run.out.join(format!("{name}.mesh.json"))).unwrap();
+        let budget = l["budget"].as_u64().unwrap() as usize;
+        assert_eq!(mesh.budget, Some(budget));
+        assert!(mesh.vertex_count() <= budget, "{name}");
+        vertices += mesh.vertex_count();
+        let image = scene["layers"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|s| s["name"] == name)
+            .unwrap()["image"]
+            .as_str()
+            .unwrap()
+            .to_string();
+        let map = load_alpha(&root().join("demo-layers").join(image)).unwrap();
+        assert!(check_mesh(&mesh, &map).unwrap().holds(), "{name}");
+    }
+    assert!(vertices <= VERTEX_TOTAL, "{vertices} vertices");
+}
+
+/// The dumped counts are what the dumped draws render to: replaying
+/// frame-K.json through the simulated GPU gives the 16-bit PNG's pixels.
+#[test]
+fn dumped_counts_are_the_replayed_draws() {
+    let run = demo();
+    let dump = load_frame_dump(&run.out.join(format!("frame-{DUMPED}.json"))).unwrap();
+    assert_eq!(dump.strategies.len(), 3);
+    for (name, frame) in &dump.strategies {
+        let png = image::open(run.out.join(format!("counts-{DUMPED}-{name}.png")))
+            .unwrap()
+            .into_luma16();
+        assert_eq!([png.width(), png.height()], dump.viewport);
+        let r = render(dump.viewport, &frame.draws);
+        let replayed: Vec<u16> = r.counts.iter().map(|&c| c as u16).collect();
+        assert!(replayed == png.into_raw(), "{name}: counts differ");
+        assert!(r.total.fragments > 0);
+    }
+    // split: opaque draws (depth write) first, then blended ones (no write)
+    let split = &dump.strategies["split"].draws;
+    let first_blended = split.iter().position(|d| !d.depth_write).unwrap();
+    assert!(split[..first_blended]
+        .iter()
+        .all(|d| !d.blend && d.depth_test));
+    assert!(split[first_blended..]
+        .iter()
+        .all(|d| d.blend && d.depth_test && !d.depth_write));
+}
+
+#[test]
+fn heatmaps_have_a_legend_strip() {
+    let run = demo();
+    for s in ["rect", "split"] {
+        let img = image::open(run.out.join(format!("heatmap-{s}.png"))).unwrap();
+        assert_eq!(img.width(), 1920);
+        assert!(img.height() > 1080, "{s}: no legend below the frame");
+    }
+}
+
+// ---- broken scene files ----
+
+fn tiny_png(path: &Path) {
+    RgbaImage::from_pixel(8, 8, Rgba([10, 20, 30, 255]))
+        .save_with_format(path, ImageFormat::Png)
+        .unwrap();
+}
+
+/// Runs `scene` on `text` saved as `bad.scene.json` beside an 8x8 PNG.
+fn run_broken(test: &str, text: &str) -> (Output, String) {
+    let dir = TempDir::new(test);
+    tiny_png(&dir.0.join("a.png"));
+    let scene = dir.0.join("bad.scene.json");
+    fs::write(&scene, text).unwrap();
+    let o = Command::new(BIN)
+        .arg("scene")
+        .arg(&scene)
+        .arg("--out")
+        .arg(dir.0.join("out"))
+        .output()
+        .unwrap();
+    let err = String::from_utf8_lossy(&o.stderr).into_owned();
+    assert_eq!(o.status.code(), Some(2), "{test}: {err}");
+    assert!(
+        err.contains("bad.scene.json"),
+        "{test}: the file is not named: {err}"
+    );
+    assert!(err.contains("hint:"), "{test}: no advice: {err}");
+    assert!(!dir.0.join("out/scene-report.json").exists());
+    (o, err)
+}
+
+fn scene_text(camera: &str, layers: &str) -> String {
+    format!("{{\n  \"viewport\": [64, 32],\n  \"camera\": {camera},\n  \"layers\": [\n{layers}\n  ]\n}}\n")
+}
+
+const CAMERA: &str = r#"{"travel": 16, "samples": 2}"#;
+const LAYER: &str = r#"    {"name": "a", "image": "a.png"}"#;
+
+#[test]
+fn a_syntax_error_gives_its_line_and_column() {
+    // line 3: the comma after 16 is missing; the parser stops at the quote
+    // of "samples" (JSON, RFC 8259: members are separated by commas)
+    let camera = r#"{"travel": 16 "samples": 2}"#;
+    let text = scene_text(camera, LAYER);
+    let line = text.lines().nth(2).unwrap();
+    let col = line.find("\"samples\"").unwrap() + 1;
+    let (_, err) = run_broken("syntax", &text);
+    assert!(err.contains(&format!("line 3, column {col}")), "{err}");
+    assert!(err.contains("not valid JSON"), "{err}");
+}
+
+#[test]
+fn an_unknown_key_is_named_with_its_place() {
+    let layer = r#"    {"name": "a", "image": "a.png", "paralax": 0.5}"#;
+    let (_, err) = run_broken("unknown", &scene_text(CAMERA, layer));
+    assert!(err.contains("paralax"), "{err}");
+    assert!(err.contains("line 5"), "{err}");
+}
+
+#[test]
+fn a_missing_image_is_named() {
+    let layer = r#"    {"name": "a", "image": "gone.png"}"#;
+    let (_, err) = run_broken("missing", &scene_text(CAMERA, layer));
+    assert!(
+        err.contains("gone.png") && err.contains("does not exist"),
+        "{err}"
+    );
+}
+
+#[test]
+fn a_negative_scale_is_refused() {
+    let layer = r#"    {"name": "a", "image": "a.png", "scale": -2}"#;
+    let (_, err) = run_broken("scale", &scene_text(CAMERA, layer));
+    assert!(
+        err.contains("scale -2") && err.contains("layers[0]"),
+        "{err}"
+    );
+}
+
+#[test]
+fn zero_samples_are_refused() {
+    let (_, err) = run_broken(
+        "samples",
+        &scene_text(r#"{"travel": 16, "samples": 0}"#, LAYER),
+    );
+    assert!(err.contains("samples"), "{err}");
+}
+
+#[test]
+fn a_duplicate_layer_name_is_refused() {
+    let layers = format!("{LAYER},\n{LAYER}");
+    let (_, err) = run_broken("duplicate", &scene_text(CAMERA, &layers));
+    assert!(
+        err.contains("layers[1]") && err.contains("earlier layer"),
+        "{err}"
+    );
+}
+
+/// A small scene that works: a mesh-file layer over a cut layer, both
+/// read from the temp folder, and outputs that may not overwrite inputs.
+#[test]
+fn a_small_scene_runs_and_protects_its_inputs() {
+    let dir = TempDir::new("small");
+    tiny_png(&dir.0.join("a.png"));
+    let cut = Command::new(BIN)
+        .arg("cut")
+        .arg(dir.0.join("a.png"))
+        .arg("--out")
+        .arg(&dir.0)
+        .output()
+        .unwrap();
+    assert!(cut.status.success());
+    let layers = r#"    {"name": "a", "image": "a.png", "scale": 4, "repeat_x": true},
+    {"name": "b", "image": "a.png", "mesh": "a.mesh.json", "position": [10, 10], "parallax": 0}"#;
+    let scene = dir.0.join("small.scene.json");
+    fs::write(&scene, scene_text(CAMERA, layers)).unwrap();
+    let run = |out: &Path| {
+        Command::new(BIN)
+            .arg("scene")
+            .arg(&scene)
+            .arg("--out")
+            .arg(out)
+            .args(["--vertex-total", "8"])
+            .output()
+            .unwrap()
+    };
+    let ok = run(&dir.0.join("out"));
+    assert!(
+        ok.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
+    // the 64 x 32 viewport is covered by the opaque 32 x 32 copies of a:
+    // split shades each pixel once, plus b's 8 x 8 square (b is nearer)
+    let report: Value =
+        serde_json::from_str(&fs::read_to_string(dir.0.join("out/scene-report.json")).unwrap())
+            .unwrap();
+    let split = strategy(&report, "split");
+    assert_eq!(
+        split["per_frame"]["fragments"].as_f64().unwrap(),
+        64.0 * 32.0
+    );
+    // writing into the scene's own folder would overwrite the mesh file b reads
+    let clash = run(&dir.0);
+    assert_eq!(clash.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&clash.stderr);
+    assert!(
+        err.contains("a.mesh.json") || err.contains("inputs"),
+        "{err}"
+    );
+}
