@@ -110,21 +110,28 @@ impl Regions {
     pub fn analyze(map: &AlphaMap, settings: &CutSettings) -> Regions {
         let t = settings.alpha;
         let (w, h) = (map.width as usize, map.height as usize);
-        let opaque: Vec<bool> = map.alpha.iter().map(|&a| a >= t.opaque_min).collect();
-        let visible: Vec<bool> = map.alpha.iter().map(|&a| a >= t.visible_min).collect();
-        let mut safe = Mask::new(2 * w, 2 * h, true);
-        let mut cover = Mask::new(2 * w, 2 * h, false);
-        for level in 0..=settings.filter.mip_levels {
-            let mut o = block_mask(&opaque, w, h, level, true);
-            let mut v = block_mask(&visible, w, h, level, false);
-            if settings.filter.mode == FilterMode::Bilinear {
-                let k = 1usize << level; // 2^(l-1) texels = 2^l half cells
-                o = window_filter(&o, k, settings.wrap, true);
-                v = window_filter(&v, k, settings.wrap, false);
+        let region = |min: u8, all: bool| {
+            let texels: Vec<bool> = map.alpha.iter().map(|&a| a >= min).collect();
+            let mut acc = Mask::new(2 * w, 2 * h, all);
+            for level in 0..=settings.filter.mip_levels {
+                let mut m = block_mask(&texels, w, h, level, all);
+                if settings.filter.mode == FilterMode::Bilinear {
+                    let k = 1usize << level; // 2^(l-1) texels = 2^l half cells
+                    m = window_filter(&m, k, settings.wrap, all);
+                }
+                if all {
+                    acc.and_with(&m);
+                } else {
+                    acc.or_with(&m);
+                }
             }
-            safe.and_with(&o);
-            cover.or_with(&v);
-        }
+            acc
+        };
+        // the two regions are independent: build them side by side
+        let (safe, cover) = rayon::join(
+            || region(t.opaque_min, true),
+            || region(t.visible_min, false),
+        );
         let (opaque_texels, partial_texels, transparent_texels) = map.class_counts(t);
         let stats = RegionStats {
             opaque_texels,

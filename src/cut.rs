@@ -36,8 +36,10 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     safe.remove_pinches();
     let mut cover = regions.cover.clone();
     cover.fill_pinches();
-    let cover = Prepared::new(&cover, false);
-    let plain = Prepared::new(&safe, true);
+    let (cover, plain) = rayon::join(
+        || Prepared::new(&cover, false),
+        || Prepared::new(&safe, true),
+    );
     // An island with more holes than the budget can keep may do better as
     // one ring with notches: then also try the safe region with its holes
     // opened. Each region is fitted with both rankings of large edits; the
