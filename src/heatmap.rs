@@ -12,7 +12,7 @@
 //! The legend labels each colour with its count in a hand-made 3 x 5 pixel
 //! digit font, scaled up.
 
-use image::{DynamicImage, ImageBuffer, ImageFormat, Luma, Rgb, RgbImage};
+use image::{DynamicImage, ImageBuffer, ImageFormat, Luma, Pixel, Rgb, RgbImage, RgbaImage};
 use std::io::Cursor;
 
 /// The ramp's anchors, evenly spaced from 0 to 1.
@@ -45,8 +45,10 @@ pub fn count_colour(count: u32, top: u32) -> [u8; 3] {
     ramp(count.min(top) as f64 / top.max(1) as f64)
 }
 
-/// 3 x 5 glyphs, a row per byte, the high of 3 bits leftmost.
-fn glyph(c: char) -> [u8; 5] {
+/// 3 x 5 glyphs, a row per byte, the high of 3 bits leftmost: the digits,
+/// `+`, and the few letters and signs captions use (`B`, `V`, `C`, `E`,
+/// `%`, `.`); any other character is blank (a space).
+pub(crate) fn glyph(c: char) -> [u8; 5] {
     match c {
         '0' => [7, 5, 5, 5, 7],
         '1' => [2, 6, 2, 2, 7],
@@ -59,12 +61,27 @@ fn glyph(c: char) -> [u8; 5] {
         '8' => [7, 5, 7, 5, 7],
         '9' => [7, 5, 7, 1, 7],
         '+' => [0, 2, 7, 2, 0],
+        'B' => [6, 5, 6, 5, 6],
+        'V' => [5, 5, 5, 5, 2],
+        'C' => [7, 4, 4, 4, 7],
+        'E' => [7, 4, 6, 4, 7],
+        '%' => [5, 1, 2, 4, 5],
+        '.' => [0, 0, 0, 0, 2],
         _ => [0; 5],
     }
 }
 
-/// Draws `text` with its top-left at (x, y), `px` image pixels per font pixel.
-fn draw_text(img: &mut RgbImage, text: &str, x: u32, y: u32, px: u32, colour: [u8; 3]) {
+/// Draws `text` with its top-left at (x, y), `px` image pixels per font
+/// pixel, each character 4 font pixels wide (3 and a gap); ink outside the
+/// image is dropped.
+pub(crate) fn draw_text<P: Pixel>(
+    img: &mut ImageBuffer<P, Vec<P::Subpixel>>,
+    text: &str,
+    x: u32,
+    y: u32,
+    px: u32,
+    colour: P,
+) {
     for (n, c) in text.chars().enumerate() {
         let g = glyph(c);
         let gx = x + n as u32 * 4 * px;
@@ -77,7 +94,7 @@ fn draw_text(img: &mut RgbImage, text: &str, x: u32, y: u32, px: u32, colour: [u
                     for dx in 0..px {
                         let (ix, iy) = (gx + col * px + dx, y + row as u32 * px + dy);
                         if ix < img.width() && iy < img.height() {
-                            img.put_pixel(ix, iy, Rgb(colour));
+                            img.put_pixel(ix, iy, colour);
                         }
                     }
                 }
@@ -126,7 +143,7 @@ pub fn heatmap(counts: &[u32], width: u32, height: u32, top: u32) -> RgbImage {
         };
         let tx = x0 + (x1 - x0).saturating_sub(text_w) / 2;
         let ty = height + strip.saturating_sub(5 * px) / 2;
-        draw_text(&mut img, &label, tx, ty, px, ink);
+        draw_text(&mut img, &label, tx, ty, px, Rgb(ink));
     }
     img
 }
@@ -137,6 +154,11 @@ fn png(image: DynamicImage) -> Vec<u8> {
         .write_to(&mut Cursor::new(&mut bytes), ImageFormat::Png)
         .expect("PNG encoding into memory does not fail");
     bytes
+}
+
+/// An RGBA image as PNG bytes.
+pub fn rgba_png(img: RgbaImage) -> Vec<u8> {
+    png(DynamicImage::ImageRgba8(img))
 }
 
 /// An RGB image as PNG bytes.
@@ -174,7 +196,7 @@ mod tests {
     /// Every glyph used in labels is distinct and inked.
     #[test]
     fn digits_are_distinct() {
-        let gs: Vec<[u8; 5]> = "0123456789+".chars().map(glyph).collect();
+        let gs: Vec<[u8; 5]> = "0123456789+BVCE%.".chars().map(glyph).collect();
         for (i, a) in gs.iter().enumerate() {
             assert!(a.iter().any(|&r| r != 0));
             for b in &gs[i + 1..] {

@@ -18,6 +18,9 @@
 //! [`check::check_mesh`], which recomputes the contract from its definition
 //! with code of its own.
 //!
+//! For the artist: [`preview`] draws a cut over its layer, [`plot`] draws a
+//! layer's budget sweep as SVG.
+//!
 //! ```
 //! use underdraw::{alpha::AlphaMap, check::check_mesh, cut::cut_layer, settings::CutSettings};
 //! // an 8x8 layer: an opaque 6x6 square with a soft one-texel rim
@@ -36,6 +39,7 @@ pub mod alpha;
 pub mod check;
 pub mod cut;
 pub mod error;
+pub mod export;
 pub mod fit;
 pub mod frame;
 pub mod heatmap;
@@ -43,6 +47,8 @@ pub mod io;
 pub mod mask;
 pub mod mesh;
 pub mod outline;
+pub mod plot;
+pub mod preview;
 pub mod raster;
 pub mod scene;
 pub mod settings;

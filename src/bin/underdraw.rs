@@ -7,6 +7,7 @@ use std::process::ExitCode;
 use underdraw::check::check_mesh;
 use underdraw::cut::cut_layer;
 use underdraw::error::FileError;
+use underdraw::export::gltf::{glb_path, gltf_paths, relative_uri, write_glb, write_gltf};
 use underdraw::io::{load_alpha, load_mesh, write_atomic};
 use underdraw::scene::run::{run_scene, SceneOptions};
 use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
@@ -28,7 +29,8 @@ struct Cli {
 
 #[derive(Subcommand)]
 enum Command {
-    /// Cut PNG layers into `<OUT>/<stem>.mesh.json` mesh files.
+    /// Cut PNG layers into `<OUT>/<stem>.mesh.json` mesh files, or glTF 2.0
+    /// assets for an engine (`--format`).
     #[command(after_help = EXIT_HELP)]
     Cut(CutArgs),
     /// Re-verify a mesh file against its layer, with code independent of `cut`.
@@ -63,14 +65,44 @@ enum WrapArg {
     Xy,
 }
 
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum FormatArg {
+    /// `<stem>.mesh.json`, underdraw's own mesh file (what `check` reads).
+    Json,
+    /// A glTF 2.0 asset: `<stem>.gltf` + `<stem>.bin` (or `<stem>.glb` with `--glb`).
+    Gltf,
+    /// Both the mesh file and the glTF asset.
+    All,
+}
+
 #[derive(Args)]
 struct CutArgs {
     /// PNG layers to cut (RGBA; images without alpha count as fully opaque).
     #[arg(required = true)]
     images: Vec<PathBuf>,
-    /// Folder for the mesh files (created if missing).
+    /// Folder for the output files (created if missing).
     #[arg(long, short)]
     out: PathBuf,
+    /// What to write per layer. `gltf`: a glTF 2.0 asset for an engine, one
+    /// mesh with two primitives over one vertex array: the opaque one with
+    /// alphaMode OPAQUE (draw with blending off), the blended one with BLEND;
+    /// the PNG as base colour texture by a URI relative to the output folder,
+    /// with a sampler for --filter, --mip-levels and --wrap; positions in
+    /// texels, glTF's y up: (x, y) becomes (x, -y, 0), triangles wound
+    /// counter-clockwise.
+    #[arg(long, value_enum, default_value = "json")]
+    format: FormatArg,
+    /// Write the glTF asset as one binary `<stem>.glb` (JSON and buffer in
+    /// one file; the PNG stays outside it, by URI) instead of `<stem>.gltf`
+    /// + `<stem>.bin`. Needs `--format gltf` or `all`.
+    #[arg(long)]
+    glb: bool,
+    /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
+    /// with the opaque mesh tinted blue and the blended one orange, their
+    /// edges, the regions' outlines dotted, and a caption (B budget, V
+    /// vertices, C opaque capture, E excess); at most 1024 pixels wide.
+    #[arg(long)]
+    preview: bool,
     /// Most vertices per layer, both meshes together (a vertex they share
     /// counts once). At least 4.
     #[arg(long, default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
@@ -134,6 +166,47 @@ impl CutArgs {
     }
 }
 
+/// Widest preview `cut --preview` writes, pixels.
+const PREVIEW_WIDTH: u32 = 1024;
+
+/// What `cut` writes for each layer.
+#[derive(Clone, Copy)]
+struct Outputs {
+    json: bool,
+    gltf: bool,
+    glb: bool,
+    preview: bool,
+}
+
+impl Outputs {
+    fn of(args: &CutArgs) -> Outputs {
+        let gltf = args.format != FormatArg::Json;
+        Outputs {
+            json: args.format != FormatArg::Gltf,
+            gltf: gltf && !args.glb,
+            glb: gltf && args.glb,
+            preview: args.preview,
+        }
+    }
+    /// The files written for `stem` in `out`.
+    fn paths(&self, out: &Path, stem: &str) -> Vec<PathBuf> {
+        let mut v = Vec::new();
+        if self.json {
+            v.push(out.join(format!("{stem}.mesh.json")));
+        }
+        if self.gltf {
+            v.extend(gltf_paths(out, stem));
+        }
+        if self.glb {
+            v.push(glb_path(out, stem));
+        }
+        if self.preview {
+            v.push(out.join(format!("{stem}.preview.png")));
+        }
+        v
+    }
+}
+
 #[derive(Args)]
 struct SceneArgs {
     /// The scene file (`.scene.json`, see the README's Scenes section).
@@ -151,6 +224,12 @@ struct SceneArgs {
     /// compares against the same total spread evenly.
     #[arg(long, value_name = "N")]
     vertex_total: Option<usize>,
+    /// Also write a self-contained web page report, `DIR/index.html`, with
+    /// its images beside it: the strategies, the heatmaps side by side, and
+    /// a card per layer (preview, budget plot from a sweep, numbers,
+    /// warnings).
+    #[arg(long, value_name = "DIR")]
+    report: Option<PathBuf>,
 }
 
 #[derive(Args)]
@@ -193,6 +272,11 @@ fn cut(args: &CutArgs) -> ExitCode {
         eprintln!("error: {e}");
         return ExitCode::from(2);
     }
+    if args.glb && args.format == FormatArg::Json {
+        eprintln!("error: --glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
+        return ExitCode::from(2);
+    }
+    let outputs = Outputs::of(args);
     if let Err(e) = std::fs::create_dir_all(&args.out) {
         eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", args.out.display());
         return ExitCode::from(2);
@@ -221,12 +305,12 @@ fn cut(args: &CutArgs) -> ExitCode {
             Some(first) => Err(FileError::new(
                 path,
                 format!(
-                    "has the same name as {} and would overwrite its mesh file",
+                    "has the same name as {} and would overwrite its output files",
                     first.display()
                 ),
                 "rename one of them, or cut them into separate --out folders",
             )),
-            None => cut_one(path, &args.out, &settings),
+            None => cut_one(path, &args.out, &settings, outputs),
         })
         .collect();
     println!(
@@ -269,7 +353,12 @@ fn cut(args: &CutArgs) -> ExitCode {
     ExitCode::from(2)
 }
 
-fn cut_one(path: &Path, out: &Path, settings: &CutSettings) -> Result<LayerLine, FileError> {
+fn cut_one(
+    path: &Path,
+    out: &Path,
+    settings: &CutSettings,
+    outputs: Outputs,
+) -> Result<LayerLine, FileError> {
     let map = load_alpha(path)?;
     let stem = path
         .file_stem()
@@ -279,17 +368,45 @@ fn cut_one(path: &Path, out: &Path, settings: &CutSettings) -> Result<LayerLine,
         .file_name()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let dest = out.join(format!("{stem}.mesh.json"));
-    if same_file(&dest, path) {
+    if outputs.paths(out, &stem).iter().any(|d| same_file(d, path)) {
         return Err(FileError::new(
             path,
-            "would be overwritten by its own mesh file",
+            "would be overwritten by its own output file",
             "choose another --out folder",
         ));
     }
     let outcome = cut_layer(&map, &name, settings);
-    let json = serde_json::to_vec_pretty(&outcome.mesh).expect("a mesh serializes");
-    write_atomic(&dest, &json)?;
+    if outputs.json {
+        let json = serde_json::to_vec_pretty(&outcome.mesh).expect("a mesh serializes");
+        write_atomic(&out.join(format!("{stem}.mesh.json")), &json)?;
+    }
+    if outputs.gltf || outputs.glb {
+        // the PNG by a URI relative to the folder of the .gltf / .glb
+        let uri = relative_uri(out, path).ok_or_else(|| {
+            FileError::new(
+                path,
+                format!(
+                    "has no path relative to the output folder {} for the glTF image URI",
+                    out.display()
+                ),
+                "put the --out folder on the same drive as the layers",
+            )
+        })?;
+        if outputs.gltf {
+            write_gltf(&outcome.mesh, &uri, out, &stem)?;
+        }
+        if outputs.glb {
+            write_glb(&outcome.mesh, &uri, out, &stem)?;
+        }
+    }
+    if outputs.preview {
+        let rgba = image::open(path)
+            .map_err(|e| FileError::new(path, format!("cannot be read ({e})"), "check the file"))?
+            .to_rgba8();
+        let img = underdraw::preview::render_preview(&rgba, &outcome.mesh, PREVIEW_WIDTH);
+        let dest = out.join(format!("{stem}.preview.png"));
+        write_atomic(&dest, &underdraw::heatmap::rgba_png(img))?;
+    }
     let s = &outcome.mesh.stats;
     Ok(LayerLine {
         name: path.display().to_string(),
@@ -360,10 +477,14 @@ fn scene(args: &SceneArgs) -> ExitCode {
         out,
         dump_frame: args.dump_frame,
         vertex_total: args.vertex_total,
+        report: args.report.clone(),
     };
     match run_scene(&opts) {
         Ok(report) => {
             print!("{}", report.table());
+            if let Some(dir) = &args.report {
+                println!("report: {}", dir.join("index.html").display());
+            }
             ExitCode::SUCCESS
         }
         Err(e) => {

@@ -8,9 +8,11 @@
 //!   [`crate::frame::render`], summarized per strategy and per layer.
 //! * [`budget`]: the budget per layer for a vertex total, by marginal gain.
 //! * [`report`], [`run`]: the `underdraw scene` command's report and outputs.
+//! * [`html`]: the report as a self-contained web page (`scene --report DIR`).
 pub mod budget;
 pub mod draws;
 pub mod file;
+pub mod html;
 pub mod prepare;
 pub mod report;
 pub mod run;

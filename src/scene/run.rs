@@ -29,6 +29,8 @@ pub struct SceneOptions {
     pub dump_frame: Option<usize>,
     /// Vertices to split over the layers.
     pub vertex_total: Option<usize>,
+    /// Folder for the web page report (`index.html` and its images).
+    pub report: Option<PathBuf>,
 }
 
 /// A dumped frame: `frame-K.json`.
@@ -144,9 +146,12 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         .unwrap_or(1)
         .clamp(1, HEATMAP_TOP_MAX);
     let mut heatmaps = Vec::new();
+    let mut heatmap_files = Vec::new();
     for (&(s, k), r) in shown.iter().zip(&rendered) {
         let name = format!("heatmap-{}.png", s.name());
-        out.write(&name, &rgb_png(heatmap(&r.counts, w, h, top)))?;
+        let bytes = rgb_png(heatmap(&r.counts, w, h, top));
+        out.write(&name, &bytes)?;
+        heatmap_files.push((name.clone(), bytes));
         heatmaps.push(HeatmapInfo {
             file: name,
             sample: k,
@@ -209,7 +214,188 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     let json = serde_json::to_vec_pretty(&report).expect("a report serializes");
     out.written.pop();
     out.write("scene-report.json", &json)?;
+    if let Some(dir) = &opts.report {
+        write_report_page(dir, &scene, &layers, &report, &heatmap_files, opts)?;
+    }
     Ok(report)
+}
+
+/// Writes the web page report into `dir`: `index.html`, the heatmaps, and
+/// per layer `<name>.preview.png` and (for a layer cut on the fly) its
+/// budget plot `<name>.plot.svg` from a sweep at [`crate::sweep::BUDGETS`].
+fn write_report_page(
+    dir: &Path,
+    scene: &Scene,
+    layers: &[super::prepare::Layer],
+    report: &SceneReport,
+    heatmap_files: &[(String, Vec<u8>)],
+    opts: &SceneOptions,
+) -> Result<(), FileError> {
+    use super::html::{index_html, LayerCard};
+    use crate::plot::{sweep_svg, Marks};
+    use crate::sweep::{knee, sweep_layer, BUDGETS};
+    /// The knee's fraction, as `underdraw sweep`'s default.
+    const KNEE: f64 = 0.8;
+    std::fs::create_dir_all(dir).map_err(|e| {
+        FileError::new(
+            dir,
+            format!("the report folder cannot be created ({e})"),
+            "choose a writable --report folder",
+        )
+    })?;
+    let mut out = Outputs {
+        dir: dir.to_path_buf(),
+        inputs: scene.inputs(),
+        written: Vec::new(),
+    };
+    let mut shown = Vec::new();
+    for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {
+        out.write(file, bytes)?;
+        let strategy = file.trim_start_matches("heatmap-").trim_end_matches(".png");
+        shown.push((
+            file.clone(),
+            format!(
+                "{strategy}: camera sample {} (x = {}), where it peaks",
+                info.sample, info.camera_x
+            ),
+        ));
+    }
+    let mut cards = Vec::new();
+    // layers drawn from one image with one cut share their sweep
+    let mut sweeps = std::collections::HashMap::new();
+    for (layer, lr) in layers.iter().zip(&report.layers) {
+        let name = &layer.spec.name;
+        let mesh = &layer.mesh;
+        let s = &mesh.stats;
+        let mut card = LayerCard {
+            name: name.clone(),
+            ..Default::default()
+        };
+        let rgba = image::open(&layer.spec.image).map_err(|e| {
+            FileError::new(
+                &layer.spec.image,
+                format!("cannot be read for its preview ({e})"),
+                "check the file",
+            )
+        })?;
+        let rgba = rgba.to_rgba8();
+        if rgba.dimensions() == (mesh.size[0], mesh.size[1]) {
+            let file = format!("{name}.preview.png");
+            let img = crate::preview::render_preview(&rgba, mesh, 1024);
+            out.write(&file, &crate::heatmap::rgba_png(img))?;
+            card.preview = Some(file);
+        }
+        let mut knee_budget = None;
+        if let (Some(alpha), Some(settings)) = (&layer.alpha, layer.cut_settings()) {
+            let source = super::prepare::source_name(&layer.spec.image);
+            let points: &Vec<_> = sweeps
+                .entry((layer.spec.image.clone(), settings))
+                .or_insert_with(|| sweep_layer(alpha, &source, &settings, &BUDGETS));
+            knee_budget = knee(points, KNEE);
+            let svg = sweep_svg(
+                &format!("{name}: saving against vertices"),
+                points,
+                Marks {
+                    knee: knee_budget.map(|k| (k, KNEE)),
+                    chosen: mesh.budget,
+                },
+            );
+            let file = format!("{name}.plot.svg");
+            out.write(&file, svg.as_bytes())?;
+            card.plot = Some(file);
+        }
+        let excess_share = if s.must_cover_area > 0.0 {
+            100.0 * s.excess() / s.must_cover_area
+        } else {
+            0.0
+        };
+        let opt = |v: Option<usize>| v.map_or("-".to_string(), |b| b.to_string());
+        card.numbers = vec![
+            ("budget".into(), opt(mesh.budget)),
+            ("vertices".into(), mesh.vertex_count().to_string()),
+            (
+                "triangles, opaque / blended".into(),
+                format!(
+                    "{} / {}",
+                    mesh.opaque.triangle_count(),
+                    mesh.blended.triangle_count()
+                ),
+            ),
+            (
+                "opaque capture".into(),
+                format!("{:.1}%", 100.0 * s.opaque_capture()),
+            ),
+            (
+                "excess".into(),
+                format!("{:.0} texels ({excess_share:.1}%)", s.excess()),
+            ),
+            (
+                "fragments saved per frame vs rect".into(),
+                format!("{:.0}", lr.saved_vs_rect),
+            ),
+            (
+                "fragments saved per frame vs outline".into(),
+                format!("{:.0}", lr.saved_vs_outline),
+            ),
+            (
+                "saved per vertex added".into(),
+                lr.saved_per_vertex
+                    .map_or("-".to_string(), |v| format!("{v:.0}")),
+            ),
+            ("knee (80% of the largest saving)".into(), opt(knee_budget)),
+            (
+                "filter".into(),
+                format!(
+                    "{:?}, mip levels 0 to {}",
+                    mesh.filter.mode, mesh.filter.mip_levels
+                )
+                .to_lowercase(),
+            ),
+            ("wrap".into(), mesh.wrap.as_str().to_string()),
+            (
+                "alpha: opaque from / visible from".into(),
+                format!("{} / {}", mesh.alpha.opaque_min, mesh.alpha.visible_min),
+            ),
+        ];
+        if mesh.opaque.indices.is_empty() && s.safe_opaque_area > 0.0 {
+            card.warnings
+                .push("opaque mesh empty at this budget: the layer hides nothing behind it".into());
+        }
+        if let (Some(k), Some(b)) = (knee_budget, mesh.budget) {
+            if b < k {
+                card.warnings.push(format!(
+                    "budget {b} is below the knee ({k}): more vertices would still save much"
+                ));
+            }
+        }
+        card.warnings.extend(layer.notes.iter().cloned());
+        cards.push(card);
+    }
+    let settings = vec![
+        ("scene file".to_string(), scene.path.display().to_string()),
+        (
+            "viewport".into(),
+            format!("{} x {} pixels", scene.viewport[0], scene.viewport[1]),
+        ),
+        (
+            "camera".into(),
+            format!(
+                "{} samples over {} pixels of travel",
+                scene.samples, scene.travel
+            ),
+        ),
+        (
+            "vertex total".into(),
+            opts.vertex_total
+                .map_or("- (each layer its own budget)".into(), |t| t.to_string()),
+        ),
+        (
+            "budget sweep".into(),
+            format!("budgets {BUDGETS:?}, knee at {KNEE} of the largest saving"),
+        ),
+    ];
+    let page = index_html(report, &shown, &cards, &settings);
+    out.write("index.html", page.as_bytes())
 }
 
 /// Reads a dumped frame (`frame-K.json`).

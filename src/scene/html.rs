@@ -1,0 +1,158 @@
+//! The scene report as one self-contained web page, `index.html`: inline
+//! CSS, no script, no external font, every image a file beside the page
+//! named by a relative path. The page is well-formed XML (XHTML syntax:
+//! every element closed, attributes quoted) so it can be read back by an
+//! XML parser, and prints on paper (a print style sheet keeps cards whole).
+
+use super::report::SceneReport;
+use crate::plot::xml_escape as esc;
+use std::fmt::Write;
+
+/// One layer's card.
+#[derive(Clone, Debug, Default)]
+pub struct LayerCard {
+    pub name: String,
+    /// The preview image's file name beside the page.
+    pub preview: Option<String>,
+    /// The budget plot's file name beside the page.
+    pub plot: Option<String>,
+    /// (label, value) rows.
+    pub numbers: Vec<(String, String)>,
+    /// What the artist should look at.
+    pub warnings: Vec<String>,
+}
+
+const STYLE: &str = "
+body { font-family: sans-serif; margin: 24px; color: #1b1b1b; background: #ffffff; }
+h1 { font-size: 22px; } h2 { font-size: 18px; margin-top: 28px; }
+table { border-collapse: collapse; margin: 8px 0; }
+th, td { border: 1px solid #c8c8c8; padding: 3px 8px; text-align: right; }
+th:first-child, td:first-child { text-align: left; }
+.pair { display: flex; flex-wrap: wrap; gap: 16px; }
+.pair figure { margin: 0; flex: 1 1 420px; }
+img { max-width: 100%; height: auto; border: 1px solid #c8c8c8; }
+.cards { display: flex; flex-wrap: wrap; gap: 16px; }
+.card { border: 1px solid #a0a0a0; border-radius: 6px; padding: 12px; flex: 1 1 520px; }
+.warning { color: #8a3b00; font-weight: bold; }
+.swatch { display: inline-block; width: 12px; height: 12px; border: 1px solid #555555; vertical-align: middle; }
+@media print { .card, figure, table { break-inside: avoid; } body { margin: 0; } }
+";
+
+fn hex(c: [u8; 3]) -> String {
+    format!("#{:02x}{:02x}{:02x}", c[0], c[1], c[2])
+}
+
+/// The page for `report`: the summary table of strategies, the heatmaps
+/// (`heatmaps`: file name and caption) side by side with their legend, one
+/// card per layer, and the settings used (label, value).
+pub fn index_html(
+    report: &SceneReport,
+    heatmaps: &[(String, String)],
+    cards: &[LayerCard],
+    settings: &[(String, String)],
+) -> String {
+    let mut s = String::new();
+    let _ = write!(
+        s,
+        "<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\">\n<head>\n<meta charset=\"utf-8\"/>\n<title>underdraw: {}</title>\n<style>{STYLE}</style>\n</head>\n<body>\n",
+        esc(&report.scene)
+    );
+    let _ = writeln!(s, "<h1>Overdraw report: {}</h1>", esc(&report.scene));
+    let _ = writeln!(
+        s,
+        "<p>{} x {} pixels, {} layers, {} camera samples. Overdraw: fragments shaded per pixel of a frame, mean over the samples.</p>",
+        report.viewport[0],
+        report.viewport[1],
+        report.layers.len(),
+        report.camera_positions.len()
+    );
+
+    let _ = writeln!(s, "<h2>Strategies</h2>");
+    let _ = writeln!(
+        s,
+        "<table id=\"strategies\"><tr><th>strategy</th><th>mean overdraw</th><th>peak overdraw (sample)</th><th>shader lanes / frame</th><th>vertices / frame</th><th>draws / frame</th></tr>"
+    );
+    for r in &report.strategies {
+        let _ = writeln!(
+            s,
+            "<tr class=\"strategy\" data-strategy=\"{0}\" data-mean-overdraw=\"{1}\"><td>{0}</td><td>{1:.3}</td><td>{2:.3} ({3})</td><td>{4:.0}</td><td>{5:.0}</td><td>{6:.1}</td></tr>",
+            r.strategy.name(),
+            r.mean_overdraw,
+            r.peak_overdraw,
+            r.peak_sample,
+            r.per_frame.lanes,
+            r.per_frame.vertices,
+            r.per_frame.draws
+        );
+    }
+    let _ = writeln!(s, "</table>");
+
+    if !heatmaps.is_empty() {
+        let _ = writeln!(s, "<h2>Overdraw heatmaps</h2>\n<div class=\"pair\">");
+        for (file, caption) in heatmaps {
+            let _ = writeln!(
+                s,
+                "<figure><img src=\"{0}\" alt=\"{1}\"/><figcaption>{1}</figcaption></figure>",
+                esc(file),
+                esc(caption)
+            );
+        }
+        let top = report.heatmaps.first().map_or(1, |h| h.top);
+        let _ = writeln!(
+            s,
+            "</div>\n<p class=\"legend\">Colour: fragments per pixel, on one scale for both: black 0, then blue, purple, red, orange, yellow, white for {top} and more (the strip under each map labels every count).</p>"
+        );
+    }
+
+    let _ = writeln!(s, "<h2>Layers</h2>");
+    let _ = writeln!(
+        s,
+        "<p>Previews: <span class=\"swatch\" style=\"background: {}\"></span> opaque mesh (drawn with blending off), <span class=\"swatch\" style=\"background: {}\"></span> blended mesh, over the layer on a checkerboard; dotted white: the safe-opaque outline, dotted black: the must-cover outline. Caption: B budget, V vertices, C opaque capture, E excess.</p>",
+        hex(crate::preview::OPAQUE_TINT),
+        hex(crate::preview::BLENDED_TINT)
+    );
+    let _ = writeln!(s, "<div class=\"cards\">");
+    for c in cards {
+        let _ = writeln!(
+            s,
+            "<section class=\"card\" data-layer=\"{0}\"><h3>{0}</h3>",
+            esc(&c.name)
+        );
+        for w in &c.warnings {
+            let _ = writeln!(s, "<p class=\"warning\">{}</p>", esc(w));
+        }
+        if let Some(p) = &c.preview {
+            let _ = writeln!(
+                s,
+                "<img src=\"{}\" alt=\"preview of {}\"/>",
+                esc(p),
+                esc(&c.name)
+            );
+        }
+        if let Some(p) = &c.plot {
+            let _ = writeln!(
+                s,
+                "<img src=\"{}\" alt=\"budget plot of {}\"/>",
+                esc(p),
+                esc(&c.name)
+            );
+        }
+        let _ = writeln!(s, "<table class=\"numbers\">");
+        for (k, v) in &c.numbers {
+            let _ = writeln!(s, "<tr><td>{}</td><td>{}</td></tr>", esc(k), esc(v));
+        }
+        let _ = writeln!(s, "</table></section>");
+    }
+    let _ = writeln!(s, "</div>");
+
+    let _ = writeln!(s, "<h2>Settings used</h2>\n<table id=\"settings\">");
+    for (k, v) in settings {
+        let _ = writeln!(s, "<tr><td>{}</td><td>{}</td></tr>", esc(k), esc(v));
+    }
+    let _ = writeln!(s, "</table>");
+    for n in &report.notes {
+        let _ = writeln!(s, "<p class=\"note\">note: {}</p>", esc(n));
+    }
+    s.push_str("</body>\n</html>\n");
+    s
+}
