@@ -2,14 +2,16 @@
 
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use rayon::prelude::*;
+use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use std::sync::{Arc, Mutex};
 use underdraw::check::check_mesh;
 use underdraw::cut::cut_layer;
 use underdraw::error::FileError;
 use underdraw::export::gltf::{glb_path, gltf_paths, relative_uri, write_glb, write_gltf};
 use underdraw::io::{load_alpha, load_mesh, write_atomic};
-use underdraw::scene::run::{run_scene, SceneOptions};
+use underdraw::scene::run::{run_scene, Progress, SceneOptions};
 use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
 use underdraw::sweep::{knee, sweep_layer, to_csv, to_table, BUDGETS};
 
@@ -25,6 +27,88 @@ const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract viol
 struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// Print nothing but errors (on stderr); no tables, no progress bar.
+    #[arg(long, global = true)]
+    quiet: bool,
+    /// Print a machine-readable result on stdout instead of the tables:
+    /// `cut`, an array of per-layer objects (layer, vertices,
+    /// opaque_capture, excess, notes, outputs); `scene`, the scene report
+    /// (as scene-report.json); `check`, the contract's areas and whether it
+    /// holds; `sweep`, the points and the knee.
+    #[arg(long, global = true, conflicts_with = "quiet")]
+    json: bool,
+}
+
+/// How much to print.
+#[derive(Clone, Copy)]
+struct Print {
+    quiet: bool,
+    json: bool,
+}
+
+impl Print {
+    /// Tables and other human-readable lines on stdout.
+    fn text(&self) -> bool {
+        !self.quiet && !self.json
+    }
+}
+
+/// Colour on a stream only when it is a terminal and NO_COLOR is unset or
+/// empty (the NO_COLOR convention, no-color.org).
+fn colour(terminal: bool) -> bool {
+    terminal && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+}
+
+/// Print an error on stderr, "error:" in red on a colour terminal.
+fn error(msg: impl std::fmt::Display) {
+    if colour(std::io::stderr().is_terminal()) {
+        eprintln!("\x1b[31merror:\x1b[0m {msg}");
+    } else {
+        eprintln!("error: {msg}");
+    }
+}
+
+/// A progress bar on stderr, drawn only when stderr is a terminal and not
+/// --quiet or --json; otherwise hidden.
+fn bar(print: Print, len: usize, what: &str) -> indicatif::ProgressBar {
+    if print.quiet || print.json || !std::io::stderr().is_terminal() {
+        return indicatif::ProgressBar::hidden();
+    }
+    let style = indicatif::ProgressStyle::with_template("{msg:>16} [{bar:32}] {pos}/{len}")
+        .expect("a valid progress template")
+        .progress_chars("=> ");
+    indicatif::ProgressBar::new(len as u64)
+        .with_style(style)
+        .with_message(what.to_string())
+}
+
+/// `run_scene`'s steps shown as one bar per step.
+struct SceneBar {
+    print: Print,
+    current: Mutex<Option<indicatif::ProgressBar>>,
+}
+
+impl Progress for SceneBar {
+    fn start(&self, what: &str, total: usize) {
+        let mut c = self.current.lock().unwrap();
+        if let Some(b) = c.take() {
+            b.finish_and_clear();
+        }
+        *c = Some(bar(self.print, total, what));
+    }
+    fn step(&self) {
+        if let Some(b) = &*self.current.lock().unwrap() {
+            b.inc(1);
+        }
+    }
+}
+
+impl SceneBar {
+    fn clear(&self) {
+        if let Some(b) = self.current.lock().unwrap().take() {
+            b.finish_and_clear();
+        }
+    }
 }
 
 #[derive(Subcommand)]
@@ -249,11 +333,15 @@ struct SweepArgs {
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    let print = Print {
+        quiet: cli.quiet,
+        json: cli.json,
+    };
     match cli.command {
-        Command::Cut(args) => cut(&args),
-        Command::Check { mesh, image } => check(&mesh, &image),
-        Command::Scene(args) => scene(&args),
-        Command::Sweep(args) => sweep(&args),
+        Command::Cut(args) => cut(&args, print),
+        Command::Check { mesh, image } => check(&mesh, &image, print),
+        Command::Scene(args) => scene(&args, print),
+        Command::Sweep(args) => sweep(&args, print),
     }
 }
 
@@ -264,21 +352,26 @@ struct LayerLine {
     excess: f64,
     must_cover: f64,
     notes: Vec<String>,
+    /// The files written.
+    outputs: Vec<String>,
 }
 
-fn cut(args: &CutArgs) -> ExitCode {
+fn cut(args: &CutArgs, print: Print) -> ExitCode {
     let settings = args.settings();
     if let Err(e) = settings.validate() {
-        eprintln!("error: {e}");
+        error(&e);
         return ExitCode::from(2);
     }
     if args.glb && args.format == FormatArg::Json {
-        eprintln!("error: --glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
+        error("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
         return ExitCode::from(2);
     }
     let outputs = Outputs::of(args);
     if let Err(e) = std::fs::create_dir_all(&args.out) {
-        eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", args.out.display());
+        error(format!(
+            "{}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder",
+            args.out.display()
+        ));
         return ExitCode::from(2);
     }
     // two layers with one stem would write one mesh file: refuse the later ones
@@ -297,6 +390,12 @@ fn cut(args: &CutArgs) -> ExitCode {
             }
         })
         .collect();
+    // a bar only for a batch
+    let progress = if args.images.len() > 1 {
+        bar(print, args.images.len(), "layers cut")
+    } else {
+        indicatif::ProgressBar::hidden()
+    };
     let results: Vec<Result<LayerLine, FileError>> = args
         .images
         .par_iter()
@@ -312,14 +411,31 @@ fn cut(args: &CutArgs) -> ExitCode {
             )),
             None => cut_one(path, &args.out, &settings, outputs),
         })
+        .inspect(|_| progress.inc(1))
         .collect();
-    println!(
-        "{:<28} {:>8} {:>9} {:>12}",
-        "layer", "vertices", "capture", "excess"
-    );
+    progress.finish_and_clear();
+    if print.text() {
+        println!(
+            "{:<28} {:>8} {:>9} {:>12}",
+            "layer", "vertices", "capture", "excess"
+        );
+    }
     let (mut ok, mut vertices, mut failures) = (0usize, 0usize, Vec::new());
+    let mut objects = Vec::new();
     for r in results {
         match r {
+            Ok(l) if !print.text() => {
+                objects.push(serde_json::json!({
+                    "layer": l.name,
+                    "vertices": l.vertices,
+                    "opaque_capture": l.capture,
+                    "excess": l.excess,
+                    "notes": l.notes,
+                    "outputs": l.outputs,
+                }));
+                ok += 1;
+                vertices += l.vertices;
+            }
             Ok(l) => {
                 println!(
                     "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%)",
@@ -342,13 +458,20 @@ fn cut(args: &CutArgs) -> ExitCode {
             Err(e) => failures.push(e),
         }
     }
-    println!("total: {ok} layers, {vertices} vertices");
+    if print.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&objects).expect("plain values serialize")
+        );
+    } else if print.text() {
+        println!("total: {ok} layers, {vertices} vertices");
+    }
     if failures.is_empty() {
         return ExitCode::SUCCESS;
     }
     eprintln!("{} of {} layers failed:", failures.len(), args.images.len());
     for e in &failures {
-        eprintln!("error: {e}");
+        error(&e);
     }
     ExitCode::from(2)
 }
@@ -408,6 +531,11 @@ fn cut_one(
         write_atomic(&dest, &underdraw::heatmap::rgba_png(img))?;
     }
     let s = &outcome.mesh.stats;
+    let written = outputs
+        .paths(out, &stem)
+        .iter()
+        .map(|p| p.display().to_string())
+        .collect();
     Ok(LayerLine {
         name: path.display().to_string(),
         vertices: s.vertices,
@@ -415,6 +543,7 @@ fn cut_one(
         excess: s.excess(),
         must_cover: s.must_cover_area,
         notes: outcome.notes,
+        outputs: written,
     })
 }
 
@@ -425,27 +554,47 @@ fn same_file(a: &Path, b: &Path) -> bool {
     }
 }
 
-fn check(mesh_path: &Path, image_path: &Path) -> ExitCode {
+fn check(mesh_path: &Path, image_path: &Path, print: Print) -> ExitCode {
     let mesh = match load_mesh(mesh_path) {
         Ok(m) => m,
         Err(e) => {
-            eprintln!("error: {e}");
+            error(&e);
             return ExitCode::from(2);
         }
     };
     let map = match load_alpha(image_path) {
         Ok(m) => m,
         Err(e) => {
-            eprintln!("error: {e}");
+            error(&e);
             return ExitCode::from(2);
         }
     };
     match check_mesh(&mesh, &map) {
         Err(e) => {
-            eprintln!("error: {}: {e}", mesh_path.display());
+            error(format!("{}: {e}", mesh_path.display()));
             ExitCode::from(2)
         }
+        Ok(report) if print.json => {
+            let violations: Vec<String> =
+                report.violations().iter().map(|v| v.to_string()).collect();
+            let v = serde_json::json!({
+                "holds": report.holds(),
+                "opaque_area": report.opaque_area,
+                "safe_area": report.safe_area,
+                "covered_area": report.covered_area,
+                "must_cover_area": report.must_cover_area,
+                "violations": violations,
+            });
+            println!(
+                "{}",
+                serde_json::to_string_pretty(&v).expect("plain values serialize")
+            );
+            ExitCode::from(if report.holds() { 0 } else { 1 })
+        }
         Ok(report) if report.holds() => {
+            if print.quiet {
+                return ExitCode::SUCCESS;
+            }
             println!(
                 "contract holds: opaque mesh {:.1} of {:.1} safe texels, meshes cover {:.1} of {:.1} must-cover texels, no overlap",
                 report.opaque_area, report.safe_area, report.covered_area, report.must_cover_area
@@ -462,7 +611,7 @@ fn check(mesh_path: &Path, image_path: &Path) -> ExitCode {
     }
 }
 
-fn scene(args: &SceneArgs) -> ExitCode {
+fn scene(args: &SceneArgs, print: Print) -> ExitCode {
     let out = args.out.clone().unwrap_or_else(|| {
         let stem = args
             .scene
@@ -478,37 +627,55 @@ fn scene(args: &SceneArgs) -> ExitCode {
         dump_frame: args.dump_frame,
         vertex_total: args.vertex_total,
         report: args.report.clone(),
+        progress: None,
     };
-    match run_scene(&opts) {
+    let progress = Arc::new(SceneBar {
+        print,
+        current: Mutex::new(None),
+    });
+    let opts = SceneOptions {
+        progress: Some(progress.clone()),
+        ..opts
+    };
+    let result = run_scene(&opts);
+    progress.clear();
+    match result {
         Ok(report) => {
-            print!("{}", report.table());
-            if let Some(dir) = &args.report {
-                println!("report: {}", dir.join("index.html").display());
+            if print.json {
+                println!(
+                    "{}",
+                    serde_json::to_string_pretty(&report).expect("the report serializes")
+                );
+            } else if print.text() {
+                print!("{}", report.table());
+                if let Some(dir) = &args.report {
+                    println!("report: {}", dir.join("index.html").display());
+                }
             }
             ExitCode::SUCCESS
         }
         Err(e) => {
-            eprintln!("error: {e}");
+            error(&e);
             ExitCode::from(2)
         }
     }
 }
 
-fn sweep(args: &SweepArgs) -> ExitCode {
+fn sweep(args: &SweepArgs, print: Print) -> ExitCode {
     let fail = |e: FileError| {
-        eprintln!("error: {e}");
+        error(&e);
         ExitCode::from(2)
     };
     if !(args.knee > 0.0 && args.knee <= 1.0) {
-        eprintln!(
-            "error: --knee {} is not a fraction in (0, 1]\n  hint: give e.g. --knee 0.8",
+        error(format!(
+            "--knee {} is not a fraction in (0, 1]\n  hint: give e.g. --knee 0.8",
             args.knee
-        );
+        ));
         return ExitCode::from(2);
     }
     let base = args.options.settings(4);
     if let Err(e) = base.validate() {
-        eprintln!("error: {e}");
+        error(&e);
         return ExitCode::from(2);
     }
     let map = match load_alpha(&args.image) {
@@ -520,7 +687,10 @@ fn sweep(args: &SweepArgs) -> ExitCode {
         .clone()
         .unwrap_or_else(|| Path::new("out").join("sweep"));
     if let Err(e) = std::fs::create_dir_all(&out) {
-        eprintln!("error: {}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder", out.display());
+        error(format!(
+            "{}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder",
+            out.display()
+        ));
         return ExitCode::from(2);
     }
     let stem = args
@@ -543,6 +713,25 @@ fn sweep(args: &SweepArgs) -> ExitCode {
     }
     let points = sweep_layer(&map, &name, &base, &BUDGETS);
     let knee_budget = knee(&points, args.knee);
+    if let Err(e) = write_atomic(&dest, to_csv(&points).as_bytes()) {
+        return fail(e);
+    }
+    if print.json {
+        let v = serde_json::json!({
+            "points": points,
+            "knee": knee_budget,
+            "knee_fraction": args.knee,
+            "outputs": [dest.display().to_string()],
+        });
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&v).expect("plain values serialize")
+        );
+        return ExitCode::SUCCESS;
+    }
+    if print.quiet {
+        return ExitCode::SUCCESS;
+    }
     print!("{}", to_table(&points, knee_budget));
     if let Some(k) = knee_budget {
         println!(
@@ -550,9 +739,6 @@ fn sweep(args: &SweepArgs) -> ExitCode {
             100.0 * args.knee,
             BUDGETS[BUDGETS.len() - 1]
         );
-    }
-    if let Err(e) = write_atomic(&dest, to_csv(&points).as_bytes()) {
-        return fail(e);
     }
     println!("wrote {}", dest.display());
     ExitCode::SUCCESS

@@ -7,7 +7,7 @@ use super::draws::{frame_draws, Strategy};
 use super::file::{load_scene, Scene};
 use super::prepare::prepare_layers;
 use super::report::{HeatmapInfo, SceneReport};
-use super::score::{render_frame, score_frames, summarize};
+use super::score::{render_frame, score_frames_with, summarize};
 use crate::error::FileError;
 use crate::frame::Draw;
 use crate::heatmap::{counts_png, heatmap, rgb_png};
@@ -16,6 +16,7 @@ use crate::mesh::LayerMesh;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
+use std::sync::Arc;
 
 /// Highest count the heatmaps' colour scale tells apart.
 pub const HEATMAP_TOP_MAX: u32 = 15;
@@ -31,6 +32,21 @@ pub struct SceneOptions {
     pub vertex_total: Option<usize>,
     /// Folder for the web page report (`index.html` and its images).
     pub report: Option<PathBuf>,
+    /// Told how far the long steps are (the command line draws a bar).
+    pub progress: Option<Arc<dyn Progress>>,
+}
+
+/// Someone told how far `run_scene`'s long steps are: `start` as a step of
+/// `total` units begins, `step` as each unit ends (from any thread).
+pub trait Progress: Send + Sync {
+    fn start(&self, what: &str, total: usize);
+    fn step(&self);
+}
+
+impl std::fmt::Debug for dyn Progress {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("Progress")
+    }
 }
 
 /// A dumped frame: `frame-K.json`.
@@ -121,7 +137,23 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
     let cams = scene.camera_positions();
-    let frames = score_frames(&Strategy::ALL, &specs, &meshes, scene.viewport, &cams);
+    let progress = opts.progress.as_deref();
+    if let Some(p) = progress {
+        p.start("camera samples", Strategy::ALL.len() * cams.len());
+    }
+    let tick = || {
+        if let Some(p) = progress {
+            p.step();
+        }
+    };
+    let frames = score_frames_with(
+        &Strategy::ALL,
+        &specs,
+        &meshes,
+        scene.viewport,
+        &cams,
+        &tick,
+    );
     let (strategies, layer_reports) = summarize(&frames, &specs, &meshes, scene.viewport);
 
     // heatmaps of rect and split, each at its peak sample, on one colour scale
@@ -263,7 +295,14 @@ fn write_report_page(
     let mut cards = Vec::new();
     // layers drawn from one image with one cut share their sweep
     let mut sweeps = std::collections::HashMap::new();
+    let progress = opts.progress.as_deref();
+    if let Some(p) = progress {
+        p.start("budget sweeps", layers.len());
+    }
     for (layer, lr) in layers.iter().zip(&report.layers) {
+        if let Some(p) = progress {
+            p.step();
+        }
         let name = &layer.spec.name;
         let mesh = &layer.mesh;
         let s = &mesh.stats;

@@ -78,6 +78,19 @@ pub fn score_frames(
     viewport: [u32; 2],
     cameras: &[f64],
 ) -> Vec<FrameScore> {
+    score_frames_with(strategies, specs, meshes, viewport, cameras, &|| {})
+}
+
+/// [`score_frames`], calling `tick` once as each frame (strategy, camera
+/// sample) is scored, from any thread.
+pub fn score_frames_with(
+    strategies: &[Strategy],
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+    cameras: &[f64],
+    tick: &(dyn Fn() + Sync),
+) -> Vec<FrameScore> {
     let index: HashMap<&str, usize> = specs
         .iter()
         .enumerate()
@@ -103,6 +116,7 @@ pub fn score_frames(
             }
             let mut total = Work::default();
             per_layer.iter().for_each(|w| total.add(w));
+            tick();
             FrameScore {
                 strategy,
                 sample,
