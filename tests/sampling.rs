@@ -29,26 +29,8 @@ use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap
 /// Points closer than this to a triangle edge are skipped (measure zero).
 const EDGE_EPS: f64 = 1e-6;
 
-/// splitmix64 (common practice, no source).
-struct Rng(u64);
-impl Rng {
-    fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-    fn unit(&mut self) -> f64 {
-        (self.next() >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn range(&mut self, lo: f64, hi: f64) -> f64 {
-        lo + (hi - lo) * self.unit()
-    }
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n
-    }
-}
+mod common;
+use common::Rng;
 
 // ------------------------------------------------------------- the sampler
 
