@@ -11,7 +11,6 @@ use proptest::prelude::*;
 use underdraw::alpha::AlphaMap;
 use underdraw::check::check_mesh;
 use underdraw::cut::{cut_layer, CutOutcome};
-use underdraw::mesh::LayerMesh;
 use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
 
 /// Cases per random property when `PROPTEST_CASES` is not set.
@@ -85,7 +84,7 @@ enum Shape {
 }
 
 mod common;
-use common::Rng;
+use common::{triangle_polygons as triangles, Rng};
 
 fn ramp(t: f64) -> u8 {
     (t.clamp(0.0, 1.0) * 255.0).round() as u8
@@ -498,26 +497,6 @@ fn square(x0: f64, y0: f64, x1: f64, y1: f64) -> Polygon<f64> {
         LineString::new(vec![c(x0, y0), c(x1, y0), c(x1, y1), c(x0, y1), c(x0, y0)]),
         vec![],
     )
-}
-
-fn triangles(m: &LayerMesh, indices: &[u32]) -> Vec<Polygon<f64>> {
-    indices
-        .chunks(3)
-        .map(|t| {
-            let mut ring: Vec<Coord<f64>> = t
-                .iter()
-                .map(|&i| {
-                    let [x, y] = m.position(i);
-                    Coord {
-                        x: x as f64,
-                        y: y as f64,
-                    }
-                })
-                .collect();
-            ring.push(ring[0]);
-            Polygon::new(LineString::new(ring), vec![])
-        })
-        .collect()
 }
 
 #[test]

@@ -43,7 +43,9 @@
 //! well as these; the tests allow 3% for the half-texel vertex grid and for
 //! the budget being shared between the two outlines.
 
-use geo::{Area, BooleanOps, Coord, LineString, MultiPolygon, Polygon};
+mod common;
+use common::triangle_polygons;
+use geo::{Area, BooleanOps, MultiPolygon};
 use std::f64::consts::PI;
 use underdraw::alpha::AlphaMap;
 use underdraw::check::check_mesh;
@@ -190,18 +192,7 @@ fn disc_meshes_approach_the_regular_polygons() {
 /// The union of a triangle list's triangles, by geo's boolean operations.
 fn union_of(mesh: &LayerMesh, list: &TriangleList) -> MultiPolygon<f64> {
     let mut acc = MultiPolygon::<f64>::new(Vec::new());
-    for t in list.indices.chunks(3) {
-        let pts: Vec<Coord<f64>> = t
-            .iter()
-            .map(|&i| {
-                let [x, y] = mesh.position(i);
-                Coord {
-                    x: x as f64,
-                    y: y as f64,
-                }
-            })
-            .collect();
-        let tri = Polygon::new(LineString::from(pts), Vec::new());
+    for tri in triangle_polygons(mesh, &list.indices) {
         acc = acc.union(&tri);
     }
     acc

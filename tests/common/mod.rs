@@ -25,3 +25,28 @@ impl Rng {
         self.next() % n
     }
 }
+
+/// The triangles of an index list as `geo` polygons (closed rings), for
+/// geo's area and boolean operations as the reference implementation.
+pub fn triangle_polygons(
+    m: &underdraw::mesh::LayerMesh,
+    indices: &[u32],
+) -> Vec<geo::Polygon<f64>> {
+    indices
+        .chunks(3)
+        .map(|t| {
+            let mut ring: Vec<geo::Coord<f64>> = t
+                .iter()
+                .map(|&i| {
+                    let [x, y] = m.position(i);
+                    geo::Coord {
+                        x: x as f64,
+                        y: y as f64,
+                    }
+                })
+                .collect();
+            ring.push(ring[0]);
+            geo::Polygon::new(geo::LineString::new(ring), vec![])
+        })
+        .collect()
+}
