@@ -13,11 +13,50 @@ use std::fs;
 use std::io::{Cursor, Write};
 use std::path::Path;
 
-/// Largest layer accepted, per side.
+/// Largest layer accepted by default, per side.
 pub const MAX_SIDE: u32 = 16384;
 
-/// Reads a PNG layer and keeps its alpha channel.
+/// Most texels accepted by default (16384 x 16384 = 268,435,456).
+pub const MAX_PIXELS: u64 = 16384 * 16384;
+
+/// The largest layer a run accepts, checked from the PNG header before the
+/// image is decoded, so a crafted header cannot make underdraw allocate
+/// more than the limits allow.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct ImageLimits {
+    /// Most texels per side.
+    pub max_side: u32,
+    /// Most texels in all (width x height).
+    pub max_pixels: u64,
+}
+
+impl Default for ImageLimits {
+    fn default() -> Self {
+        ImageLimits {
+            max_side: MAX_SIDE,
+            max_pixels: MAX_PIXELS,
+        }
+    }
+}
+
+/// A decoded layer: its alpha channel and what the user should know about
+/// the file (for example that only the first frame of an animation was
+/// read).
+#[derive(Clone, Debug)]
+pub struct Layer {
+    /// The layer's alpha channel.
+    pub alpha: AlphaMap,
+    /// Plain-language warnings about the file; empty for a plain PNG.
+    pub warnings: Vec<String>,
+}
+
+/// Reads a PNG layer and keeps its alpha channel, with the default limits.
 pub fn load_alpha(path: &Path) -> Result<AlphaMap, FileError> {
+    load_layer(path, &ImageLimits::default()).map(|l| l.alpha)
+}
+
+/// Reads a PNG layer within `limits`.
+pub fn load_layer(path: &Path, limits: &ImageLimits) -> Result<Layer, FileError> {
     let bytes = fs::read(path).map_err(|e| {
         FileError::new(
             path,
@@ -25,11 +64,17 @@ pub fn load_alpha(path: &Path) -> Result<AlphaMap, FileError> {
             "check the path and the file's permissions",
         )
     })?;
-    decode_alpha(path, &bytes)
+    decode_layer(path, &bytes, limits)
 }
 
-/// Decodes PNG bytes (`path` only names them in errors).
+/// Decodes PNG bytes with the default limits (`path` only names them in
+/// errors).
 pub fn decode_alpha(path: &Path, bytes: &[u8]) -> Result<AlphaMap, FileError> {
+    decode_layer(path, bytes, &ImageLimits::default()).map(|l| l.alpha)
+}
+
+/// Decodes PNG bytes within `limits` (`path` only names them in errors).
+pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<Layer, FileError> {
     if bytes.is_empty() {
         return Err(FileError::new(
             path,
@@ -57,17 +102,45 @@ pub fn decode_alpha(path: &Path, bytes: &[u8]) -> Result<AlphaMap, FileError> {
             ))
         }
     }
+    // the size from the header alone, before anything large is allocated
+    let header = ImageReader::with_format(Cursor::new(bytes), ImageFormat::Png);
+    let (w, h) = header.into_dimensions().map_err(|e| {
+        FileError::new(
+            path,
+            format!("is a damaged PNG: its header cannot be read ({e})"),
+            "re-export the layer from your art tool",
+        )
+    })?;
+    if w == 0 || h == 0 {
+        return Err(FileError::new(
+            path,
+            "has no texels (zero width or height)",
+            "export a non-empty layer",
+        ));
+    }
+    let pixels = w as u64 * h as u64;
+    if w > limits.max_side || h > limits.max_side || pixels > limits.max_pixels {
+        return Err(FileError::new(
+            path,
+            format!(
+                "is {w} x {h} texels ({pixels} in all), over the limit of {} per side and {} in all",
+                limits.max_side, limits.max_pixels
+            ),
+            "split the layer into smaller tiles, or raise the limit with --max-pixels",
+        ));
+    }
     let mut reader = reader;
-    let mut limits = Limits::default();
-    limits.max_image_width = Some(MAX_SIDE);
-    limits.max_image_height = Some(MAX_SIDE);
-    limits.max_alloc = Some(6 * 1024 * 1024 * 1024);
-    reader.limits(limits);
+    let mut decode_limits = Limits::default();
+    decode_limits.max_image_width = Some(limits.max_side);
+    decode_limits.max_image_height = Some(limits.max_side);
+    // the largest decoded form: 16-bit RGBA, 8 bytes a texel, plus slack
+    decode_limits.max_alloc = Some(pixels.saturating_mul(8).saturating_add(64 << 20));
+    reader.limits(decode_limits);
     let image = reader.decode().map_err(|e| match e {
         image::ImageError::Limits(_) => FileError::new(
             path,
-            format!("is larger than {MAX_SIDE} x {MAX_SIDE} texels"),
-            "split the layer into tiles no larger than that",
+            format!("is {w} x {h} texels, too large to decode within the limits"),
+            "split the layer into smaller tiles, or raise the limit with --max-pixels",
         ),
         other => FileError::new(
             path,
@@ -75,14 +148,10 @@ pub fn decode_alpha(path: &Path, bytes: &[u8]) -> Result<AlphaMap, FileError> {
             "re-export the layer from your art tool",
         ),
     })?;
-    if image.width() == 0 || image.height() == 0 {
-        return Err(FileError::new(
-            path,
-            "has no texels (zero width or height)",
-            "export a non-empty layer",
-        ));
-    }
-    Ok(AlphaMap::from_image(&image))
+    Ok(Layer {
+        alpha: AlphaMap::from_image(&image),
+        warnings: Vec::new(),
+    })
 }
 
 /// Reads a mesh file.
