@@ -1,0 +1,195 @@
+//! The `underdraw` command: parses arguments, calls the library, prints.
+//!
+//! One file a subcommand (`cut`, `check`, `scene`, `sweep`); this one holds
+//! the top-level parser, the shared options and the printing conventions.
+
+mod check;
+mod cut;
+mod scene;
+mod sweep;
+
+use clap::{Args, Parser, Subcommand, ValueEnum};
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+
+use cut::CutArgs;
+use scene::SceneArgs;
+use sweep::SweepArgs;
+
+const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract violation; 2 bad usage or bad input (a batch finishes the good layers first and lists the failures).";
+
+/// Cut 2D sprite layers into an opaque mesh (drawn with blending off, so the
+/// GPU can cull what lies behind it) and a blended mesh for the remaining
+/// visible texels, under a vertex budget, with a guarantee: the opaque mesh
+/// never covers a texel that could sample as less than opaque under the
+/// chosen filter, and the two meshes never clip a visible texel.
+#[derive(Parser)]
+#[command(name = "underdraw", version, after_help = EXIT_HELP)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+    /// Print nothing but errors (on stderr); no tables, no progress bar.
+    #[arg(long, global = true)]
+    quiet: bool,
+    /// Print a machine-readable result on stdout instead of the tables:
+    /// `cut`, an array of per-layer objects (layer, vertices,
+    /// opaque_capture, excess, notes, outputs); `scene`, the scene report
+    /// (as scene-report.json); `check`, the contract's areas and whether it
+    /// holds; `sweep`, the points and the knee.
+    #[arg(long, global = true, conflicts_with = "quiet")]
+    json: bool,
+}
+
+/// How much to print.
+#[derive(Clone, Copy)]
+pub(crate) struct Print {
+    quiet: bool,
+    json: bool,
+}
+
+impl Print {
+    /// Tables and other human-readable lines on stdout.
+    pub(crate) fn text(&self) -> bool {
+        !self.quiet && !self.json
+    }
+}
+
+/// Colour on a stream only when it is a terminal and NO_COLOR is unset or
+/// empty (the NO_COLOR convention, no-color.org).
+pub(crate) fn colour(terminal: bool) -> bool {
+    terminal && std::env::var_os("NO_COLOR").is_none_or(|v| v.is_empty())
+}
+
+/// Print an error on stderr, "error:" in red on a colour terminal.
+pub(crate) fn error(msg: impl std::fmt::Display) {
+    if colour(std::io::stderr().is_terminal()) {
+        eprintln!("\x1b[31merror:\x1b[0m {msg}");
+    } else {
+        eprintln!("error: {msg}");
+    }
+}
+
+/// A progress bar on stderr, drawn only when stderr is a terminal and not
+/// --quiet or --json; otherwise hidden.
+pub(crate) fn bar(print: Print, len: usize, what: &str) -> indicatif::ProgressBar {
+    if print.quiet || print.json || !std::io::stderr().is_terminal() {
+        return indicatif::ProgressBar::hidden();
+    }
+    let style = indicatif::ProgressStyle::with_template("{msg:>16} [{bar:32}] {pos}/{len}")
+        .expect("a valid progress template")
+        .progress_chars("=> ");
+    indicatif::ProgressBar::new(len as u64)
+        .with_style(style)
+        .with_message(what.to_string())
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Cut PNG layers into `<OUT>/<stem>.mesh.json` mesh files, or glTF 2.0
+    /// assets for an engine (`--format`).
+    #[command(after_help = EXIT_HELP)]
+    Cut(CutArgs),
+    /// Re-verify a mesh file against its layer, with code independent of `cut`.
+    #[command(after_help = EXIT_HELP)]
+    Check {
+        /// The mesh file (`.mesh.json`) written by `cut`.
+        mesh: PathBuf,
+        /// The PNG layer it was cut from.
+        image: PathBuf,
+    },
+    /// Score a parallax scene on a simulated GPU: overdraw, lanes, vertices
+    /// and draws per strategy (rect, outline, split) and per layer, with
+    /// heatmaps; optionally choose a vertex budget per layer.
+    #[command(after_help = EXIT_HELP)]
+    Scene(SceneArgs),
+    /// Cut one layer at budgets 4 to 256 and find the knee of its saving curve.
+    #[command(after_help = EXIT_HELP)]
+    Sweep(SweepArgs),
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+pub(crate) enum FilterArg {
+    Nearest,
+    Bilinear,
+}
+
+#[derive(Clone, Copy, ValueEnum)]
+pub(crate) enum WrapArg {
+    None,
+    X,
+    Y,
+    Xy,
+}
+
+/// The cut settings other than the budget.
+#[derive(Args)]
+pub(crate) struct CutOptions {
+    /// Texture filter the layer is drawn with: `nearest` keeps the opaque mesh
+    /// inside opaque texels; `bilinear` also keeps it half a texel (at mip
+    /// level l, 2^(l-1) texels) away from any texel that is not opaque.
+    #[arg(long, value_enum, default_value = "bilinear")]
+    filter: FilterArg,
+    /// Highest mip level the layer may be sampled from (0: no mipmaps). The
+    /// meshes are made safe for every level up to this one.
+    #[arg(long, default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
+    mip_levels: u32,
+    /// Axes on which the layer's texture repeats (tiling strips); other axes
+    /// clamp to the edge texel.
+    #[arg(long, value_enum, default_value = "none")]
+    wrap: WrapArg,
+    /// Alpha (0-255) from which a texel counts as opaque.
+    #[arg(long, default_value_t = 255)]
+    opaque_min: u8,
+    /// Alpha (0-255) from which a texel counts as visible and must be covered.
+    #[arg(long, default_value_t = 1)]
+    visible_min: u8,
+}
+
+impl CutOptions {
+    pub(crate) fn settings(&self, budget: usize) -> CutSettings {
+        CutSettings {
+            budget,
+            filter: Filter {
+                mode: match self.filter {
+                    FilterArg::Nearest => FilterMode::Nearest,
+                    FilterArg::Bilinear => FilterMode::Bilinear,
+                },
+                mip_levels: self.mip_levels,
+            },
+            alpha: AlphaThresholds {
+                opaque_min: self.opaque_min,
+                visible_min: self.visible_min,
+            },
+            wrap: match self.wrap {
+                WrapArg::None => Wrap::None,
+                WrapArg::X => Wrap::X,
+                WrapArg::Y => Wrap::Y,
+                WrapArg::Xy => Wrap::Xy,
+            },
+        }
+    }
+}
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    let print = Print {
+        quiet: cli.quiet,
+        json: cli.json,
+    };
+    match cli.command {
+        Command::Cut(args) => cut::cut(&args, print),
+        Command::Check { mesh, image } => check::check(&mesh, &image, print),
+        Command::Scene(args) => scene::scene(&args, print),
+        Command::Sweep(args) => sweep::sweep(&args, print),
+    }
+}
+
+/// Whether two paths name the same existing file.
+pub(crate) fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}

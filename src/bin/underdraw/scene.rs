@@ -1,0 +1,112 @@
+//! `underdraw scene`: score a parallax scene on the simulated GPU.
+
+use crate::{bar, error, Print};
+use clap::Args;
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use std::sync::{Arc, Mutex};
+use underdraw::scene::run::{run_scene, Progress, SceneOptions};
+
+#[derive(Args)]
+pub(crate) struct SceneArgs {
+    /// The scene file (`.scene.json`, see the README's Scenes section).
+    scene: PathBuf,
+    /// Folder for the report, heatmaps and meshes (created if missing;
+    /// default `out/<scene name>`).
+    #[arg(long, short)]
+    out: Option<PathBuf>,
+    /// Also write camera sample K's draws (`frame-K.json`) and per-pixel
+    /// fragment counts (`counts-K-<strategy>.png`, 16-bit grey).
+    #[arg(long, value_name = "K")]
+    dump_frame: Option<usize>,
+    /// Split N vertices over the layers cut on the fly to save the most
+    /// fragments with the split strategy; writes `<layer>.mesh.json` and
+    /// compares against the same total spread evenly.
+    #[arg(long, value_name = "N")]
+    vertex_total: Option<usize>,
+    /// Also write a self-contained web page report, `DIR/index.html`, with
+    /// its images beside it: the strategies, the heatmaps side by side, and
+    /// a card per layer (preview, budget plot from a sweep, numbers,
+    /// warnings).
+    #[arg(long, value_name = "DIR")]
+    report: Option<PathBuf>,
+}
+
+/// `run_scene`'s steps shown as one bar per step.
+struct SceneBar {
+    print: Print,
+    current: Mutex<Option<indicatif::ProgressBar>>,
+}
+
+impl Progress for SceneBar {
+    fn start(&self, what: &str, total: usize) {
+        let mut c = self.current.lock().unwrap();
+        if let Some(b) = c.take() {
+            b.finish_and_clear();
+        }
+        *c = Some(bar(self.print, total, what));
+    }
+    fn step(&self) {
+        if let Some(b) = &*self.current.lock().unwrap() {
+            b.inc(1);
+        }
+    }
+}
+
+impl SceneBar {
+    fn clear(&self) {
+        if let Some(b) = self.current.lock().unwrap().take() {
+            b.finish_and_clear();
+        }
+    }
+}
+
+pub(crate) fn scene(args: &SceneArgs, print: Print) -> ExitCode {
+    let out = args.out.clone().unwrap_or_else(|| {
+        let stem = args
+            .scene
+            .file_name()
+            .map(|n| n.to_string_lossy().into_owned())
+            .unwrap_or_default();
+        let stem = stem.trim_end_matches(".json").trim_end_matches(".scene");
+        Path::new("out").join(stem)
+    });
+    let opts = SceneOptions {
+        scene: args.scene.clone(),
+        out,
+        dump_frame: args.dump_frame,
+        vertex_total: args.vertex_total,
+        report: args.report.clone(),
+        progress: None,
+    };
+    let progress = Arc::new(SceneBar {
+        print,
+        current: Mutex::new(None),
+    });
+    let opts = SceneOptions {
+        progress: Some(progress.clone()),
+        ..opts
+    };
+    let result = run_scene(&opts);
+    progress.clear();
+    match result {
+        Ok(report) => {
+            if print.json {
+                println!(
+                    "{}",
+                    serde_json::to_string_pretty(&report).expect("the report serializes")
+                );
+            } else if print.text() {
+                print!("{}", report.table());
+                if let Some(dir) = &args.report {
+                    println!("report: {}", dir.join("index.html").display());
+                }
+            }
+            ExitCode::SUCCESS
+        }
+        Err(e) => {
+            error(&e);
+            ExitCode::from(2)
+        }
+    }
+}
