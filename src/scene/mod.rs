@@ -9,8 +9,11 @@
 //! * [`budget`]: the budget per layer for a vertex total, by marginal gain.
 //! * [`report`], [`run`]: the `underdraw scene` command's report and outputs.
 //! * [`html`]: the report as a self-contained web page (`scene --report DIR`).
+//! * [`export`]: every layer's meshes and the draw list for an engine
+//!   (`scene --export DIR`).
 pub mod budget;
 pub mod draws;
+pub mod export;
 pub mod file;
 pub mod html;
 pub mod prepare;

@@ -32,6 +32,8 @@ pub struct SceneOptions {
     pub vertex_total: Option<usize>,
     /// Folder for the web page report (`index.html` and its images).
     pub report: Option<PathBuf>,
+    /// Folder for every layer's meshes (JSON and glTF) and the draw list.
+    pub export: Option<PathBuf>,
     /// Told how far the long steps are (the command line draws a bar).
     pub progress: Option<Arc<dyn Progress>>,
 }
@@ -211,6 +213,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         out.write(&format!("frame-{k}.json"), &json)?;
     }
 
+    let mut chosen: Option<Vec<LayerMesh>> = None;
     let allocation = match opts.vertex_total {
         None => None,
         Some(total) => {
@@ -221,9 +224,26 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
                     out.write(&format!("{}.mesh.json", l.spec.name), &json)?;
                 }
             }
+            chosen = Some(a.meshes);
             Some(a.report)
         }
     };
+    if let Some(dir) = &opts.export {
+        // the budgets chosen by the allocation, else each layer's own mesh
+        let exported: Vec<&LayerMesh> = match &chosen {
+            Some(m) => m.iter().collect(),
+            None => meshes.clone(),
+        };
+        let mut to = Outputs {
+            dir: dir.clone(),
+            inputs: scene.inputs(),
+            written: Vec::new(),
+        };
+        super::export::export_scene(dir, &scene, &layers, &exported, &mut |name, bytes| {
+            to.write(name, bytes)
+        })?;
+        out.written.extend(to.written);
+    }
 
     let notes = layers
         .iter()

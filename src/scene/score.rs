@@ -8,7 +8,7 @@
 //! of the sums.
 
 use super::draws::{frame_draws, Strategy};
-use super::file::LayerSpec;
+use super::file::{LayerSpec, Scene};
 use crate::frame::{render, FrameResult};
 use crate::mesh::LayerMesh;
 use rayon::prelude::*;
@@ -126,6 +126,44 @@ pub fn score_frames_with(
             }
         })
         .collect()
+}
+
+/// Scores a loaded scene with the given meshes (`meshes[i]` for
+/// `scene.layers[i]`): every strategy at every camera sample, summarized
+/// per strategy and per layer. This is what `underdraw scene` reports.
+///
+/// ```
+/// use underdraw::cut::cut_layer;
+/// use underdraw::io::load_alpha;
+/// use underdraw::scene::{draws::Strategy, file::parse_scene, score::score_scene};
+/// use underdraw::settings::CutSettings;
+/// use std::path::Path;
+/// // the demo's 128x128 button, alone on a 256x128 screen (paths are
+/// // relative to the scene file; doc tests run in the crate's folder)
+/// let text = r#"{"viewport": [256, 128], "camera": {"travel": 0, "samples": 1},
+///                "layers": [{"name": "button", "image": "ui-button.png"}]}"#;
+/// let scene = parse_scene(Path::new("demo-layers/doc.scene.json"), text).unwrap();
+/// let map = load_alpha(Path::new("demo-layers/ui-button.png")).unwrap();
+/// let mesh = cut_layer(&map, "ui-button.png", &CutSettings::default()).mesh;
+/// let (strategies, layers) = score_scene(&scene, &[&mesh]);
+/// let of = |s| strategies.iter().find(|r| r.strategy == s).unwrap().per_frame.fragments;
+/// // the rectangle shades all 128 x 128 pixels; the meshes only what is visible
+/// assert_eq!(of(Strategy::Rect), 16384.0);
+/// assert!(of(Strategy::Split) < of(Strategy::Rect));
+/// assert_eq!(layers[0].name, "button");
+/// ```
+pub fn score_scene(
+    scene: &Scene,
+    meshes: &[&LayerMesh],
+) -> (Vec<StrategyReport>, Vec<LayerReport>) {
+    let frames = score_frames(
+        &Strategy::ALL,
+        &scene.layers,
+        meshes,
+        scene.viewport,
+        &scene.camera_positions(),
+    );
+    summarize(&frames, &scene.layers, meshes, scene.viewport)
 }
 
 /// A strategy's numbers over the camera samples.

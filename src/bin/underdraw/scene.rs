@@ -30,6 +30,14 @@ pub(crate) struct SceneArgs {
     /// warnings).
     #[arg(long, value_name = "DIR")]
     report: Option<PathBuf>,
+    /// Also write, for an engine, every layer's `<name>.mesh.json` and glTF
+    /// asset (`<name>.gltf` + `.bin`) with the budgets chosen (by
+    /// --vertex-total when given), and `DIR/draw-list.json`: the opaque
+    /// pass front to back (blending off, depth test and write) then the
+    /// blended pass back to front (blending on, depth test, no write), each
+    /// draw with its layer, mesh, depth and blend state.
+    #[arg(long, value_name = "DIR")]
+    export: Option<PathBuf>,
 }
 
 /// `run_scene`'s steps shown as one bar per step.
@@ -77,6 +85,7 @@ pub(crate) fn scene(args: &SceneArgs, print: Print) -> ExitCode {
         dump_frame: args.dump_frame,
         vertex_total: args.vertex_total,
         report: args.report.clone(),
+        export: args.export.clone(),
         progress: None,
     };
     let progress = Arc::new(SceneBar {

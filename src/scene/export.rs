@@ -1,0 +1,302 @@
+//! `scene --export DIR`: every layer's meshes for an engine, and the draw
+//! list that says how to draw them.
+//!
+//! The draw list (`DIR/draw-list.json`, our own format
+//! [`DRAW_LIST_FORMAT`]) has two passes, in the order an engine submits
+//! them:
+//!
+//! 1. **opaque**: the layers' opaque meshes, front to back, blending off,
+//!    depth test LESS and depth write on, so each fragment hidden behind a
+//!    nearer opaque mesh is rejected before it is shaded;
+//! 2. **blended**: the blended meshes, back to front, blending on (the
+//!    "over" operator on straight alpha), depth test LESS, depth write off,
+//!    so a blended fragment behind an opaque one is rejected and the others
+//!    composite in painter's order.
+//!
+//! Invariants: the entries are exactly the non-empty draws of the
+//! [`Strategy::Split`] frame in the same order (the scorer's model, so the
+//! report's numbers are the numbers of this list); each layer's depth is
+//! [`layer_depth`], the front layer nearest; each entry names a mesh file
+//! and a glTF primitive written beside the list.
+
+use super::draws::layer_depth;
+#[allow(unused_imports)]
+use super::draws::Strategy; // named in the docs
+use super::file::Scene;
+use super::prepare::Layer;
+use crate::error::FileError;
+use crate::export::gltf::{relative_uri, write_gltf};
+use crate::io::write_atomic;
+use crate::mesh::LayerMesh;
+use serde::{Deserialize, Serialize};
+use std::path::Path;
+
+/// The draw list's `format` value.
+pub const DRAW_LIST_FORMAT: &str = "underdraw.draw-list";
+/// The draw list's `version` value.
+pub const DRAW_LIST_VERSION: u32 = 1;
+
+/// The draw list file: the scene's layers and the two passes.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DrawList {
+    /// [`DRAW_LIST_FORMAT`].
+    pub format: String,
+    /// [`DRAW_LIST_VERSION`].
+    pub version: u32,
+    /// Screen size the scene was scored at, pixels.
+    pub viewport: [u32; 2],
+    /// How the depth buffer is set up for the frame.
+    pub depth: DepthSetup,
+    /// Every layer of the scene, back to front, with its placement and files.
+    pub layers: Vec<ExportedLayer>,
+    /// The passes in submission order: `opaque`, then `blended`.
+    pub passes: Vec<Pass>,
+}
+
+/// The depth buffer's setup for the frame.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DepthSetup {
+    /// Value the depth buffer is cleared to (1.0, the far plane).
+    pub clear: f32,
+    /// The comparison a fragment must pass: `"less"`.
+    pub test: String,
+    /// Depths run from 0 (nearest) to 1 (farthest).
+    pub range: [f32; 2],
+}
+
+/// A layer as exported: where its files are and how it is placed.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExportedLayer {
+    /// The layer's name in the scene.
+    pub name: String,
+    /// The layer's PNG, as a URI relative to the export folder.
+    pub image: String,
+    /// Its mesh file, relative to the export folder.
+    pub mesh: String,
+    /// Its glTF asset, relative to the export folder.
+    pub gltf: String,
+    /// The vertex budget it was cut at (`None` for a mesh read from a file
+    /// without one).
+    pub budget: Option<usize>,
+    /// Vertices in its mesh.
+    pub vertices: usize,
+    /// Top-left on screen at camera 0, pixels.
+    pub position: [f64; 2],
+    /// Screen pixels per texel.
+    pub scale: f64,
+    /// Screen pixels the layer moves left per pixel of camera travel.
+    pub parallax: f64,
+    /// Tiled horizontally to fill the screen's width.
+    pub repeat_x: bool,
+    /// Its depth, 0 nearest ([`layer_depth`]).
+    pub depth: f32,
+}
+
+/// One pass of the frame.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Pass {
+    /// `"opaque"` or `"blended"`.
+    pub name: String,
+    /// `"front-to-back"` or `"back-to-front"`.
+    pub order: String,
+    /// The draws in submission order.
+    pub draws: Vec<DrawEntry>,
+}
+
+/// One draw: a layer's triangle list with its render state.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct DrawEntry {
+    /// The layer's name.
+    pub layer: String,
+    /// Its mesh file, relative to the export folder.
+    pub mesh: String,
+    /// Which triangle list of the mesh file: `"opaque"` or `"blended"`.
+    pub triangles: String,
+    /// The same triangles as a primitive of the glTF asset's one mesh.
+    pub gltf_primitive: usize,
+    /// The draw's constant depth.
+    pub depth: f32,
+    /// The blend state.
+    pub blend: Blend,
+    /// Test fragments LESS against the depth buffer.
+    pub depth_test: bool,
+    /// Store the depth of the fragments that pass.
+    pub depth_write: bool,
+}
+
+/// A blend state, in OpenGL ES / WebGL's factor names.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Blend {
+    /// Blending on.
+    pub enabled: bool,
+    /// Source colour factor (`"SRC_ALPHA"` when on: PNG colour is not
+    /// premultiplied by alpha).
+    pub src: Option<String>,
+    /// Destination colour factor (`"ONE_MINUS_SRC_ALPHA"` when on).
+    pub dst: Option<String>,
+}
+
+impl Blend {
+    fn off() -> Blend {
+        Blend {
+            enabled: false,
+            src: None,
+            dst: None,
+        }
+    }
+    /// The "over" operator on straight (not premultiplied) alpha.
+    fn over() -> Blend {
+        Blend {
+            enabled: true,
+            src: Some("SRC_ALPHA".into()),
+            dst: Some("ONE_MINUS_SRC_ALPHA".into()),
+        }
+    }
+}
+
+/// The draw list of `layers` (with `meshes[i]` the mesh exported for
+/// `layers[i]`, back to front).
+pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh]) -> DrawList {
+    let n = layers.len();
+    let entry = |i: usize, opaque: bool| {
+        let l = &layers[i];
+        let m = meshes[i];
+        let list = if opaque { &m.opaque } else { &m.blended };
+        if list.indices.is_empty() {
+            return None;
+        }
+        // the glTF asset holds a primitive per non-empty list, opaque first
+        let primitive = usize::from(!opaque && !m.opaque.indices.is_empty());
+        Some(DrawEntry {
+            layer: l.name.clone(),
+            mesh: l.mesh.clone(),
+            triangles: if opaque { "opaque" } else { "blended" }.into(),
+            gltf_primitive: primitive,
+            depth: layer_depth(i, n),
+            blend: if opaque { Blend::off() } else { Blend::over() },
+            depth_test: true,
+            depth_write: opaque,
+        })
+    };
+    // the order of Strategy::Split's frame (see scene::draws::frame_draws)
+    let opaque = (0..n).rev().filter_map(|i| entry(i, true)).collect();
+    let blended = (0..n).filter_map(|i| entry(i, false)).collect();
+    DrawList {
+        format: DRAW_LIST_FORMAT.into(),
+        version: DRAW_LIST_VERSION,
+        viewport: scene.viewport,
+        depth: DepthSetup {
+            clear: 1.0,
+            test: "less".into(),
+            range: [0.0, 1.0],
+        },
+        layers: layers.to_vec(),
+        passes: vec![
+            Pass {
+                name: "opaque".into(),
+                order: "front-to-back".into(),
+                draws: opaque,
+            },
+            Pass {
+                name: "blended".into(),
+                order: "back-to-front".into(),
+                draws: blended,
+            },
+        ],
+    }
+}
+
+/// Writes into `dir` each layer's `<name>.mesh.json` and glTF asset
+/// (`<name>.gltf` + `<name>.bin`) from `meshes` (one per layer, in the
+/// scene's order), then `draw-list.json`; returns the paths written. The
+/// caller has checked that none of them is one of the scene's inputs.
+pub fn export_scene(
+    dir: &Path,
+    scene: &Scene,
+    layers: &[Layer],
+    meshes: &[&LayerMesh],
+    write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
+) -> Result<DrawList, FileError> {
+    std::fs::create_dir_all(dir).map_err(|e| {
+        FileError::new(
+            dir,
+            format!("the export folder cannot be created ({e})"),
+            "choose a writable --export folder",
+        )
+    })?;
+    let n = layers.len();
+    let mut exported = Vec::with_capacity(n);
+    for (i, (layer, mesh)) in layers.iter().zip(meshes).enumerate() {
+        let name = &layer.spec.name;
+        let uri = relative_uri(dir, &layer.spec.image).ok_or_else(|| {
+            FileError::new(
+                &layer.spec.image,
+                format!(
+                    "has no path relative to the export folder {}",
+                    dir.display()
+                ),
+                "put the --export folder on the same drive as the layers",
+            )
+        })?;
+        let mesh_file = format!("{name}.mesh.json");
+        write(
+            &mesh_file,
+            &serde_json::to_vec_pretty(mesh).expect("a mesh serializes"),
+        )?;
+        write_gltf(mesh, &uri, dir, name)?;
+        let s = &layer.spec;
+        exported.push(ExportedLayer {
+            name: name.clone(),
+            image: uri,
+            mesh: mesh_file,
+            gltf: format!("{name}.gltf"),
+            budget: mesh.budget,
+            vertices: mesh.vertex_count(),
+            position: s.position,
+            scale: s.scale,
+            parallax: s.parallax,
+            repeat_x: s.repeat_x,
+            depth: layer_depth(i, n),
+        });
+    }
+    let list = draw_list(scene, &exported, meshes);
+    let json = serde_json::to_vec_pretty(&list).expect("a draw list serializes");
+    write("draw-list.json", &json)?;
+    Ok(list)
+}
+
+/// Reads a draw list written by [`export_scene`].
+pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| FileError::new(path, format!("cannot be read ({e})"), "check the path"))?;
+    let list: DrawList = serde_json::from_str(&text).map_err(|e| {
+        FileError::new(
+            path,
+            format!("is not a draw list: {e}"),
+            "give a draw-list.json written by `underdraw scene --export`",
+        )
+    })?;
+    if list.format != DRAW_LIST_FORMAT || list.version != DRAW_LIST_VERSION {
+        return Err(FileError::new(
+            path,
+            format!(
+                "is format {:?} version {}, not {DRAW_LIST_FORMAT:?} version {DRAW_LIST_VERSION}",
+                list.format, list.version
+            ),
+            "export the scene again with this underdraw",
+        ));
+    }
+    Ok(list)
+}
+
+/// Writes `bytes` to `dir/name` atomically (the plain writer for
+/// [`export_scene`] when no input needs protecting).
+pub fn write_into(dir: &Path) -> impl FnMut(&str, &[u8]) -> Result<(), FileError> + '_ {
+    move |name, bytes| write_atomic(&dir.join(name), bytes)
+}
