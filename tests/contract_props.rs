@@ -5,6 +5,15 @@
 //! The number of random cases per property is `PROPTEST_CASES` (default
 //! [`DEFAULT_CASES`]: the two properties run side by side, about 160 s of CPU
 //! in the test profile, so roughly 80-90 s on two free cores).
+//!
+//! Soak mode, by hand, for as long as you like (it is ignored by
+//! `cargo test`): fresh random cases on every core until the time is up,
+//! each batch's seed printed so a failure can be replayed.
+//!
+//! ```sh
+//! UNDERDRAW_SOAK_MINUTES=60 cargo test --release --test contract_props -- --ignored soak
+//! UNDERDRAW_SOAK_SEED=1234 ...   # start from another seed
+//! ```
 
 use geo::{Area, BooleanOps, Coord, LineString, MultiPolygon, Polygon};
 use proptest::prelude::*;
@@ -415,6 +424,72 @@ proptest! {
                                        s in settings(FilterMode::Bilinear)) {
         run(&shape, w, h, &s)?;
     }
+}
+
+/// The soak mode (see the module docs): both filters, every core, random
+/// seeds from `UNDERDRAW_SOAK_SEED` (default: the clock) counted up per
+/// batch of 256 cases. The time only bounds how long it runs; what it
+/// asserts is the contract, as the properties above.
+#[test]
+#[ignore = "soak mode: run by hand with --ignored soak"]
+fn soak() {
+    use proptest::test_runner::{RngAlgorithm, TestRng, TestRunner};
+    use std::sync::atomic::{AtomicU64, Ordering};
+    use std::time::{Duration, Instant};
+    let minutes: f64 = std::env::var("UNDERDRAW_SOAK_MINUTES")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(10.0);
+    let base: u64 = std::env::var("UNDERDRAW_SOAK_SEED")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or_else(|| {
+            std::time::SystemTime::now()
+                .duration_since(std::time::UNIX_EPOCH)
+                .map_or(0, |d| d.as_secs())
+        });
+    let deadline = Instant::now() + Duration::from_secs_f64(minutes * 60.0);
+    let next = AtomicU64::new(base);
+    let cases = AtomicU64::new(0);
+    let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
+    println!("soak: {minutes} minutes on {threads} threads from seed {base}");
+    std::thread::scope(|scope| {
+        for _ in 0..threads {
+            scope.spawn(|| {
+                while Instant::now() < deadline {
+                    let seed = next.fetch_add(1, Ordering::Relaxed);
+                    let mut bytes = [0u8; 32];
+                    bytes[..8].copy_from_slice(&seed.to_le_bytes());
+                    let config = ProptestConfig {
+                        cases: 256,
+                        failure_persistence: None,
+                        ..config()
+                    };
+                    let rng = TestRng::from_seed(RngAlgorithm::ChaCha, &bytes);
+                    let mut runner = TestRunner::new_with_rng(config, rng);
+                    let strategy = (
+                        shape(),
+                        side(),
+                        side(),
+                        prop_oneof![
+                            settings(FilterMode::Nearest),
+                            settings(FilterMode::Bilinear)
+                        ],
+                    );
+                    if let Err(e) = runner.run(&strategy, |(shape, w, h, s)| run(&shape, w, h, &s))
+                    {
+                        panic!("soak seed {seed}: {e}\n  replay: UNDERDRAW_SOAK_SEED={seed}");
+                    }
+                    cases.fetch_add(256, Ordering::Relaxed);
+                }
+            });
+        }
+    });
+    println!(
+        "soak: {} cases, no violation (seeds {base} to {})",
+        cases.load(Ordering::Relaxed),
+        next.load(Ordering::Relaxed) - 1
+    );
 }
 
 // ---------------------------------------------------------- worked examples
