@@ -1,16 +1,24 @@
 //! Reading layers and mesh files, writing outputs atomically.
 //!
-//! Invariants: a PNG is refused from its header when it is larger than the
-//! limits, before any large allocation; an output is written to a temporary
-//! file beside its destination and renamed over it, so a reader never sees
-//! half a file; an output path that is one of the inputs is refused.
+//! Invariants: a PNG is refused from its header (read by hand, see
+//! `io/chunks.rs`) when it has no texels or is larger than the [`ImageLimits`]
+//! it is loaded with, before anything is decoded or allocated in proportion
+//! to its claimed size; the decoder then runs under an allocation limit
+//! derived from the same limits. An animated PNG yields its still (`IDAT`)
+//! image with a warning in [`Layer::warnings`]. A mesh file larger than
+//! [`MAX_MESH_BYTES`] is refused without being read whole. An output is
+//! written to a temporary file beside its destination and renamed over it,
+//! so a reader never sees half a file; an output path that is one of the
+//! inputs is refused.
+
+mod chunks;
 
 use crate::alpha::AlphaMap;
 use crate::error::FileError;
 use crate::mesh::LayerMesh;
 use image::{ImageFormat, ImageReader, Limits};
 use std::fs;
-use std::io::{Cursor, Write};
+use std::io::{Cursor, Read, Write};
 use std::path::Path;
 
 /// Largest layer accepted by default, per side.
@@ -39,6 +47,10 @@ impl Default for ImageLimits {
     }
 }
 
+/// Largest mesh file accepted: far above any budget's mesh (a 256-vertex
+/// mesh file is a few tens of kilobytes).
+pub const MAX_MESH_BYTES: u64 = 64 << 20;
+
 /// A decoded layer: its alpha channel and what the user should know about
 /// the file (for example that only the first frame of an animation was
 /// read).
@@ -46,7 +58,9 @@ impl Default for ImageLimits {
 pub struct Layer {
     /// The layer's alpha channel.
     pub alpha: AlphaMap,
-    /// Plain-language warnings about the file; empty for a plain PNG.
+    /// Plain-language warnings about the file, each a whole sentence that
+    /// starts with the file's path (print it as it is); empty for a plain
+    /// PNG.
     pub warnings: Vec<String>,
 }
 
@@ -90,7 +104,10 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         Some(other) => {
             return Err(FileError::new(
                 path,
-                format!("is a {other:?} image, not a PNG"),
+                format!(
+                    "is a {} image, not a PNG",
+                    format!("{other:?}").to_uppercase()
+                ),
                 "underdraw reads PNG layers (lossless alpha): export the layer as PNG",
             ))
         }
@@ -103,30 +120,43 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         }
     }
     // the size from the header alone, before anything large is allocated
-    let header = ImageReader::with_format(Cursor::new(bytes), ImageFormat::Png);
-    let (w, h) = header.into_dimensions().map_err(|e| {
+    let header = chunks::read_header(bytes).map_err(|why| {
         FileError::new(
             path,
-            format!("is a damaged PNG: its header cannot be read ({e})"),
+            format!("is a damaged PNG: {why}"),
             "re-export the layer from your art tool",
         )
     })?;
+    let (w, h) = (header.width, header.height);
     if w == 0 || h == 0 {
         return Err(FileError::new(
             path,
-            "has no texels (zero width or height)",
-            "export a non-empty layer",
+            format!("has no texels: its header says {w} x {h}"),
+            "export a layer at least 1 x 1 texel",
         ));
     }
     let pixels = w as u64 * h as u64;
     if w > limits.max_side || h > limits.max_side || pixels > limits.max_pixels {
+        let (limit, hint) = if w > limits.max_side || h > limits.max_side {
+            (
+                format!("over the limit of {} texels per side", limits.max_side),
+                format!(
+                    "split the layer into tiles of at most {0} x {0} texels (few GPUs sample larger textures)",
+                    limits.max_side
+                ),
+            )
+        } else {
+            (
+                format!("over the limit of {} texels in all", limits.max_pixels),
+                "split the layer into smaller tiles, or raise the limit with --max-pixels".into(),
+            )
+        };
         return Err(FileError::new(
             path,
             format!(
-                "is {w} x {h} texels ({pixels} in all), over the limit of {} per side and {} in all",
-                limits.max_side, limits.max_pixels
+                "is {w} x {h} texels ({pixels} in all) by its header, {limit}; it was refused before decoding"
             ),
-            "split the layer into smaller tiles, or raise the limit with --max-pixels",
+            hint,
         ));
     }
     let mut reader = reader;
@@ -142,23 +172,62 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
             format!("is {w} x {h} texels, too large to decode within the limits"),
             "split the layer into smaller tiles, or raise the limit with --max-pixels",
         ),
-        other => FileError::new(
-            path,
-            format!("is a damaged or unsupported PNG ({other})"),
-            "re-export the layer from your art tool",
-        ),
+        other => match chunks::diagnose(bytes) {
+            Some(why) => FileError::new(
+                path,
+                format!("is a damaged PNG: {why}"),
+                "copy the file again from where it was exported, or re-export the layer",
+            ),
+            None => FileError::new(
+                path,
+                format!("is a damaged or unsupported PNG ({other})"),
+                "re-export the layer from your art tool",
+            ),
+        },
     })?;
+    let mut warnings = Vec::new();
+    if let Some(a) = header.animation {
+        let frames = match a.frames {
+            1 => "1 frame".to_string(),
+            n => format!("{n} frames"),
+        };
+        warnings.push(if a.still_is_first_frame {
+            format!(
+                "{} is an animated PNG ({frames}): only its first frame is cut",
+                path.display()
+            )
+        } else {
+            format!(
+                "{} is an animated PNG ({frames}) with a still image outside the animation: only the still image is cut",
+                path.display()
+            )
+        });
+    }
     Ok(Layer {
         alpha: AlphaMap::from_image(&image),
-        warnings: Vec::new(),
+        warnings,
     })
 }
 
 /// Reads a mesh file.
 pub fn load_mesh(path: &Path) -> Result<LayerMesh, FileError> {
-    let text = fs::read_to_string(path)
-        .map_err(|e| FileError::new(path, format!("cannot be read ({e})"), "check the path"))?;
-    serde_json::from_str(&text).map_err(|e| {
+    let cannot =
+        |e: std::io::Error| FileError::new(path, format!("cannot be read ({e})"), "check the path");
+    let mut bytes = Vec::new();
+    fs::File::open(path)
+        .and_then(|f| f.take(MAX_MESH_BYTES + 1).read_to_end(&mut bytes))
+        .map_err(cannot)?;
+    if bytes.len() as u64 > MAX_MESH_BYTES {
+        return Err(FileError::new(
+            path,
+            format!(
+                "is larger than {} MiB, too large for a layer mesh file",
+                MAX_MESH_BYTES >> 20
+            ),
+            "give a .mesh.json file written by `underdraw cut` (a few tens of kilobytes at most)",
+        ));
+    }
+    serde_json::from_slice::<LayerMesh>(&bytes).map_err(|e| {
         FileError::new(
             path,
             format!("is not a valid underdraw mesh file: {e}"),

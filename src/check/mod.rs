@@ -54,15 +54,23 @@ pub struct ContractReport {
     pub uncovered: f64,
     /// Area of the blended mesh outside [0, W] x [0, H].
     pub blended_outside_image: f64,
+    /// Area covered by both an opaque and a blended triangle (drawn twice).
     pub overlap_opaque_blended: f64,
+    /// Area covered by two opaque triangles.
     pub overlap_within_opaque: f64,
+    /// Area covered by two blended triangles (blended twice: visibly wrong).
     pub overlap_within_blended: f64,
+    /// Triangles with zero area.
     pub degenerate_triangles: usize,
     /// Triangles whose winding differs from the file's.
     pub wrong_winding: usize,
+    /// Area of the safe-opaque region S, texels.
     pub safe_area: f64,
+    /// Area of the must-cover region C, texels.
     pub must_cover_area: f64,
+    /// Area of the opaque mesh, texels.
     pub opaque_area: f64,
+    /// Area covered by the two meshes together, texels.
     pub covered_area: f64,
 }
 
@@ -134,37 +142,89 @@ impl ContractReport {
     }
 }
 
-/// A mesh file that cannot be checked at all.
+/// A mesh file that cannot be checked at all. Its message is the problem,
+/// then a line `  hint: ...` saying what to do (the layout of
+/// [`crate::error::FileError`], so the caller only prefixes the file).
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum CheckError {
-    #[error("the file's format is {found:?}, not {FORMAT:?}: pass a layer mesh file written by underdraw")]
-    WrongFormat { found: String },
-    #[error("the file is format version {found}, this underdraw reads version {VERSION}: re-cut the layer with this underdraw")]
-    WrongVersion { found: u32 },
-    #[error("the mesh is for a {mesh_w}x{mesh_h} image but the image is {image_w}x{image_h}: check it against the image it was cut from, or re-cut the layer")]
+    /// The `format` field is not [`FORMAT`].
+    #[error("the file's format is {found:?}, not {FORMAT:?}: it is not a layer mesh file\n  hint: pass a .mesh.json file written by `underdraw cut`")]
+    WrongFormat {
+        /// The format the file gives.
+        found: String,
+    },
+    /// The `version` field is not [`VERSION`].
+    #[error("the file is format version {found}, but this underdraw reads version {VERSION}\n  hint: cut the layer again with this underdraw")]
+    WrongVersion {
+        /// The version the file gives.
+        found: u32,
+    },
+    /// The mesh's `size` is not the image's.
+    #[error("the mesh is for a {mesh_w}x{mesh_h} image but the image is {image_w}x{image_h}\n  hint: check the mesh against the image it was cut from, or cut this image again")]
     SizeMismatch {
+        /// Width the mesh was cut for.
         mesh_w: u32,
+        /// Height the mesh was cut for.
         mesh_h: u32,
+        /// Width of the image given.
         image_w: u32,
+        /// Height of the image given.
         image_h: u32,
     },
-    #[error("the alpha map holds {len} values but is {width}x{height}: build it with AlphaMap::from_raw or from_image")]
-    BadAlphaMap { len: usize, width: u32, height: u32 },
-    #[error("positions holds {len} numbers, an odd count: it must be x, y pairs; fix or re-cut the mesh file")]
-    OddPositions { len: usize },
-    #[error("uvs holds {uvs} numbers but positions holds {positions}: there must be one u, v pair per vertex; fix or re-cut the mesh file")]
-    UvLengthMismatch { positions: usize, uvs: usize },
-    #[error("the {list} index list holds {len} indices, not a multiple of 3 (3 per triangle); fix or re-cut the mesh file")]
-    IndicesNotTriangles { list: &'static str, len: usize },
-    #[error("{list} triangle {triangle} uses vertex {index} but there are only {vertices} vertices; fix the index or re-cut the mesh file")]
-    IndexOutOfRange {
+    /// The alpha map's buffer does not hold width x height values.
+    #[error("the alpha map holds {len} values but is {width}x{height}\n  hint: build it with AlphaMap::from_raw or from_image")]
+    BadAlphaMap {
+        /// Values in the buffer.
+        len: usize,
+        /// Width claimed.
+        width: u32,
+        /// Height claimed.
+        height: u32,
+    },
+    /// `positions` has an odd length.
+    #[error("positions holds {len} numbers, an odd count, but it must be x, y pairs\n  hint: fix the mesh file or cut the layer again")]
+    OddPositions {
+        /// Numbers in `positions`.
+        len: usize,
+    },
+    /// `uvs` and `positions` differ in length.
+    #[error("uvs holds {uvs} numbers but positions holds {positions}: there must be one u, v pair per vertex\n  hint: fix the mesh file or cut the layer again")]
+    UvLengthMismatch {
+        /// Numbers in `positions`.
+        positions: usize,
+        /// Numbers in `uvs`.
+        uvs: usize,
+    },
+    /// An index list's length is not a multiple of 3.
+    #[error("the {list} index list holds {len} indices, not a multiple of 3 (3 per triangle)\n  hint: fix the mesh file or cut the layer again")]
+    IndicesNotTriangles {
+        /// `opaque` or `blended`.
         list: &'static str,
+        /// Indices in the list.
+        len: usize,
+    },
+    /// An index names no vertex.
+    #[error("{list} triangle {triangle} uses vertex {index} but there are only {vertices} vertices\n  hint: fix the index or cut the layer again")]
+    IndexOutOfRange {
+        /// `opaque` or `blended`.
+        list: &'static str,
+        /// The triangle's place in its list.
         triangle: usize,
+        /// The index.
         index: u32,
+        /// Vertices in the mesh.
         vertices: usize,
     },
-    #[error("vertex {vertex} has a non-finite position ({x}, {y}); positions must be finite texel coordinates; fix or re-cut the mesh file")]
-    NonFinitePosition { vertex: usize, x: f32, y: f32 },
+    /// A position is NaN or infinite.
+    #[error("vertex {vertex} has a non-finite position ({x}, {y}), but positions must be finite texel coordinates\n  hint: fix the mesh file or cut the layer again")]
+    NonFinitePosition {
+        /// The vertex.
+        vertex: usize,
+        /// Its x.
+        x: f32,
+        /// Its y.
+        y: f32,
+    },
 }
 
 fn validate(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<(), CheckError> {

@@ -14,8 +14,13 @@
 //! A texel (tx, ty) of a layer lands on screen at
 //! `(position.x + scale * tx - camera_x * parallax, position.y + scale * ty)`.
 //!
+//! Limits, each refused with a message and a hint before the work it would
+//! cost: the file is at most [`MAX_SCENE_BYTES`] (read with a bounded read,
+//! never whole when larger), at most [`MAX_LAYERS`] layers, at most
+//! [`MAX_SAMPLES`] camera samples, viewport sides at most [`MAX_VIEWPORT`].
+//!
 //! Invariants of a [`Scene`] returned by [`load_scene`]: the viewport is
-//! non-empty, there is at least one layer, layer names are unique and safe
+//! non-empty, there are 1 to [`MAX_LAYERS`] layers, layer names are unique and safe
 //! as file names, every scale is positive and finite, every number finite,
 //! `samples >= 1`, every image exists, every cut's settings validate, and a
 //! layer has either cut settings or a mesh file, not both.
@@ -24,12 +29,19 @@ use crate::error::FileError;
 use crate::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
 use serde::Deserialize;
 use std::collections::HashSet;
+use std::io::Read;
 use std::path::{Path, PathBuf};
 
 /// Largest viewport side accepted.
 pub const MAX_VIEWPORT: u32 = 16384;
-/// Most camera samples accepted.
-pub const MAX_SAMPLES: u32 = 4096;
+/// Most camera samples accepted: every sample renders the whole scene three
+/// times (and once per layer more with a vertex total), and a smooth pan
+/// needs a few dozen.
+pub const MAX_SAMPLES: u32 = 1024;
+/// Most layers in a scene (each is cut, and drawn at every sample).
+pub const MAX_LAYERS: usize = 256;
+/// Largest scene file accepted, bytes (1 MiB; 256 layers take about 64 KiB).
+pub const MAX_SCENE_BYTES: usize = 1 << 20;
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -110,8 +122,11 @@ pub enum MeshSource {
 /// One layer of a scene, paths resolved against the scene file's folder.
 #[derive(Clone, Debug, PartialEq)]
 pub struct LayerSpec {
+    /// Unique in the scene, safe as a file name.
     pub name: String,
+    /// The layer's PNG (resolved path; it exists).
     pub image: PathBuf,
+    /// Where its meshes come from.
     pub mesh: MeshSource,
     /// Top-left on screen at camera 0, pixels.
     pub position: [f64; 2],
@@ -128,6 +143,7 @@ pub struct LayerSpec {
 pub struct Scene {
     /// The scene file.
     pub path: PathBuf,
+    /// Screen width and height, pixels (each 1 to [`MAX_VIEWPORT`]).
     pub viewport: [u32; 2],
     /// Pixels of horizontal camera travel.
     pub travel: f64,
@@ -168,19 +184,51 @@ impl Scene {
 
 /// Reads and validates a scene file.
 pub fn load_scene(path: &Path) -> Result<Scene, FileError> {
-    let text = std::fs::read_to_string(path).map_err(|e| {
+    let mut bytes = Vec::new();
+    std::fs::File::open(path)
+        .and_then(|f| f.take(MAX_SCENE_BYTES as u64 + 1).read_to_end(&mut bytes))
+        .map_err(|e| {
+            FileError::new(
+                path,
+                format!("cannot be read ({e})"),
+                "check the path to the scene file",
+            )
+        })?;
+    if bytes.len() > MAX_SCENE_BYTES {
+        return Err(too_large(path));
+    }
+    let text = String::from_utf8(bytes).map_err(|e| {
         FileError::new(
             path,
-            format!("cannot be read ({e})"),
-            "check the path to the scene file",
+            format!(
+                "is not UTF-8 text (byte {} is not valid UTF-8)",
+                e.utf8_error().valid_up_to()
+            ),
+            "a scene file is JSON text: save it as UTF-8 (is this the scene file, not an image?)",
         )
     })?;
     parse_scene(path, &text)
 }
 
+fn too_large(path: &Path) -> FileError {
+    FileError::new(
+        path,
+        format!(
+            "is larger than {} MiB, the limit for a scene file",
+            MAX_SCENE_BYTES >> 20
+        ),
+        format!(
+            "check that this is the scene file; a scene lists at most {MAX_LAYERS} layers, far less than 1 MiB of JSON"
+        ),
+    )
+}
+
 /// Parses and validates scene text (`path` names the file in errors and
 /// anchors relative paths).
 pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
+    if text.len() > MAX_SCENE_BYTES {
+        return Err(too_large(path));
+    }
     let json: SceneJson = serde_json::from_str(text).map_err(|e| json_error(path, &e))?;
     let dir = path
         .parent()
@@ -195,13 +243,19 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
         );
     }
     let cam = &json.camera;
-    if cam.samples == 0 || cam.samples > MAX_SAMPLES {
+    if cam.samples == 0 {
+        return bad(
+            "camera.samples is 0: the scene needs at least one camera position to be scored".into(),
+            &format!("give \"samples\" from 1 to {MAX_SAMPLES} (16 is plenty for a smooth pan)"),
+        );
+    }
+    if cam.samples > MAX_SAMPLES {
         return bad(
             format!(
-                "camera.samples is {}: the scene needs at least one camera position to be scored",
+                "camera.samples is {}, over the limit of {MAX_SAMPLES}",
                 cam.samples
             ),
-            &format!("give \"samples\" from 1 to {MAX_SAMPLES} (16 is plenty for a smooth pan)"),
+            "give fewer samples: each one renders the whole scene, and 16 to 64 already give a smooth pan",
         );
     }
     if !cam.travel.is_finite() {
@@ -210,10 +264,26 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
             "give the camera's horizontal travel in pixels",
         );
     }
+    // camera_positions() multiplies travel by the sample index first
+    if !(cam.travel * cam.samples as f64).is_finite() {
+        return bad(
+            format!("camera.travel {} is too large to sample", cam.travel),
+            "give the camera's horizontal travel in pixels (a few screen widths)",
+        );
+    }
     if json.layers.is_empty() {
         return bad(
             "has no layers".into(),
             "list the layers back to front under \"layers\"",
+        );
+    }
+    if json.layers.len() > MAX_LAYERS {
+        return bad(
+            format!(
+                "has {} layers, over the limit of {MAX_LAYERS}",
+                json.layers.len()
+            ),
+            "merge layers that move together (same parallax) into one image, or split the scene into several scene files",
         );
     }
     let mut names = HashSet::new();
