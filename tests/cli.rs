@@ -132,7 +132,7 @@ fn cut_then_check_holds() {
     let cut = run(&[p("cut"), &layer, p("--out"), &out]);
     assert_status(&cut, 0, "cut");
     assert!(text(&cut.stdout).contains("ui-button.png"));
-    assert_only(&out, &["ui-button.mesh.json"]);
+    assert_only(&out, &["ui-button.mesh.json", "underdraw-manifest.json"]);
     let check = run(&[p("check"), &out.join("ui-button.mesh.json"), &layer]);
     assert_status(&check, 0, "check");
     assert!(text(&check.stdout).contains("contract holds"));
@@ -274,7 +274,7 @@ fn batch_goes_on_past_bad_files_and_names_them() {
     assert_names(&stderr, "truncated.png", "damaged");
     assert!(!stderr.contains("good.png"), "{stderr}");
     // The good layer was cut all the same, and only it; no temporary files.
-    assert_only(&out, &["good.mesh.json"]);
+    assert_only(&out, &["good.mesh.json", "underdraw-manifest.json"]);
     let check = run(&[p("check"), &out.join("good.mesh.json"), &good]);
     assert_status(&check, 0, "check of the good layer's mesh");
 }
@@ -333,6 +333,8 @@ fn outputs_are_deterministic_and_leave_no_temporary_files() {
         "ui-button.mesh.json",
         "ui-panel.mesh.json",
         "blob.mesh.json",
+        // the batch manifest: the same bytes too (no time, no absolute path)
+        "underdraw-manifest.json",
     ];
     let outs = [dir.path("a"), dir.path("b"), dir.path("c")];
     for out in &outs {

@@ -1,15 +1,14 @@
-//! `underdraw cut`: layers in, mesh files and glTF assets out.
+//! `underdraw cut`: layers and folders in, mesh files and glTF assets out
+//! (the work is `underdraw::batch`; this parses, calls it and prints).
 
-use crate::{bar, error, same_file, CutOptions, Print};
-use clap::{Args, ValueEnum};
-use rayon::prelude::*;
-use std::path::{Path, PathBuf};
+use crate::{bar, error, CutOptions, FilterArg, Print, WrapArg};
+use clap::parser::ValueSource;
+use clap::{ArgMatches, Args, ValueEnum};
+use std::path::PathBuf;
 use std::process::ExitCode;
-use underdraw::cut::cut_layer;
-use underdraw::error::FileError;
-use underdraw::export::gltf::{glb_path, gltf_paths, relative_uri, write_glb, write_gltf};
-use underdraw::io::{load_alpha, write_atomic};
-use underdraw::settings::CutSettings;
+use underdraw::batch::{self, settings_file::Values, LayerReport, Outputs, Status};
+use underdraw::io::ImageLimits;
+use underdraw::settings::{FilterMode, Wrap};
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum FormatArg {
@@ -23,12 +22,38 @@ enum FormatArg {
 
 #[derive(Args)]
 pub(crate) struct CutArgs {
-    /// PNG layers to cut (RGBA; images without alpha count as fully opaque).
-    #[arg(required = true)]
+    /// PNG layers (RGBA; images without alpha count as fully opaque) and
+    /// folders: a folder is searched recursively for `*.png`, and its
+    /// layout is mirrored in the output folder (`in/town/houses.png` →
+    /// `OUT/town/houses.mesh.json`); a file given directly is written as
+    /// `OUT/<stem>.*`.
+    #[arg(required = true, value_name = "PATH")]
     images: Vec<PathBuf>,
-    /// Folder for the output files (created if missing).
+    /// Folder for the output files (created if missing) and the manifest
+    /// `underdraw-manifest.json`. It may not be an input folder; inside one,
+    /// it is skipped when the folder is searched.
     #[arg(long, short)]
     out: PathBuf,
+    /// Take only the folders' layers matching this pattern (repeatable),
+    /// matched against the path relative to the input folder: `*` within a
+    /// folder name, `**` across folders, e.g. `ui/*.png`, `**/fog*.png`.
+    #[arg(long, value_name = "GLOB")]
+    include: Vec<String>,
+    /// Leave out the folders' layers matching this pattern (repeatable).
+    #[arg(long, value_name = "GLOB")]
+    exclude: Vec<String>,
+    /// Settings file for every input, instead of the `underdraw.settings.json`
+    /// found at the root of each input folder: {"defaults": {...},
+    /// "layers": [{"match": GLOB, ...}]}. Options given on the command line
+    /// override it.
+    #[arg(long, value_name = "FILE")]
+    settings: Option<PathBuf>,
+    /// Layers cut at once (default: one per core).
+    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
+    jobs: Option<u32>,
+    /// Cut every layer, even those the manifest shows unchanged.
+    #[arg(long)]
+    force: bool,
     /// What to write per layer. `gltf`: a glTF 2.0 asset for an engine, one
     /// mesh with two primitives over one vertex array: the opaque one with
     /// alphaMode OPAQUE (draw with blending off), the blended one with BLEND;
@@ -58,66 +83,33 @@ pub(crate) struct CutArgs {
 }
 
 impl CutArgs {
-    fn settings(&self) -> CutSettings {
-        self.options.settings(self.budget as usize)
-    }
-}
-
-/// Widest preview `cut --preview` writes, pixels.
-const PREVIEW_WIDTH: u32 = 1024;
-
-/// What `cut` writes for each layer.
-#[derive(Clone, Copy)]
-struct Outputs {
-    json: bool,
-    gltf: bool,
-    glb: bool,
-    preview: bool,
-}
-
-impl Outputs {
-    fn of(args: &CutArgs) -> Outputs {
-        let gltf = args.format != FormatArg::Json;
-        Outputs {
-            json: args.format != FormatArg::Gltf,
-            gltf: gltf && !args.glb,
-            glb: gltf && args.glb,
-            preview: args.preview,
+    /// The options given explicitly on the command line, which override a
+    /// settings file.
+    fn overrides(&self, m: &ArgMatches) -> Values {
+        let given = |id: &str| m.value_source(id) == Some(ValueSource::CommandLine);
+        let o = &self.options;
+        Values {
+            budget: given("budget").then_some(self.budget as usize),
+            filter: given("filter").then_some(match o.filter {
+                FilterArg::Nearest => FilterMode::Nearest,
+                FilterArg::Bilinear => FilterMode::Bilinear,
+            }),
+            mip_levels: given("mip_levels").then_some(o.mip_levels),
+            wrap: given("wrap").then_some(match o.wrap {
+                WrapArg::None => Wrap::None,
+                WrapArg::X => Wrap::X,
+                WrapArg::Y => Wrap::Y,
+                WrapArg::Xy => Wrap::Xy,
+            }),
+            opaque_min: given("opaque_min").then_some(o.opaque_min),
+            visible_min: given("visible_min").then_some(o.visible_min),
         }
     }
-    /// The files written for `stem` in `out`.
-    fn paths(&self, out: &Path, stem: &str) -> Vec<PathBuf> {
-        let mut v = Vec::new();
-        if self.json {
-            v.push(out.join(format!("{stem}.mesh.json")));
-        }
-        if self.gltf {
-            v.extend(gltf_paths(out, stem));
-        }
-        if self.glb {
-            v.push(glb_path(out, stem));
-        }
-        if self.preview {
-            v.push(out.join(format!("{stem}.preview.png")));
-        }
-        v
-    }
 }
 
-struct LayerLine {
-    name: String,
-    vertices: usize,
-    capture: f64,
-    excess: f64,
-    must_cover: f64,
-    notes: Vec<String>,
-    /// The files written.
-    outputs: Vec<String>,
-}
-
-pub(crate) fn cut(args: &CutArgs, print: Print) -> ExitCode {
-    let settings = args.settings();
-    if let Err(e) = settings.validate() {
+pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLimits) -> ExitCode {
+    let defaults = args.options.settings(args.budget as usize);
+    if let Err(e) = defaults.validate() {
         error(&e);
         return ExitCode::from(2);
     }
@@ -125,183 +117,144 @@ pub(crate) fn cut(args: &CutArgs, print: Print) -> ExitCode {
         error("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
         return ExitCode::from(2);
     }
-    let outputs = Outputs::of(args);
-    if let Err(e) = std::fs::create_dir_all(&args.out) {
-        error(format!(
-            "{}: the output folder cannot be created ({e})\n  hint: choose a writable --out folder",
-            args.out.display()
-        ));
-        return ExitCode::from(2);
-    }
-    // two layers with one stem would write one mesh file: refuse the later ones
-    let mut seen = std::collections::HashMap::new();
-    let clash: Vec<Option<PathBuf>> = args
-        .images
-        .iter()
-        .map(|p| {
-            let stem = p.file_stem().map(|s| s.to_os_string()).unwrap_or_default();
-            match seen.get(&stem) {
-                Some(first) => Some(PathBuf::clone(first)),
-                None => {
-                    seen.insert(stem, p.clone());
-                    None
-                }
-            }
-        })
-        .collect();
+    let gltf = args.format != FormatArg::Json;
+    let request = batch::Request {
+        inputs: args.images.clone(),
+        out: args.out.clone(),
+        include: args.include.clone(),
+        exclude: args.exclude.clone(),
+        settings_file: args.settings.clone(),
+        base: defaults,
+        overrides: args.overrides(m),
+        outputs: Outputs {
+            json: args.format != FormatArg::Gltf,
+            gltf: gltf && !args.glb,
+            glb: gltf && args.glb,
+            preview: args.preview,
+        },
+    };
+    let plan = match batch::plan(&request) {
+        Ok(p) => p,
+        Err(e) => {
+            error(&e);
+            return ExitCode::from(2);
+        }
+    };
+    let options = batch::RunOptions {
+        jobs: args.jobs.map(|n| n as usize),
+        force: args.force,
+        limits,
+    };
     // a bar only for a batch
-    let progress = if args.images.len() > 1 {
-        bar(print, args.images.len(), "layers cut")
+    let progress = if plan.jobs.len() > 1 {
+        bar(print, plan.jobs.len(), "layers cut")
     } else {
         indicatif::ProgressBar::hidden()
     };
-    let results: Vec<Result<LayerLine, FileError>> = args
-        .images
-        .par_iter()
-        .zip(clash.par_iter())
-        .map(|(path, clash)| match clash {
-            Some(first) => Err(FileError::new(
-                path,
-                format!(
-                    "has the same name as {} and would overwrite its output files",
-                    first.display()
-                ),
-                "rename one of them, or cut them into separate --out folders",
-            )),
-            None => cut_one(path, &args.out, &settings, outputs),
-        })
-        .inspect(|_| progress.inc(1))
-        .collect();
+    let report = batch::run(&plan, &options, &|_| progress.inc(1));
     progress.finish_and_clear();
-    if print.text() {
-        println!(
-            "{:<28} {:>8} {:>9} {:>12}",
-            "layer", "vertices", "capture", "excess"
-        );
-    }
-    let (mut ok, mut vertices, mut failures) = (0usize, 0usize, Vec::new());
-    let mut objects = Vec::new();
-    for r in results {
-        match r {
-            Ok(l) if !print.text() => {
-                objects.push(serde_json::json!({
-                    "layer": l.name,
-                    "vertices": l.vertices,
-                    "opaque_capture": l.capture,
-                    "excess": l.excess,
-                    "notes": l.notes,
-                    "outputs": l.outputs,
-                }));
-                ok += 1;
-                vertices += l.vertices;
-            }
-            Ok(l) => {
-                println!(
-                    "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%)",
-                    l.name,
-                    l.vertices,
-                    100.0 * l.capture,
-                    l.excess,
-                    if l.must_cover > 0.0 {
-                        100.0 * l.excess / l.must_cover
-                    } else {
-                        0.0
-                    }
-                );
-                for n in &l.notes {
-                    println!("  note: {n}");
-                }
-                ok += 1;
-                vertices += l.vertices;
-            }
-            Err(e) => failures.push(e),
+    let report = match report {
+        Ok(r) => r,
+        Err(e) => {
+            error(&e);
+            return ExitCode::from(2);
         }
-    }
+    };
     if print.json {
+        let objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
         println!(
             "{}",
             serde_json::to_string_pretty(&objects).expect("plain values serialize")
         );
     } else if print.text() {
-        println!("total: {ok} layers, {vertices} vertices");
+        for n in &report.notes {
+            println!("note: {n}");
+        }
+        print_table(&report.layers);
+        let count = |s| report.count(s);
+        let vertices: usize = report
+            .layers
+            .iter()
+            .filter_map(|l| l.result.as_ref())
+            .map(|r| r.vertices)
+            .sum();
+        println!(
+            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices",
+            report.layers.len(),
+            count(Status::Cut),
+            count(Status::Unchanged),
+            count(Status::Failed),
+        );
     }
-    if failures.is_empty() {
-        return ExitCode::SUCCESS;
+    let failed: Vec<&LayerReport> = report
+        .layers
+        .iter()
+        .filter(|l| l.status == Status::Failed)
+        .collect();
+    if let Some(e) = &report.manifest_error {
+        error(e);
     }
-    eprintln!("{} of {} layers failed:", failures.len(), args.images.len());
-    for e in &failures {
-        error(&e);
+    if failed.is_empty() {
+        return if report.manifest_error.is_some() {
+            ExitCode::from(2)
+        } else {
+            ExitCode::SUCCESS
+        };
+    }
+    eprintln!("{} of {} layers failed:", failed.len(), report.layers.len());
+    for l in failed {
+        if let Some(e) = &l.error {
+            error(e);
+        }
     }
     ExitCode::from(2)
 }
 
-fn cut_one(
-    path: &Path,
-    out: &Path,
-    settings: &CutSettings,
-    outputs: Outputs,
-) -> Result<LayerLine, FileError> {
-    let map = load_alpha(path)?;
-    let stem = path
-        .file_stem()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_else(|| "layer".into());
-    let name = path
-        .file_name()
-        .map(|s| s.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    if outputs.paths(out, &stem).iter().any(|d| same_file(d, path)) {
-        return Err(FileError::new(
-            path,
-            "would be overwritten by its own output file",
-            "choose another --out folder",
-        ));
-    }
-    let outcome = cut_layer(&map, &name, settings);
-    if outputs.json {
-        let json = serde_json::to_vec_pretty(&outcome.mesh).expect("a mesh serializes");
-        write_atomic(&out.join(format!("{stem}.mesh.json")), &json)?;
-    }
-    if outputs.gltf || outputs.glb {
-        // the PNG by a URI relative to the folder of the .gltf / .glb
-        let uri = relative_uri(out, path).ok_or_else(|| {
-            FileError::new(
-                path,
-                format!(
-                    "has no path relative to the output folder {} for the glTF image URI",
-                    out.display()
-                ),
-                "put the --out folder on the same drive as the layers",
-            )
-        })?;
-        if outputs.gltf {
-            write_gltf(&outcome.mesh, &uri, out, &stem)?;
-        }
-        if outputs.glb {
-            write_glb(&outcome.mesh, &uri, out, &stem)?;
+fn print_table(layers: &[LayerReport]) {
+    println!(
+        "{:<28} {:>8} {:>9} {:>12}",
+        "layer", "vertices", "capture", "excess"
+    );
+    for l in layers {
+        let Some(r) = &l.result else { continue };
+        println!(
+            "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%){}",
+            l.input.display(),
+            r.vertices,
+            100.0 * r.opaque_capture,
+            r.excess,
+            if r.must_cover_area > 0.0 {
+                100.0 * r.excess / r.must_cover_area
+            } else {
+                0.0
+            },
+            if l.status == Status::Unchanged {
+                "  unchanged"
+            } else {
+                ""
+            }
+        );
+        for n in r.warnings.iter().chain(&r.notes) {
+            println!("  note: {n}");
         }
     }
-    if outputs.preview {
-        let rgba = image::open(path)
-            .map_err(|e| FileError::new(path, format!("cannot be read ({e})"), "check the file"))?
-            .to_rgba8();
-        let img = underdraw::preview::render_preview(&rgba, &outcome.mesh, PREVIEW_WIDTH);
-        let dest = out.join(format!("{stem}.preview.png"));
-        write_atomic(&dest, &underdraw::heatmap::rgba_png(img))?;
+}
+
+fn json_line(l: &LayerReport) -> serde_json::Value {
+    let mut o = serde_json::json!({
+        "layer": l.input.display().to_string(),
+        "status": l.status,
+        "outputs": l.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
+    });
+    if let Some(r) = &l.result {
+        o["vertices"] = r.vertices.into();
+        o["opaque_capture"] = r.opaque_capture.into();
+        o["excess"] = r.excess.into();
+        o["notes"] = serde_json::json!(r.notes);
+        o["warnings"] = serde_json::json!(r.warnings);
     }
-    let s = &outcome.mesh.stats;
-    let written = outputs
-        .paths(out, &stem)
-        .iter()
-        .map(|p| p.display().to_string())
-        .collect();
-    Ok(LayerLine {
-        name: path.display().to_string(),
-        vertices: s.vertices,
-        capture: s.opaque_capture(),
-        excess: s.excess(),
-        must_cover: s.must_cover_area,
-        notes: outcome.notes,
-        outputs: written,
-    })
+    if let Some(e) = &l.error {
+        o["error"] = e.to_string().into();
+    }
+    o
 }

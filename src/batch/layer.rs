@@ -1,0 +1,267 @@
+//! One layer of a batch: read, decide whether it changed, cut, encode every
+//! output, commit them together.
+//!
+//! Invariants: the outputs' bytes depend only on the input's bytes, the
+//! effective settings, the file name of the input (recorded in the mesh as
+//! `source`, in the glTF asset as its name) and, for glTF, the input's path
+//! relative to the output folder (the image URI); nothing is written for a
+//! layer until all of its outputs are encoded; a panic inside the work is
+//! caught by [`catch_layer`] and becomes that layer's error.
+
+use super::manifest::{sha256_hex, Entry, LayerResult, OutputFile};
+use super::write::commit;
+use super::{Job, Outputs};
+use crate::cut::cut_layer;
+use crate::error::FileError;
+use crate::export::gltf::{build, encode_uri, malformed, relative_uri, to_glb};
+use crate::io::{decode_layer, ImageLimits};
+use std::path::{Path, PathBuf};
+
+/// Widest preview written, pixels.
+pub const PREVIEW_WIDTH: u32 = 1024;
+
+/// Runs `work` for the layer `input`; a panic inside it becomes a
+/// [`FileError`] naming the layer: "internal error while cutting:
+/// `<message>`; please report it with this file".
+///
+/// ```
+/// use std::path::Path;
+/// use underdraw::batch::catch_layer;
+/// let ok = catch_layer(Path::new("a.png"), || Ok(2 + 2));
+/// assert_eq!(ok.unwrap(), 4);
+/// ```
+pub fn catch_layer<T>(
+    input: &Path,
+    work: impl FnOnce() -> Result<T, FileError>,
+) -> Result<T, FileError> {
+    match std::panic::catch_unwind(std::panic::AssertUnwindSafe(work)) {
+        Ok(r) => r,
+        Err(payload) => {
+            let msg = payload
+                .downcast_ref::<&str>()
+                .map(|s| s.to_string())
+                .or_else(|| payload.downcast_ref::<String>().cloned())
+                .unwrap_or_else(|| "a panic without a message".into());
+            Err(FileError::new(
+                input,
+                format!("internal error while cutting: {msg}"),
+                "please report it with this file",
+            ))
+        }
+    }
+}
+
+/// What became of a layer that did not fail.
+pub(crate) struct Done {
+    /// False when it was unchanged and skipped.
+    pub cut: bool,
+    pub entry: Entry,
+}
+
+/// The output files of `job` under `out`, relative to `out` with `/`.
+pub(crate) fn output_names(job: &Job, outputs: Outputs) -> Vec<String> {
+    let base = &job.key;
+    let mut v = Vec::new();
+    if outputs.json {
+        v.push(format!("{base}.mesh.json"));
+    }
+    if outputs.gltf {
+        // the .bin first, so a reader never sees a new .gltf with an old .bin
+        v.push(format!("{base}.bin"));
+        v.push(format!("{base}.gltf"));
+    }
+    if outputs.glb {
+        v.push(format!("{base}.glb"));
+    }
+    if outputs.preview {
+        v.push(format!("{base}.preview.png"));
+    }
+    v
+}
+
+/// Cuts `job` into `out` unless `previous` shows it unchanged (and not `force`).
+pub(crate) fn run_layer(
+    job: &Job,
+    out: &Path,
+    outputs: Outputs,
+    limits: &ImageLimits,
+    previous: Option<&Entry>,
+    force: bool,
+) -> Result<Done, FileError> {
+    let bytes = std::fs::read(&job.input).map_err(|e| {
+        FileError::new(
+            &job.input,
+            format!("cannot be read ({e})"),
+            "check the path and the file's permissions",
+        )
+    })?;
+    let dir = out
+        .join(&job.key)
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or(out.to_path_buf());
+    std::fs::create_dir_all(&dir).map_err(|e| {
+        FileError::new(
+            &dir,
+            format!("the output folder cannot be created ({e})"),
+            "check that --out is writable and no file stands where this folder should be",
+        )
+    })?;
+    let image_uri = if outputs.gltf || outputs.glb {
+        Some(relative_uri(&dir, &job.input).ok_or_else(|| {
+            FileError::new(
+                &job.input,
+                format!(
+                    "has no path relative to the output folder {} for the glTF image URI",
+                    dir.display()
+                ),
+                "put the --out folder on the same drive as the layers",
+            )
+        })?)
+    } else {
+        None
+    };
+    let settings = serde_json::json!({
+        "cut": job.settings,
+        "outputs": outputs,
+        "image_uri": image_uri,
+    });
+    let input_sha256 = sha256_hex(&bytes);
+    let version = env!("CARGO_PKG_VERSION");
+    if let Some(prev) = previous.filter(|_| !force) {
+        if prev.input_sha256 == input_sha256
+            && prev.settings == settings
+            && prev.underdraw == version
+            && prev.outputs_intact(out)
+        {
+            let mut entry = prev.clone();
+            entry.input = job.relative.clone();
+            return Ok(Done { cut: false, entry });
+        }
+    }
+    let dests: Vec<PathBuf> = output_names(job, outputs)
+        .iter()
+        .map(|n| out.join(n))
+        .collect();
+    if dests.iter().any(|d| same_file(d, &job.input)) {
+        return Err(FileError::new(
+            &job.input,
+            "would be overwritten by its own output file",
+            "choose another --out folder",
+        ));
+    }
+    let layer = decode_layer(&job.input, &bytes, limits)?;
+    let name = job
+        .input
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let outcome = cut_layer(&layer.alpha, &name, &job.settings);
+    let mesh = &outcome.mesh;
+    let base = &job.key;
+    // (path relative to `out`, bytes), in the order of `output_names`
+    let mut files: Vec<(String, Vec<u8>)> = Vec::new();
+    if outputs.json {
+        let json = serde_json::to_vec_pretty(mesh).expect("a mesh serializes");
+        files.push((format!("{base}.mesh.json"), json));
+    }
+    if let Some(uri) = &image_uri {
+        if let Some(why) = malformed(mesh) {
+            return Err(FileError::new(
+                &job.input,
+                format!("cannot be exported to glTF: its mesh is malformed ({why})"),
+                "please report it with this file",
+            ));
+        }
+        let asset = build(mesh, uri, &job.stem);
+        if outputs.gltf {
+            let mut json = asset.json.clone();
+            // an empty layer has no buffer, and no .bin is written for it
+            if !asset.bin.is_empty() {
+                json["buffers"][0]["uri"] =
+                    serde_json::json!(encode_uri(&format!("{}.bin", job.stem)));
+                files.push((format!("{base}.bin"), asset.bin.clone()));
+            }
+            let text = serde_json::to_vec_pretty(&json).expect("glTF JSON serializes");
+            files.push((format!("{base}.gltf"), text));
+        }
+        if outputs.glb {
+            files.push((format!("{base}.glb"), to_glb(&asset)));
+        }
+    }
+    if outputs.preview {
+        let rgba = image::load_from_memory_with_format(&bytes, image::ImageFormat::Png)
+            .map_err(|e| {
+                FileError::new(
+                    &job.input,
+                    format!("cannot be read ({e})"),
+                    "check the file",
+                )
+            })?
+            .to_rgba8();
+        let img = crate::preview::render_preview(&rgba, mesh, PREVIEW_WIDTH);
+        files.push((format!("{base}.preview.png"), crate::heatmap::rgba_png(img)));
+    }
+    let recorded: Vec<OutputFile> = files
+        .iter()
+        .map(|(rel, data)| OutputFile {
+            path: rel.clone(),
+            sha256: sha256_hex(data),
+        })
+        .collect();
+    let written: Vec<(PathBuf, Vec<u8>)> = files
+        .into_iter()
+        .map(|(rel, data)| (out.join(rel), data))
+        .collect();
+    commit(&written)?;
+    let s = &mesh.stats;
+    let entry = Entry {
+        input: job.relative.clone(),
+        input_sha256,
+        underdraw: version.into(),
+        settings,
+        outputs: recorded,
+        result: LayerResult {
+            vertices: s.vertices,
+            opaque_capture: s.opaque_capture(),
+            excess: s.excess(),
+            must_cover_area: s.must_cover_area,
+            notes: outcome.notes,
+            warnings: layer.warnings,
+        },
+    };
+    Ok(Done { cut: true, entry })
+}
+
+/// Whether two paths name the same existing file.
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_panic_becomes_the_layers_error_with_its_message() {
+        let input = Path::new("in/town/houses.png");
+        let r: Result<(), FileError> = catch_layer(input, || panic!("index {} out of range", 7));
+        let e = r.unwrap_err();
+        assert_eq!(e.path, input);
+        assert_eq!(
+            e.problem,
+            "internal error while cutting: index 7 out of range"
+        );
+        assert!(e.hint.contains("report it with this file"));
+        // a static message too, and an error returned without a panic stays as it is
+        let r: Result<(), FileError> = catch_layer(input, || panic!("plain"));
+        assert!(r.unwrap_err().problem.ends_with(": plain"));
+        let r: Result<(), FileError> = catch_layer(input, || {
+            Err(FileError::new(input, "is empty", "re-export it"))
+        });
+        assert_eq!(r.unwrap_err().problem, "is empty");
+    }
+}

@@ -1,0 +1,189 @@
+//! The batch manifest, `OUT/underdraw-manifest.json`: what each layer was
+//! cut from, with which settings, and what it wrote.
+//!
+//! ```text
+//! {"format": "underdraw.manifest", "version": 1,
+//!  "layers": {"town/houses": {                 // the outputs' path in OUT, no extension
+//!     "input": "town/houses.png",              // relative to its input folder
+//!     "input_sha256": "9f86d0…",
+//!     "underdraw": "0.1.0",
+//!     "settings": {"cut": {...}, "outputs": {...}, "image_uri": "../in/town/houses.png"},
+//!     "outputs": [{"path": "town/houses.mesh.json", "sha256": "…"}],
+//!     "result": {"vertices": 48, "opaque_capture": 0.9, "excess": 120.0, ...}}}}
+//! ```
+//!
+//! Invariants: hashes are SHA-256 (FIPS 180-4) of the file bytes, in lower
+//! case hex; paths use `/`; the layers are kept sorted by key, so the same
+//! entries always serialize to the same bytes; an entry is recorded only
+//! after all its outputs were renamed into place, so its hashes describe
+//! files that were whole and complete together.
+
+use crate::error::FileError;
+use crate::io::write_atomic;
+use serde::{Deserialize, Serialize};
+use sha2::{Digest, Sha256};
+use std::collections::BTreeMap;
+use std::path::Path;
+
+/// The manifest's file name in the output folder.
+pub const FILE_NAME: &str = "underdraw-manifest.json";
+/// The manifest's `format`.
+pub const FORMAT: &str = "underdraw.manifest";
+/// The manifest's `version`.
+pub const VERSION: u32 = 1;
+
+/// SHA-256 of `bytes`, as lower-case hex.
+pub fn sha256_hex(bytes: &[u8]) -> String {
+    Sha256::digest(bytes)
+        .iter()
+        .map(|b| format!("{b:02x}"))
+        .collect()
+}
+
+/// One output file of a layer.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct OutputFile {
+    /// Relative to the output folder, `/` separators.
+    pub path: String,
+    /// SHA-256 of its bytes.
+    pub sha256: String,
+}
+
+/// What the batch prints about a layer, kept so an unchanged layer prints
+/// the same line without being cut again.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct LayerResult {
+    /// Vertices of the two meshes together.
+    pub vertices: usize,
+    /// Opaque area / safe-opaque area.
+    pub opaque_capture: f64,
+    /// Covered area beyond the must-cover region, texels.
+    pub excess: f64,
+    /// The must-cover area, texels.
+    pub must_cover_area: f64,
+    /// The cutter's notes.
+    pub notes: Vec<String>,
+    /// Warnings about the input file.
+    pub warnings: Vec<String>,
+}
+
+/// A layer's record.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Entry {
+    /// The input, relative to its input folder (a file given directly: its name).
+    pub input: String,
+    /// SHA-256 of the input's bytes.
+    pub input_sha256: String,
+    /// The underdraw version that cut it.
+    pub underdraw: String,
+    /// The effective settings: everything besides the input that decides
+    /// the outputs' bytes.
+    pub settings: serde_json::Value,
+    /// The files written, in writing order.
+    pub outputs: Vec<OutputFile>,
+    /// What was printed for it.
+    pub result: LayerResult,
+}
+
+/// The manifest: entries by output key.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Manifest {
+    /// Always [`FORMAT`].
+    pub format: String,
+    /// Always [`VERSION`].
+    pub version: u32,
+    /// The layers, by the path of their outputs in the output folder
+    /// without extension (`town/houses`).
+    pub layers: BTreeMap<String, Entry>,
+}
+
+impl Manifest {
+    /// An empty manifest.
+    pub fn new() -> Manifest {
+        Manifest {
+            format: FORMAT.into(),
+            version: VERSION,
+            layers: BTreeMap::new(),
+        }
+    }
+
+    /// Reads the manifest of `out`: `Ok(None)` when there is none; `Err`
+    /// with a note when it cannot be used (every layer is then cut again and
+    /// the file rewritten).
+    pub fn load(out: &Path) -> Result<Option<Manifest>, String> {
+        let path = out.join(FILE_NAME);
+        let bytes = match std::fs::read(&path) {
+            Ok(b) => b,
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
+            Err(e) => return Err(format!("{}: cannot be read ({e})", path.display())),
+        };
+        let m: Manifest = serde_json::from_slice(&bytes)
+            .map_err(|e| format!("{}: is not an underdraw manifest ({e})", path.display()))?;
+        if m.format != FORMAT || m.version != VERSION {
+            return Err(format!(
+                "{}: is {} version {}, not {FORMAT} version {VERSION}",
+                path.display(),
+                m.format,
+                m.version
+            ));
+        }
+        Ok(Some(m))
+    }
+
+    /// Writes the manifest into `out`, atomically.
+    pub fn save(&self, out: &Path) -> Result<(), FileError> {
+        let mut bytes = serde_json::to_vec_pretty(self).expect("a manifest serializes");
+        bytes.push(b'\n');
+        write_atomic(&out.join(FILE_NAME), &bytes)
+    }
+}
+
+impl Entry {
+    /// Whether the outputs recorded are all in `out` with the hashes recorded.
+    pub fn outputs_intact(&self, out: &Path) -> bool {
+        self.outputs
+            .iter()
+            .all(|o| std::fs::read(out.join(&o.path)).is_ok_and(|b| sha256_hex(&b) == o.sha256))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn sha256_matches_the_published_test_vectors() {
+        // FIPS 180-4 examples (NIST CSRC "SHA256.pdf" example values): "abc"
+        // and the empty message (from memory)
+        assert_eq!(
+            sha256_hex(b"abc"),
+            "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad"
+        );
+        assert_eq!(
+            sha256_hex(b""),
+            "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855"
+        );
+    }
+
+    #[test]
+    fn a_manifest_of_another_format_or_version_is_not_used() {
+        let d = std::env::temp_dir().join(format!("underdraw-manifest-{}", std::process::id()));
+        let _ = std::fs::remove_dir_all(&d);
+        std::fs::create_dir_all(&d).unwrap();
+        assert_eq!(Manifest::load(&d), Ok(None));
+        Manifest::new().save(&d).unwrap();
+        assert_eq!(Manifest::load(&d), Ok(Some(Manifest::new())));
+        let text = std::fs::read_to_string(d.join(FILE_NAME)).unwrap();
+        std::fs::write(
+            d.join(FILE_NAME),
+            text.replace("\"version\": 1", "\"version\": 9"),
+        )
+        .unwrap();
+        assert!(Manifest::load(&d).unwrap_err().contains("version 9"));
+        std::fs::remove_dir_all(&d).unwrap();
+    }
+}

@@ -1,0 +1,263 @@
+//! Batches: many layers, files or folders, cut into one output folder, with
+//! a settings file, a manifest, and reruns that skip what did not change.
+//!
+//! [`plan`] turns a [`Request`] into [`Job`]s: a file given directly is one
+//! job, written flat as `OUT/<stem>.*`; a folder is walked ([`walk`]) for
+//! `*.png` and its layers are written with the folder's layout mirrored
+//! (`in/town/houses.png` → `OUT/town/houses.mesh.json`). Each job's settings
+//! are, lowest to highest: the built-in defaults, the settings file's
+//! `defaults`, its matching `layers` entries in order ([`settings_file`]),
+//! then the options given explicitly on the command line. [`run()`] cuts the
+//! jobs on a pool of threads and returns a [`BatchReport`].
+//!
+//! Invariants:
+//! - the output folder is never an input folder; inside one it is skipped
+//!   by the walk; two jobs never write the same outputs (the later fails);
+//! - each layer's outputs are written together ([`write::commit`]), and its
+//!   manifest entry ([`manifest`]) is recorded only after they are all in
+//!   place; the manifest is written atomically after each finished layer
+//!   (at most once a second) and at the end, keeping the entries of layers
+//!   not in this run;
+//! - a layer is skipped ("unchanged") when its input's hash, its effective
+//!   settings and the underdraw version equal its entry's and every output
+//!   recorded is there with its recorded hash;
+//! - a bad file or a panic fails that layer only;
+//! - the same inputs and settings give the same output bytes (manifest
+//!   included) whatever the number of threads: layers are cut
+//!   deterministically and reported in plan order.
+//!
+//! ```
+//! use underdraw::batch::{plan, run, Outputs, Request, RunOptions, Status};
+//! let dir = std::env::temp_dir().join(format!("underdraw-doc-batch-{}", std::process::id()));
+//! std::fs::create_dir_all(dir.join("in/ui")).unwrap();
+//! let square = image::RgbaImage::from_pixel(8, 8, image::Rgba([9, 9, 9, 255]));
+//! square.save(dir.join("in/ui/square.png")).unwrap();
+//! let request = Request {
+//!     inputs: vec![dir.join("in")],
+//!     out: dir.join("out"),
+//!     outputs: Outputs { json: true, ..Default::default() },
+//!     ..Default::default()
+//! };
+//! let jobs = plan(&request).unwrap();
+//! assert_eq!(jobs.jobs[0].key, "ui/square");
+//! let first = run(&jobs, &RunOptions::default(), &|_| {}).unwrap();
+//! assert_eq!(first.count(Status::Cut), 1);
+//! assert!(dir.join("out/ui/square.mesh.json").is_file());
+//! // nothing changed: the rerun skips it
+//! let again = run(&jobs, &RunOptions::default(), &|_| {}).unwrap();
+//! assert_eq!(again.count(Status::Unchanged), 1);
+//! std::fs::remove_dir_all(&dir).unwrap();
+//! ```
+
+#![warn(missing_docs)]
+
+pub mod layer;
+pub mod manifest;
+pub mod run;
+pub mod settings_file;
+pub mod walk;
+pub mod write;
+
+pub use layer::catch_layer;
+pub use run::{prepare_out, run, BatchReport, LayerReport, RunOptions, Status};
+use serde::{Deserialize, Serialize};
+use settings_file::{SettingsFile, Values};
+
+use crate::error::FileError;
+use crate::settings::CutSettings;
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+
+/// What to write per layer.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct Outputs {
+    /// `<stem>.mesh.json`.
+    pub json: bool,
+    /// `<stem>.gltf` + `<stem>.bin`.
+    pub gltf: bool,
+    /// `<stem>.glb`.
+    pub glb: bool,
+    /// `<stem>.preview.png`.
+    pub preview: bool,
+}
+
+/// A batch as asked for.
+#[derive(Clone, Debug, Default)]
+pub struct Request {
+    /// PNG files and folders.
+    pub inputs: Vec<PathBuf>,
+    /// The output folder.
+    pub out: PathBuf,
+    /// Patterns of the folders' layers to take (all when empty).
+    pub include: Vec<String>,
+    /// Patterns of the folders' layers to leave out.
+    pub exclude: Vec<String>,
+    /// A settings file for every input, instead of each folder's own
+    /// [`settings_file::FILE_NAME`].
+    pub settings_file: Option<PathBuf>,
+    /// The built-in defaults.
+    pub base: CutSettings,
+    /// The settings given explicitly on the command line.
+    pub overrides: Values,
+    /// What to write.
+    pub outputs: Outputs,
+}
+
+/// One layer to cut.
+#[derive(Clone, Debug)]
+pub struct Job {
+    /// The layer's path, as given or as found in its folder.
+    pub input: PathBuf,
+    /// Its path relative to its input folder (a file given directly: its
+    /// name), with `/`.
+    pub relative: String,
+    /// Its outputs' path in the output folder without extension (`town/houses`).
+    pub key: String,
+    /// Its outputs' file stem.
+    pub stem: String,
+    /// Its effective settings.
+    pub settings: CutSettings,
+    /// The settings file that applied, if any.
+    pub settings_file: Option<PathBuf>,
+    /// An earlier job of the plan with the same outputs: this one fails.
+    pub clash: Option<PathBuf>,
+}
+
+/// The jobs of a batch.
+#[derive(Clone, Debug)]
+pub struct Plan {
+    /// The output folder.
+    pub out: PathBuf,
+    /// What to write per layer.
+    pub outputs: Outputs,
+    /// The layers, in order: inputs as given, each folder's in sorted order.
+    pub jobs: Vec<Job>,
+}
+
+fn canonical(p: &Path) -> Option<PathBuf> {
+    p.canonicalize().ok()
+}
+
+/// Finds the layers of `req` and their settings. Errors (nothing is cut):
+/// the output folder is an input folder, a settings file or a pattern is
+/// bad, a folder cannot be read.
+pub fn plan(req: &Request) -> Result<Plan, FileError> {
+    let out_canon = canonical(&req.out);
+    let compile = |ps: &[String], flag: &str| -> Result<Vec<globset::GlobMatcher>, FileError> {
+        ps.iter()
+            .map(|p| {
+                settings_file::pattern(p).map_err(|e| {
+                    FileError::new(
+                        Path::new(flag),
+                        e,
+                        "see `underdraw cut --help` for patterns",
+                    )
+                })
+            })
+            .collect()
+    };
+    let filter = walk::Filter {
+        include: compile(&req.include, "--include")?,
+        exclude: compile(&req.exclude, "--exclude")?,
+    };
+    let given = req
+        .settings_file
+        .as_deref()
+        .map(SettingsFile::load)
+        .transpose()?;
+    let mut jobs = Vec::new();
+    for input in &req.inputs {
+        if !input.is_dir() {
+            let name = input.file_name().map(|s| s.to_string_lossy().into_owned());
+            let relative = name.clone().unwrap_or_else(|| input.display().to_string());
+            let stem = input
+                .file_stem()
+                .map(|s| s.to_string_lossy().into_owned())
+                .unwrap_or_else(|| "layer".into());
+            jobs.push(job(
+                req,
+                given.as_ref(),
+                input.clone(),
+                relative,
+                stem.clone(),
+                stem,
+            )?);
+            continue;
+        }
+        if out_canon.is_some() && canonical(input) == out_canon {
+            return Err(FileError::new(
+                &req.out,
+                "is an input folder: the outputs would be mixed with the layers",
+                "choose another --out folder (a folder inside the input is fine: the walk skips it)",
+            ));
+        }
+        let own = input.join(settings_file::FILE_NAME);
+        let found = match &given {
+            Some(_) => None,
+            None if own.is_file() => Some(SettingsFile::load(&own)?),
+            None => None,
+        };
+        let file = given.as_ref().or(found.as_ref());
+        for path in walk::walk(input, &filter, out_canon.as_deref())? {
+            let relative = walk::relative(input, &path);
+            let stem = path
+                .file_stem()
+                .map(|s| s.to_string_lossy().into_owned())
+                .unwrap_or_default();
+            let key = match relative.rfind('/') {
+                Some(i) => format!("{}/{stem}", &relative[..i]),
+                None => stem.clone(),
+            };
+            jobs.push(job(req, file, path, relative, stem, key)?);
+        }
+    }
+    // two layers with one output path: the later ones fail
+    let mut seen: HashMap<String, PathBuf> = HashMap::new();
+    for j in &mut jobs {
+        match seen.get(&j.key) {
+            Some(first) => j.clash = Some(first.clone()),
+            None => {
+                seen.insert(j.key.clone(), j.input.clone());
+            }
+        }
+    }
+    Ok(Plan {
+        out: req.out.clone(),
+        outputs: req.outputs,
+        jobs,
+    })
+}
+
+fn job(
+    req: &Request,
+    file: Option<&SettingsFile>,
+    input: PathBuf,
+    relative: String,
+    stem: String,
+    key: String,
+) -> Result<Job, FileError> {
+    let mut settings = req.base;
+    if let Some(f) = file {
+        f.apply(&relative, &mut settings);
+    }
+    req.overrides.apply(&mut settings);
+    if let Err(e) = settings.validate() {
+        let (at, hint) = match file {
+            Some(f) => (
+                f.path.clone(),
+                format!("fix the settings for {relative} in this file"),
+            ),
+            None => (input.clone(), "fix the options".to_string()),
+        };
+        return Err(FileError::new(&at, format!("for {relative}: {e}"), hint));
+    }
+    Ok(Job {
+        input,
+        relative,
+        key,
+        stem,
+        settings,
+        settings_file: file.map(|f| f.path.clone()),
+        clash: None,
+    })
+}

@@ -1,0 +1,249 @@
+//! The batch settings file, `underdraw.settings.json`: cut settings for a
+//! folder of layers, with per-pattern overrides.
+//!
+//! ```text
+//! {"defaults": {"budget": 48, "filter": "bilinear"},
+//!  "layers": [{"match": "ui/*.png", "budget": 16},
+//!             {"match": "**/fog*.png", "wrap": "x"}]}
+//! ```
+//!
+//! Both keys are optional. A block may set any of `budget`, `filter`
+//! (`nearest`, `bilinear`), `mip_levels`, `wrap` (`none`, `x`, `y`, `xy`),
+//! `opaque_min` and `visible_min`, the `cut` command's options by their long
+//! names. A pattern is matched against the layer's path relative to the
+//! input folder, with `/` separators; `*` does not cross a `/`, `**` does.
+//!
+//! Invariants: unknown keys are refused (naming the file); every value is
+//! checked as the command line checks it ([`Values::check`]); blocks apply
+//! in order (defaults, then every matching entry in file order), so a later
+//! match overrides an earlier one, key by key.
+
+use crate::error::FileError;
+use crate::settings::{CutSettings, FilterMode, Wrap};
+use globset::{GlobBuilder, GlobMatcher};
+use serde::Deserialize;
+use std::path::{Path, PathBuf};
+
+/// The name of the settings file looked for at the root of an input folder.
+pub const FILE_NAME: &str = "underdraw.settings.json";
+
+/// Some cut settings, each optional: a block of the settings file, or the
+/// options given explicitly on the command line.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Values {
+    /// Most vertices per layer (at least 4).
+    pub budget: Option<usize>,
+    /// The texture filter.
+    pub filter: Option<FilterMode>,
+    /// Highest mip level sampled (at most 15).
+    pub mip_levels: Option<u32>,
+    /// The repeating axes.
+    pub wrap: Option<Wrap>,
+    /// Alpha from which a texel is opaque.
+    pub opaque_min: Option<u8>,
+    /// Alpha from which a texel is visible.
+    pub visible_min: Option<u8>,
+}
+
+impl Values {
+    /// Sets in `s` every value given here.
+    pub fn apply(&self, s: &mut CutSettings) {
+        if let Some(b) = self.budget {
+            s.budget = b;
+        }
+        if let Some(f) = self.filter {
+            s.filter.mode = f;
+        }
+        if let Some(m) = self.mip_levels {
+            s.filter.mip_levels = m;
+        }
+        if let Some(w) = self.wrap {
+            s.wrap = w;
+        }
+        if let Some(a) = self.opaque_min {
+            s.alpha.opaque_min = a;
+        }
+        if let Some(a) = self.visible_min {
+            s.alpha.visible_min = a;
+        }
+    }
+
+    /// The range checks of the command line's options, on the values given.
+    pub fn check(&self) -> Result<(), String> {
+        if let Some(b) = self.budget.filter(|&b| b < 4) {
+            return Err(format!(
+                "budget {b} is too small: a mesh needs at least 4 vertices"
+            ));
+        }
+        if let Some(m) = self.mip_levels.filter(|&m| m > 15) {
+            return Err(format!(
+                "mip_levels {m} is more than any texture has (at most 15)"
+            ));
+        }
+        if let (Some(v), Some(o)) = (self.visible_min, self.opaque_min) {
+            if v > o {
+                return Err(format!(
+                    "visible_min {v} is above opaque_min {o}: an opaque texel must also be visible"
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// An entry of `layers` as written in the file.
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct EntryForm {
+    #[serde(rename = "match")]
+    pattern: String,
+    budget: Option<usize>,
+    filter: Option<FilterMode>,
+    mip_levels: Option<u32>,
+    wrap: Option<Wrap>,
+    opaque_min: Option<u8>,
+    visible_min: Option<u8>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct FileForm {
+    #[serde(default)]
+    defaults: Values,
+    #[serde(default)]
+    layers: Vec<EntryForm>,
+}
+
+/// A parsed settings file.
+#[derive(Clone, Debug)]
+pub struct SettingsFile {
+    /// Where it was read from (named in errors and reports).
+    pub path: PathBuf,
+    /// The values for every layer.
+    pub defaults: Values,
+    /// Per-pattern values, in file order.
+    pub layers: Vec<(String, GlobMatcher, Values)>,
+}
+
+const HINT: &str = "the settings file is {\"defaults\": {...}, \"layers\": [{\"match\": \"pattern\", ...}]} with the keys budget, filter, mip_levels, wrap, opaque_min, visible_min (see README, Batches)";
+
+impl SettingsFile {
+    /// Reads and checks a settings file.
+    pub fn load(path: &Path) -> Result<SettingsFile, FileError> {
+        let text = std::fs::read_to_string(path).map_err(|e| {
+            FileError::new(
+                path,
+                format!("the settings file cannot be read ({e})"),
+                "check the path and the file's permissions",
+            )
+        })?;
+        Self::parse(path, &text)
+    }
+
+    /// Parses the text of a settings file (`path` only names it in errors).
+    pub fn parse(path: &Path, text: &str) -> Result<SettingsFile, FileError> {
+        let bad = |what: String| FileError::new(path, what, HINT);
+        let form: FileForm = serde_json::from_str(text)
+            .map_err(|e| bad(format!("is not a valid settings file: {e}")))?;
+        form.defaults
+            .check()
+            .map_err(|e| bad(format!("in \"defaults\": {e}")))?;
+        let mut layers = Vec::new();
+        for (i, e) in form.layers.into_iter().enumerate() {
+            let values = Values {
+                budget: e.budget,
+                filter: e.filter,
+                mip_levels: e.mip_levels,
+                wrap: e.wrap,
+                opaque_min: e.opaque_min,
+                visible_min: e.visible_min,
+            };
+            let which = format!("in layers[{i}] (\"match\": {:?})", e.pattern);
+            values.check().map_err(|m| bad(format!("{which}: {m}")))?;
+            let glob = pattern(&e.pattern).map_err(|m| bad(format!("{which}: {m}")))?;
+            layers.push((e.pattern, glob, values));
+        }
+        Ok(SettingsFile {
+            path: path.to_path_buf(),
+            defaults: form.defaults,
+            layers,
+        })
+    }
+
+    /// Applies the defaults, then every entry matching `relative` (a path
+    /// with `/` separators), to `s`.
+    pub fn apply(&self, relative: &str, s: &mut CutSettings) {
+        self.defaults.apply(s);
+        for (_, glob, values) in &self.layers {
+            if glob.is_match(relative) {
+                values.apply(s);
+            }
+        }
+    }
+}
+
+/// Compiles a pattern as the batch matches it: `*` and `?` stay within one
+/// path component, `**` crosses them.
+pub fn pattern(p: &str) -> Result<GlobMatcher, String> {
+    GlobBuilder::new(p)
+        .literal_separator(true)
+        .build()
+        .map(|g| g.compile_matcher())
+        .map_err(|e| format!("the pattern {p:?} is not valid ({e})"))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn parse(text: &str) -> Result<SettingsFile, FileError> {
+        SettingsFile::parse(Path::new("in/underdraw.settings.json"), text)
+    }
+
+    #[test]
+    fn later_matches_override_earlier_ones_key_by_key() {
+        let f = parse(
+            r#"{"defaults": {"budget": 48, "wrap": "x"},
+                "layers": [{"match": "ui/*.png", "budget": 16, "filter": "nearest"},
+                           {"match": "ui/b*.png", "budget": 8}]}"#,
+        )
+        .unwrap();
+        let at = |rel: &str| {
+            let mut s = CutSettings::default();
+            f.apply(rel, &mut s);
+            s
+        };
+        let plain = at("sky.png");
+        assert_eq!((plain.budget, plain.wrap), (48, Wrap::X));
+        assert_eq!(plain.filter.mode, FilterMode::Bilinear);
+        let panel = at("ui/panel.png");
+        assert_eq!((panel.budget, panel.filter.mode), (16, FilterMode::Nearest));
+        let button = at("ui/button.png");
+        assert_eq!(
+            (button.budget, button.filter.mode),
+            (8, FilterMode::Nearest)
+        );
+        // `*` stays within one folder (glob(7) pathname rule, from memory)
+        assert_eq!(at("ui/deep/panel.png").budget, 48);
+    }
+
+    #[test]
+    fn unknown_keys_and_bad_values_are_refused_naming_the_file() {
+        for (text, says) in [
+            (r#"{"defaults": {"budgt": 4}}"#, "budgt"),
+            (r#"{"default": {}}"#, "default"),
+            (r#"{"layers": [{"match": "*.png", "colour": 1}]}"#, "colour"),
+            (r#"{"defaults": {"budget": 3}}"#, "at least 4"),
+            (r#"{"defaults": {"mip_levels": 16}}"#, "at most 15"),
+            (r#"{"defaults": {"filter": "trilinear"}}"#, "trilinear"),
+            (r#"{"defaults": {"opaque_min": 300}}"#, "300"),
+            (r#"{"layers": [{"match": "a/[b.png"}]}"#, "not valid"),
+            (r#"{"layers": [{"budget": 8}]}"#, "match"),
+        ] {
+            let e = parse(text).expect_err(text).to_string();
+            assert!(e.starts_with("in/underdraw.settings.json: "), "{e}");
+            assert!(e.contains(says), "{text}: {e}");
+        }
+    }
+}

@@ -1,0 +1,553 @@
+//! `underdraw cut` on folders: mirrored layouts, include/exclude, the
+//! settings file and its precedence, the manifest and reruns that skip
+//! unchanged layers, refusals, and a batch with one layer that cannot be
+//! written.
+//!
+//! Each test works in its own folder under the system temp dir, removed when
+//! the test ends. Layers are small generated PNGs so the tests stay quick.
+
+use image::{ImageFormat, Rgba, RgbaImage};
+use serde_json::Value;
+use std::collections::BTreeMap;
+use std::fs;
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::atomic::{AtomicUsize, Ordering};
+
+const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
+
+struct TempDir(PathBuf);
+
+impl TempDir {
+    fn new(test: &str) -> TempDir {
+        static N: AtomicUsize = AtomicUsize::new(0);
+        let dir = std::env::temp_dir().join(format!(
+            "underdraw-batch-{test}-{}-{}",
+            std::process::id(),
+            N.fetch_add(1, Ordering::Relaxed)
+        ));
+        let _ = fs::remove_dir_all(&dir);
+        fs::create_dir_all(&dir).expect("create the test folder");
+        TempDir(dir)
+    }
+    fn path(&self, rel: &str) -> PathBuf {
+        self.0.join(rel)
+    }
+}
+
+impl Drop for TempDir {
+    fn drop(&mut self) {
+        let _ = fs::remove_dir_all(&self.0);
+    }
+}
+
+fn text(b: &[u8]) -> String {
+    String::from_utf8_lossy(b).into_owned()
+}
+
+fn run(args: &[&str], paths: &[&Path]) -> Output {
+    // paths first (the inputs), then the options
+    Command::new(BIN)
+        .arg("cut")
+        .args(paths)
+        .args(args)
+        .output()
+        .expect("run the underdraw binary")
+}
+
+fn assert_status(o: &Output, code: i32, what: &str) {
+    assert_eq!(
+        o.status.code(),
+        Some(code),
+        "{what}: stdout:\n{}\nstderr:\n{}",
+        text(&o.stdout),
+        text(&o.stderr)
+    );
+}
+
+/// A layer: an opaque disc of radius `r` with a soft rim, in a 40x36 image.
+fn write_blob(path: &Path, r: f64) {
+    fs::create_dir_all(path.parent().unwrap()).unwrap();
+    RgbaImage::from_fn(40, 36, |x, y| {
+        let d = ((x as f64 - 20.0).powi(2) + (y as f64 - 18.0).powi(2)).sqrt();
+        let a = if d < r {
+            255
+        } else if d < r + 4.0 {
+            90
+        } else {
+            0
+        };
+        Rgba([100, 140, 180, a])
+    })
+    .save_with_format(path, ImageFormat::Png)
+    .expect("write a test PNG");
+}
+
+/// `in/` with three layers in two levels, and a text file that is no layer.
+fn layers(dir: &TempDir) -> PathBuf {
+    let root = dir.path("in");
+    write_blob(&root.join("sky.png"), 14.0);
+    write_blob(&root.join("town/houses.png"), 10.0);
+    write_blob(&root.join("town/ui/button.PNG"), 6.0);
+    fs::write(root.join("town/notes.txt"), "not a layer").unwrap();
+    root
+}
+
+/// `--json cut ...`: the status of each layer, by the layer's path relative to `root`.
+fn statuses(o: &Output, root: &Path) -> BTreeMap<String, String> {
+    let v: Value = serde_json::from_slice(&o.stdout)
+        .unwrap_or_else(|e| panic!("stdout is not JSON ({e}):\n{}", text(&o.stdout)));
+    v.as_array()
+        .expect("an array of layers")
+        .iter()
+        .map(|l| {
+            let p = PathBuf::from(l["layer"].as_str().unwrap());
+            let rel = p
+                .strip_prefix(root)
+                .unwrap_or(&p)
+                .to_string_lossy()
+                .replace('\\', "/");
+            (rel, l["status"].as_str().unwrap().to_string())
+        })
+        .collect()
+}
+
+fn cut_json(root: &Path, out: &Path, extra: &[&str]) -> BTreeMap<String, String> {
+    let mut args = vec!["--json", "--out", out.to_str().unwrap()];
+    args.extend(extra);
+    let o = run(&args, &[root]);
+    assert_status(&o, 0, "cut --json");
+    statuses(&o, root)
+}
+
+fn all(status: &str, names: &[&str]) -> BTreeMap<String, String> {
+    names
+        .iter()
+        .map(|n| (n.to_string(), status.to_string()))
+        .collect()
+}
+
+const THREE: [&str; 3] = ["sky.png", "town/houses.png", "town/ui/button.PNG"];
+
+/// Every file under `dir`, by relative path, with its bytes.
+fn tree(dir: &Path) -> BTreeMap<String, Vec<u8>> {
+    fn go(root: &Path, d: &Path, acc: &mut BTreeMap<String, Vec<u8>>) {
+        for e in fs::read_dir(d).unwrap() {
+            let p = e.unwrap().path();
+            if p.is_dir() {
+                go(root, &p, acc);
+            } else {
+                let rel = p
+                    .strip_prefix(root)
+                    .unwrap()
+                    .to_string_lossy()
+                    .replace('\\', "/");
+                acc.insert(rel, fs::read(&p).unwrap());
+            }
+        }
+    }
+    let mut acc = BTreeMap::new();
+    go(dir, dir, &mut acc);
+    acc
+}
+
+fn mesh_budget(path: &Path) -> u64 {
+    let v: Value = serde_json::from_slice(&fs::read(path).unwrap()).unwrap();
+    v["budget"].as_u64().unwrap()
+}
+
+#[test]
+fn a_folder_is_mirrored_and_files_given_directly_stay_flat() {
+    let dir = TempDir::new("mirror");
+    let root = layers(&dir);
+    let single = dir.path("single.png");
+    write_blob(&single, 12.0);
+    let out = dir.path("out");
+    let o = run(&["--out", out.to_str().unwrap()], &[&root, &single]);
+    assert_status(&o, 0, "cut a folder and a file");
+    let files: Vec<String> = tree(&out).into_keys().collect();
+    assert_eq!(
+        files,
+        [
+            "single.mesh.json",
+            "sky.mesh.json",
+            "town/houses.mesh.json",
+            "town/ui/button.mesh.json",
+            "underdraw-manifest.json"
+        ]
+    );
+    // every mesh holds against its layer by the independent checker
+    for (mesh, png) in [
+        ("sky.mesh.json", root.join("sky.png")),
+        ("town/houses.mesh.json", root.join("town/houses.png")),
+        ("town/ui/button.mesh.json", root.join("town/ui/button.PNG")),
+        ("single.mesh.json", single.clone()),
+    ] {
+        let c = Command::new(BIN)
+            .arg("check")
+            .arg(out.join(mesh))
+            .arg(&png)
+            .output()
+            .unwrap();
+        assert_status(&c, 0, mesh);
+    }
+    let summary = text(&o.stdout);
+    assert!(
+        summary.contains("4 layers (4 cut, 0 unchanged, 0 failed)"),
+        "{summary}"
+    );
+}
+
+#[test]
+fn include_and_exclude_filter_the_relative_paths() {
+    let dir = TempDir::new("filter");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    let got = cut_json(
+        &root,
+        &out,
+        &["--include", "town/**", "--exclude", "**/ui/*"],
+    );
+    assert_eq!(got, all("cut", &["town/houses.png"]));
+    let out2 = dir.path("out2");
+    // `*` does not cross a folder: only the top-level layer
+    let got = cut_json(&root, &out2, &["--include", "*.png"]);
+    assert_eq!(got, all("cut", &["sky.png"]));
+}
+
+#[test]
+fn jobs_1_and_jobs_2_write_byte_identical_trees() {
+    let dir = TempDir::new("jobs");
+    let root = layers(&dir);
+    let trees: Vec<BTreeMap<String, Vec<u8>>> = ["1", "2"]
+        .iter()
+        .map(|n| {
+            let out = dir.path(&format!("out-{n}"));
+            let o = run(
+                &[
+                    "--out",
+                    out.to_str().unwrap(),
+                    "--jobs",
+                    n,
+                    "--format",
+                    "all",
+                    "--preview",
+                ],
+                &[&root],
+            );
+            assert_status(&o, 0, "cut --jobs");
+            tree(&out)
+        })
+        .collect();
+    // 3 layers x (mesh, gltf, bin, preview) + the manifest
+    assert_eq!(trees[0].len(), 13, "{:?}", trees[0].keys());
+    assert_eq!(
+        trees[0].keys().collect::<Vec<_>>(),
+        trees[1].keys().collect::<Vec<_>>()
+    );
+    for (name, bytes) in &trees[0] {
+        assert!(
+            trees[1][name] == *bytes,
+            "{name} differs between --jobs 1 and 2"
+        );
+    }
+}
+
+#[test]
+fn reruns_cut_only_what_changed() {
+    let dir = TempDir::new("rerun");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    assert_eq!(cut_json(&root, &out, &[]), all("cut", &THREE));
+    // nothing changed: nothing is cut
+    assert_eq!(cut_json(&root, &out, &[]), all("unchanged", &THREE));
+    // one layer's bytes change: only it is cut
+    write_blob(&root.join("town/houses.png"), 11.0);
+    let mut want = all("unchanged", &THREE);
+    want.insert("town/houses.png".into(), "cut".into());
+    assert_eq!(cut_json(&root, &out, &[]), want);
+    // an output edited by hand no longer has its recorded hash: cut again
+    fs::write(out.join("sky.mesh.json"), b"{}").unwrap();
+    let mut want = all("unchanged", &THREE);
+    want.insert("sky.png".into(), "cut".into());
+    assert_eq!(cut_json(&root, &out, &[]), want);
+    // other settings on the command line: all are cut
+    assert_eq!(
+        cut_json(&root, &out, &["--budget", "12"]),
+        all("cut", &THREE)
+    );
+    assert_eq!(
+        cut_json(&root, &out, &["--budget", "12"]),
+        all("unchanged", &THREE)
+    );
+    // --force: all are cut
+    assert_eq!(
+        cut_json(&root, &out, &["--budget", "12", "--force"]),
+        all("cut", &THREE)
+    );
+}
+
+#[test]
+fn manifest_records_hashes_that_sha256sum_agrees_with() {
+    let dir = TempDir::new("manifest");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    cut_json(&root, &out, &[]);
+    // a run over part of the folder keeps the other layers' entries
+    cut_json(&root, &out, &["--include", "sky.png", "--budget", "8"]);
+    let m: Value =
+        serde_json::from_slice(&fs::read(out.join("underdraw-manifest.json")).unwrap()).unwrap();
+    assert_eq!(m["format"], "underdraw.manifest");
+    assert_eq!(m["version"], 1);
+    let layers = m["layers"].as_object().unwrap();
+    let keys: Vec<&String> = layers.keys().collect();
+    assert_eq!(keys, ["sky", "town/houses", "town/ui/button"]);
+    assert_eq!(layers["town/ui/button"]["input"], "town/ui/button.PNG");
+    assert_eq!(layers["sky"]["settings"]["cut"]["budget"], 8);
+    assert_eq!(layers["town/houses"]["settings"]["cut"]["budget"], 64);
+    assert_eq!(layers["sky"]["underdraw"], env!("CARGO_PKG_VERSION"));
+    // SHA-256 (FIPS 180-4) as computed by coreutils' sha256sum, when installed
+    let Ok(probe) = Command::new("sha256sum").arg("--version").output() else {
+        eprintln!("sha256sum is not installed: the hashes are not cross-checked");
+        return;
+    };
+    assert!(probe.status.success());
+    let sum = |p: &Path| {
+        let o = Command::new("sha256sum").arg(p).output().unwrap();
+        text(&o.stdout)
+            .split_whitespace()
+            .next()
+            .unwrap()
+            .to_string()
+    };
+    for (_, e) in layers {
+        let input = root.join(e["input"].as_str().unwrap());
+        assert_eq!(e["input_sha256"].as_str().unwrap(), sum(&input));
+        for o in e["outputs"].as_array().unwrap() {
+            let file = out.join(o["path"].as_str().unwrap());
+            assert_eq!(
+                o["sha256"].as_str().unwrap(),
+                sum(&file),
+                "{}",
+                file.display()
+            );
+        }
+    }
+}
+
+#[test]
+fn settings_file_precedence_and_reruns_of_the_layers_it_matches() {
+    let dir = TempDir::new("settings");
+    let root = layers(&dir);
+    let file = root.join("underdraw.settings.json");
+    let write = |ui_budget: u32| {
+        fs::write(
+            &file,
+            format!(
+                r#"{{"defaults": {{"budget": 20}},
+                    "layers": [{{"match": "town/**", "budget": 16, "filter": "nearest"}},
+                               {{"match": "town/ui/*", "budget": {ui_budget}}}]}}"#
+            ),
+        )
+        .unwrap();
+    };
+    write(8);
+    let out = dir.path("out");
+    assert_eq!(cut_json(&root, &out, &[]), all("cut", &THREE));
+    // defaults, then the matching entries in order (the later wins)
+    assert_eq!(mesh_budget(&out.join("sky.mesh.json")), 20);
+    assert_eq!(mesh_budget(&out.join("town/houses.mesh.json")), 16);
+    assert_eq!(mesh_budget(&out.join("town/ui/button.mesh.json")), 8);
+    let v: Value =
+        serde_json::from_slice(&fs::read(out.join("town/ui/button.mesh.json")).unwrap()).unwrap();
+    assert_eq!(v["filter"]["mode"], "nearest");
+    // one entry changes: only the layers it matches are cut again
+    write(12);
+    let mut want = all("unchanged", &THREE);
+    want.insert("town/ui/button.PNG".into(), "cut".into());
+    assert_eq!(cut_json(&root, &out, &[]), want);
+    assert_eq!(mesh_budget(&out.join("town/ui/button.mesh.json")), 12);
+    // an option given on the command line overrides the file; others keep it
+    let out2 = dir.path("out2");
+    cut_json(&root, &out2, &["--budget", "6"]);
+    for m in [
+        "sky.mesh.json",
+        "town/houses.mesh.json",
+        "town/ui/button.mesh.json",
+    ] {
+        assert_eq!(mesh_budget(&out2.join(m)), 6, "{m}");
+    }
+    let v: Value =
+        serde_json::from_slice(&fs::read(out2.join("town/houses.mesh.json")).unwrap()).unwrap();
+    assert_eq!(v["filter"]["mode"], "nearest");
+    // --settings FILE instead of the folder's own
+    let other = dir.path("other.settings.json");
+    fs::write(&other, r#"{"defaults": {"budget": 10}}"#).unwrap();
+    let out3 = dir.path("out3");
+    cut_json(&root, &out3, &["--settings", other.to_str().unwrap()]);
+    assert_eq!(mesh_budget(&out3.join("town/ui/button.mesh.json")), 10);
+}
+
+#[test]
+fn a_bad_settings_file_is_refused_naming_it() {
+    let dir = TempDir::new("bad-settings");
+    let root = layers(&dir);
+    let file = root.join("underdraw.settings.json");
+    for (body, says) in [
+        (r#"{"defaults": {"budget": 16, "colour": "red"}}"#, "colour"),
+        (
+            r#"{"layers": [{"match": "*.png", "budget": 2}]}"#,
+            "at least 4",
+        ),
+        (r#"{"defaults": {"wrap": "z"}}"#, "unknown variant"),
+        (
+            r#"{"defaults": {"visible_min": 200, "opaque_min": 100}}"#,
+            "visible_min",
+        ),
+    ] {
+        fs::write(&file, body).unwrap();
+        let out = dir.path("out");
+        let o = run(&["--out", out.to_str().unwrap()], &[&root]);
+        assert_status(&o, 2, body);
+        let err = text(&o.stderr);
+        assert!(
+            err.lines()
+                .any(|l| l.contains("underdraw.settings.json") && l.contains(says)),
+            "{body}: {err}"
+        );
+        assert!(!out.exists(), "nothing is written for a bad settings file");
+    }
+}
+
+#[test]
+fn out_equal_to_an_input_folder_is_refused() {
+    let dir = TempDir::new("out-is-in");
+    let root = layers(&dir);
+    let before = tree(&root);
+    let o = run(&["--out", root.to_str().unwrap()], &[&root]);
+    assert_status(&o, 2, "--out is the input folder");
+    let err = text(&o.stderr);
+    assert!(err.contains("is an input folder"), "{err}");
+    assert_eq!(tree(&root), before, "nothing was written into the input");
+    // a folder inside the input is fine, and is not read back as input
+    let inner = root.join("meshes");
+    let o = run(&["--out", inner.to_str().unwrap(), "--preview"], &[&root]);
+    assert_status(&o, 0, "--out inside the input");
+    let again = cut_json(&root, &inner, &["--preview"]);
+    assert_eq!(
+        again,
+        all("unchanged", &THREE),
+        "previews are not taken as layers"
+    );
+}
+
+#[test]
+fn an_unwritable_output_folder_is_refused_naming_it() {
+    let dir = TempDir::new("readonly");
+    let root = layers(&dir);
+    let out = dir.path("locked");
+    fs::create_dir(&out).unwrap();
+    let mut perm = fs::metadata(&out).unwrap().permissions();
+    perm.set_readonly(true);
+    fs::set_permissions(&out, perm.clone()).unwrap();
+    // root (or a filesystem ignoring permissions) writes anyway: then there
+    // is nothing to refuse
+    let probe = out.join("probe");
+    if fs::write(&probe, b"").is_ok() {
+        let _ = fs::remove_file(&probe);
+        eprintln!("the read-only folder is writable here (root?): assertion skipped");
+    } else {
+        let o = run(&["--out", out.to_str().unwrap()], &[&root]);
+        assert_status(&o, 2, "a read-only --out");
+        let err = text(&o.stderr);
+        assert!(
+            err.contains(out.to_str().unwrap()) && err.contains("cannot be written"),
+            "{err}"
+        );
+    }
+    #[allow(clippy::permissions_set_readonly_false)]
+    perm.set_readonly(false);
+    fs::set_permissions(&out, perm).unwrap();
+    // an output folder that cannot be created: a file stands in its place
+    let file = dir.path("a-file");
+    fs::write(&file, b"").unwrap();
+    let o = run(&["--out", file.join("sub").to_str().unwrap()], &[&root]);
+    assert_status(&o, 2, "--out under a file");
+    assert!(
+        text(&o.stderr).contains("cannot be created"),
+        "{}",
+        text(&o.stderr)
+    );
+}
+
+/// No temporary or backup file anywhere under `dir`.
+fn assert_no_temporaries(dir: &Path) {
+    for name in tree(dir).into_keys() {
+        assert!(
+            !name.contains(".underdraw-") && !name.contains(".tmp"),
+            "a temporary file is left: {name}"
+        );
+    }
+}
+
+#[test]
+fn a_layer_that_cannot_be_written_fails_alone_and_the_next_run_finishes_it() {
+    let dir = TempDir::new("obstacle");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    let opts = ["--format", "all", "--budget", "16"];
+    assert_eq!(cut_json(&root, &out, &opts), all("cut", &THREE));
+    let first = tree(&out);
+    // one destination of houses becomes a folder: its outputs cannot all be
+    // replaced, so none is
+    let obstacle = out.join("town/houses.gltf");
+    fs::remove_file(&obstacle).unwrap();
+    fs::create_dir(&obstacle).unwrap();
+    fs::write(obstacle.join("keep"), b"someone's file").unwrap();
+    let o = run(
+        &[
+            "--json",
+            "--out",
+            out.to_str().unwrap(),
+            "--format",
+            "all",
+            "--budget",
+            "8",
+        ],
+        &[&root],
+    );
+    assert_status(&o, 2, "a batch with one unwritable layer");
+    let mut want = all("cut", &THREE);
+    want.insert("town/houses.png".into(), "failed".into());
+    assert_eq!(statuses(&o, &root), want);
+    let err = text(&o.stderr);
+    assert!(err.contains("1 of 3 layers failed"), "{err}");
+    assert!(
+        err.contains("houses.gltf") && err.contains("is a folder"),
+        "{err}"
+    );
+    assert_no_temporaries(&out);
+    let now = tree(&out);
+    // the failed layer's other outputs are the first run's, not a mix
+    for f in ["town/houses.mesh.json", "town/houses.bin"] {
+        assert!(now[f] == first[f], "{f} was replaced");
+    }
+    // the other layers are complete, at the new budget
+    for stem in ["sky", "town/ui/button"] {
+        for ext in ["mesh.json", "gltf", "bin"] {
+            assert!(now.contains_key(&format!("{stem}.{ext}")), "{stem}.{ext}");
+        }
+        assert_eq!(mesh_budget(&out.join(format!("{stem}.mesh.json"))), 8);
+    }
+    // the obstacle removed, the next run finishes that layer only
+    fs::remove_dir_all(&obstacle).unwrap();
+    let mut want = all("unchanged", &THREE);
+    want.insert("town/houses.png".into(), "cut".into());
+    assert_eq!(
+        cut_json(&root, &out, &["--format", "all", "--budget", "8"]),
+        want
+    );
+    assert_eq!(mesh_budget(&out.join("town/houses.mesh.json")), 8);
+    assert!(out.join("town/houses.gltf").is_file());
+    assert_no_temporaries(&out);
+}
