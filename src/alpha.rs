@@ -18,8 +18,11 @@ use image::DynamicImage;
 /// The alpha channel of a layer, row-major, one byte a texel.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct AlphaMap {
+    /// Texels per row.
     pub width: u32,
+    /// Rows.
     pub height: u32,
+    /// Alpha of texel (x, y) at `y * width + x`.
     pub alpha: Vec<u8>,
 }
 
@@ -60,6 +63,7 @@ impl AlphaMap {
         }
     }
 
+    /// Alpha of texel (x, y).
     pub fn get(&self, x: u32, y: u32) -> u8 {
         self.alpha[y as usize * self.width as usize + x as usize]
     }
@@ -83,10 +87,15 @@ impl AlphaMap {
 /// Areas of a layer's classes and regions, in texels.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct RegionStats {
+    /// Texels with alpha at least `opaque_min`.
     pub opaque_texels: u64,
+    /// Visible texels that are not opaque.
     pub partial_texels: u64,
+    /// Texels with alpha below `visible_min`.
     pub transparent_texels: u64,
+    /// Area of the safe-opaque region, texels.
     pub safe_opaque_area: f64,
+    /// Area of the must-cover region, texels.
     pub must_cover_area: f64,
 }
 
@@ -97,6 +106,7 @@ pub struct Regions {
     pub safe: Mask,
     /// What the two meshes must cover.
     pub cover: Mask,
+    /// Their areas and the texel classes.
     pub stats: RegionStats,
 }
 
@@ -112,20 +122,20 @@ impl Regions {
         let (w, h) = (map.width as usize, map.height as usize);
         let region = |min: u8, all: bool| {
             let texels: Vec<bool> = map.alpha.iter().map(|&a| a >= min).collect();
-            let mut acc = Mask::new(2 * w, 2 * h, all);
+            let mut acc: Option<Mask> = None;
             for level in 0..=settings.filter.mip_levels {
                 let mut m = block_mask(&texels, w, h, level, all);
                 if settings.filter.mode == FilterMode::Bilinear {
                     let k = 1usize << level; // 2^(l-1) texels = 2^l half cells
-                    m = window_filter(&m, k, settings.wrap, all);
+                    m = window_filter(m, k, settings.wrap, all);
                 }
-                if all {
-                    acc.and_with(&m);
-                } else {
-                    acc.or_with(&m);
+                match acc.as_mut() {
+                    None => acc = Some(m),
+                    Some(a) if all => a.and_with(&m),
+                    Some(a) => a.or_with(&m),
                 }
             }
-            acc
+            acc.expect("level 0 is always built")
         };
         // the two regions are independent: build them side by side
         let (safe, cover) = rayon::join(
@@ -174,80 +184,113 @@ fn block_mask(texels: &[bool], w: usize, h: usize, level: u32, all: bool) -> Mas
 }
 
 /// A separable square min (`erode`) or max filter of radius `k` cells, with
-/// clamp-to-edge or repeat addressing per axis. Each line is extended by
-/// its addressing and filtered with a running count, so the cost does not
-/// grow with `k`.
-fn window_filter(m: &Mask, k: usize, wrap: Wrap, erode: bool) -> Mask {
+/// clamp-to-edge or repeat addressing per axis. Each line is extended by its
+/// addressing, then every cell takes the AND (erode) or OR (dilate) of its
+/// window: for a small `k` offset by offset over whole lines (which the
+/// compiler vectorizes), for a large one with a running count, so the cost
+/// does not grow with `k`.
+fn window_filter(m: Mask, k: usize, wrap: Wrap, erode: bool) -> Mask {
     let (w, h) = (m.width, m.height);
-    let mut line = Vec::new();
-    let mut ext = Vec::new();
-    let mut filter_line = |line: &mut Vec<u8>, repeat: bool| {
-        let n = line.len() as i64;
-        ext.clear();
-        for i in -(k as i64)..n + k as i64 {
-            let j = if repeat {
-                i.rem_euclid(n)
-            } else {
-                i.clamp(0, n - 1)
-            };
-            ext.push(line[j as usize]);
-        }
-        let win = 2 * k + 1;
-        let mut count: usize = ext[..win - 1].iter().map(|&v| v as usize).sum();
-        for x in 0..n as usize {
-            count += ext[x + win - 1] as usize;
-            line[x] = if erode {
-                (count == win) as u8
-            } else {
-                (count > 0) as u8
-            };
-            count -= ext[x] as usize;
+    let win = 2 * k + 1;
+    // `out` (n cells) gets the window of every cell of `ext` (n + 2k cells)
+    let filter = |ext: &[u8], out: &mut [u8]| {
+        let n = out.len();
+        if k <= SMALL_RADIUS {
+            out.copy_from_slice(&ext[..n]);
+            for j in 1..win {
+                let src = &ext[j..j + n];
+                if erode {
+                    out.iter_mut().zip(src).for_each(|(o, &v)| *o &= v);
+                } else {
+                    out.iter_mut().zip(src).for_each(|(o, &v)| *o |= v);
+                }
+            }
+        } else {
+            let mut count: usize = ext[..win - 1].iter().map(|&v| v as usize).sum();
+            for x in 0..n {
+                count += ext[x + win - 1] as usize;
+                out[x] = if erode {
+                    (count == win) as u8
+                } else {
+                    (count > 0) as u8
+                };
+                count -= ext[x] as usize;
+            }
         }
     };
-    let mut out = m.clone();
-    for y in 0..h {
-        line.clear();
-        line.extend_from_slice(&out.cells[y * w..(y + 1) * w]);
-        filter_line(&mut line, wrap.x());
-        out.cells[y * w..(y + 1) * w].copy_from_slice(&line);
-    }
-    // vertical pass, row by row: a running count per column
-    let src = out.clone();
-    let row_of = |i: i64| -> usize {
-        let n = h as i64;
-        (if wrap.y() {
+    let index = |i: i64, n: usize, repeat: bool| -> usize {
+        let n = n as i64;
+        (if repeat {
             i.rem_euclid(n)
         } else {
             i.clamp(0, n - 1)
         }) as usize
     };
-    let win = (2 * k + 1) as u32;
+    // horizontal pass
+    let mut horiz = Mask::new(w, h, false);
+    let mut ext = vec![0u8; w + 2 * k];
+    for y in 0..h {
+        let row = &m.cells[y * w..(y + 1) * w];
+        ext[k..k + w].copy_from_slice(row);
+        for i in 0..k {
+            ext[i] = row[index(i as i64 - k as i64, w, wrap.x())];
+            ext[k + w + i] = row[index((w + i) as i64, w, wrap.x())];
+        }
+        filter(&ext, &mut horiz.cells[y * w..(y + 1) * w]);
+    }
+    // vertical pass: each output row combines the rows of its window, for
+    // a small radius row by row, else with a running count per column
+    // the input is no longer read: its cells take the output
+    let row_of = |i: i64| index(i, h, wrap.y());
+    let mut out = m;
+    if k <= SMALL_RADIUS {
+        for y in 0..h {
+            let o = &mut out.cells[y * w..(y + 1) * w];
+            let first = row_of(y as i64 - k as i64);
+            o.copy_from_slice(&horiz.cells[first * w..(first + 1) * w]);
+            for j in 1..win {
+                let r = row_of(y as i64 - k as i64 + j as i64);
+                let src = &horiz.cells[r * w..(r + 1) * w];
+                if erode {
+                    o.iter_mut().zip(src).for_each(|(o, &v)| *o &= v);
+                } else {
+                    o.iter_mut().zip(src).for_each(|(o, &v)| *o |= v);
+                }
+            }
+        }
+        return out;
+    }
+    let src = &horiz.cells;
     let mut count = vec![0u32; w];
     for i in -(k as i64)..k as i64 {
         let r = row_of(i);
-        for (c, &v) in count.iter_mut().zip(&src.cells[r * w..(r + 1) * w]) {
+        for (c, &v) in count.iter_mut().zip(&src[r * w..(r + 1) * w]) {
             *c += v as u32;
         }
     }
     for y in 0..h {
         let add = row_of(y as i64 + k as i64);
-        for (c, &v) in count.iter_mut().zip(&src.cells[add * w..(add + 1) * w]) {
+        for (c, &v) in count.iter_mut().zip(&src[add * w..(add + 1) * w]) {
             *c += v as u32;
         }
         for (o, &c) in out.cells[y * w..(y + 1) * w].iter_mut().zip(&count) {
             *o = if erode {
-                (c == win) as u8
+                (c == win as u32) as u8
             } else {
                 (c > 0) as u8
             };
         }
         let sub = row_of(y as i64 - k as i64);
-        for (c, &v) in count.iter_mut().zip(&src.cells[sub * w..(sub + 1) * w]) {
+        for (c, &v) in count.iter_mut().zip(&src[sub * w..(sub + 1) * w]) {
             *c -= v as u32;
         }
     }
     out
 }
+
+/// Radius up to which [`window_filter`] combines the window offset by
+/// offset rather than with a running count.
+const SMALL_RADIUS: usize = 8;
 
 #[cfg(test)]
 mod tests {

@@ -6,7 +6,7 @@
 //! of the fast path fails that check, the cut falls back to a plainer mesh
 //! that passes it, and says so in [`CutOutcome::notes`].
 
-use crate::alpha::{AlphaMap, Regions};
+use crate::alpha::{AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
 use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
@@ -18,6 +18,7 @@ use rayon::prelude::*;
 /// A cut layer and what the user should know about it.
 #[derive(Clone, Debug)]
 pub struct CutOutcome {
+    /// The two meshes, checked.
     pub mesh: LayerMesh,
     /// Plain-language remarks ("fully transparent: empty meshes", fallbacks).
     pub notes: Vec<String>,
@@ -25,7 +26,9 @@ pub struct CutOutcome {
 
 /// The fitted outlines of a layer at a budget, before triangulation.
 pub struct Outlines {
+    /// The safe-opaque and must-cover regions.
     pub regions: Regions,
+    /// The outlines fitted to the budget.
     pub fit: Fit,
 }
 
@@ -34,18 +37,20 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     let regions = Regions::analyze(map, settings);
     let mut safe = regions.safe.clone();
     safe.remove_pinches();
-    let mut cover = regions.cover.clone();
-    cover.fill_pinches();
+    let mut cover_mask = regions.cover.clone();
+    cover_mask.fill_pinches();
     let (cover, plain) = rayon::join(
-        || Prepared::new(&cover, false),
+        || Prepared::new(&cover_mask, false),
         || Prepared::new(&safe, true),
     );
     // An island with more holes than the budget can keep may do better as
     // one ring with notches: then also try the safe region with its holes
     // opened. Each region is fitted with both rankings of large edits; the
-    // best result (opaque area minus covering area) wins.
+    // best result (opaque area minus covering area) wins. The masks are
+    // not needed once prepared: the opened one is made in place.
+    drop(cover_mask);
     let opened = plain.has_holes().then(|| {
-        let mut m = safe.clone();
+        let mut m = safe;
         open_holes(&mut m);
         m.remove_pinches();
         Prepared::new(&m, true)
@@ -91,6 +96,8 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 /// ```
 pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
     let Outlines { regions, fit } = fit_layer(map, settings);
+    // only the areas are needed from here on: free the masks before the check
+    let regions = regions.stats;
     let mut notes = Vec::new();
     if fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
@@ -143,7 +150,7 @@ fn to_mesh(
     map: &AlphaMap,
     source: &str,
     settings: &CutSettings,
-    regions: &Regions,
+    regions: &RegionStats,
     fit: &Fit,
     t: &Triangulation,
 ) -> LayerMesh {
@@ -159,7 +166,7 @@ fn to_mesh(
         indices: tris.iter().flatten().copied().collect(),
     };
     let opaque_area = area(&t.positions, &t.opaque);
-    let s = regions.stats;
+    let s = *regions;
     let stats = MeshStats {
         safe_opaque_area: s.safe_opaque_area,
         opaque_area,

@@ -9,12 +9,16 @@
 /// A binary mask, row-major, one byte a cell (0 or 1).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Mask {
+    /// Cells per row (twice the texels).
     pub width: usize,
+    /// Rows of cells (twice the texel rows).
     pub height: usize,
+    /// Cell (x, y) at `y * width + x`: 1 set, 0 unset.
     pub cells: Vec<u8>,
 }
 
 impl Mask {
+    /// A mask with every cell `value`.
     pub fn new(width: usize, height: usize, value: bool) -> Mask {
         Mask {
             width,
@@ -22,6 +26,7 @@ impl Mask {
             cells: vec![value as u8; width * height],
         }
     }
+    /// Whether cell (x, y) is set; (x, y) must lie inside the mask.
     #[inline]
     pub fn get(&self, x: usize, y: usize) -> bool {
         self.cells[y * self.width + x] != 0
@@ -35,16 +40,20 @@ impl Mask {
             && (y as usize) < self.height
             && self.get(x as usize, y as usize)
     }
+    /// Sets cell (x, y), which must lie inside the mask, to `v`.
     #[inline]
     pub fn set(&mut self, x: usize, y: usize, v: bool) {
         self.cells[y * self.width + x] = v as u8;
     }
+    /// Set cells.
     pub fn count(&self) -> usize {
         self.cells.iter().filter(|&&c| c != 0).count()
     }
+    /// Whether no cell is set.
     pub fn is_empty(&self) -> bool {
         self.cells.iter().all(|&c| c == 0)
     }
+    /// Whether every cell is set.
     pub fn is_full(&self) -> bool {
         self.cells.iter().all(|&c| c != 0)
     }
@@ -72,32 +81,45 @@ impl Mask {
         self.fix_pinches(true)
     }
     fn fix_pinches(&mut self, grow: bool) {
-        if self.width < 2 || self.height < 2 {
+        let (w, h) = (self.width, self.height);
+        if w < 2 || h < 2 {
             return;
         }
+        // Row-major passes over 2x2 blocks until none changes, as the
+        // definition reads; a pinch needs a change of value between columns
+        // x and x + 1 of row y, so runs of 8 columns without one are skipped
+        // (an edit only changes columns x and x + 1, so a skip decided
+        // before it is never stale).
+        let chunk = |row: &[u8], x: usize| -> u64 {
+            u64::from_ne_bytes(row[x..x + 8].try_into().expect("8 bytes"))
+        };
         loop {
             let mut changed = false;
-            for y in 0..self.height - 1 {
-                for x in 0..self.width - 1 {
-                    let a = self.get(x, y);
-                    let b = self.get(x + 1, y);
-                    let c = self.get(x, y + 1);
-                    let d = self.get(x + 1, y + 1);
+            for y in 0..h - 1 {
+                let (top, bottom) = self.cells[y * w..(y + 2) * w].split_at_mut(w);
+                let mut x = 0;
+                while x < w - 1 {
+                    if x + 9 <= w && chunk(top, x) == chunk(top, x + 1) {
+                        x += 8;
+                        continue;
+                    }
+                    let (a, b, c, d) = (top[x], top[x + 1], bottom[x], bottom[x + 1]);
                     if a == d && b == c && a != b {
                         // diagonal pair
                         if grow {
-                            if a {
-                                self.set(x + 1, y, true);
+                            if a != 0 {
+                                top[x + 1] = 1;
                             } else {
-                                self.set(x, y, true);
+                                top[x] = 1;
                             }
-                        } else if a {
-                            self.set(x, y, false);
+                        } else if a != 0 {
+                            top[x] = 0;
                         } else {
-                            self.set(x + 1, y, false);
+                            top[x + 1] = 0;
                         }
                         changed = true;
                     }
+                    x += 1;
                 }
             }
             if !changed {
@@ -106,79 +128,160 @@ impl Mask {
         }
     }
 
-    /// Row prefix sums: `p[y * (w + 1) + x]` = set cells in row y before x.
-    pub fn row_prefix(&self) -> RowPrefix {
+    /// The mask's runs of set cells, row by row.
+    pub fn row_runs(&self) -> RowRuns {
         let w = self.width;
-        let mut sums = vec![0u32; (w + 1) * self.height];
+        let mut starts = Vec::with_capacity(self.height + 1);
+        let mut runs = Vec::new();
         for y in 0..self.height {
+            starts.push(runs.len());
             let row = &self.cells[y * w..(y + 1) * w];
-            let out = &mut sums[y * (w + 1)..(y + 1) * (w + 1)];
-            let mut acc = 0u32;
-            out[0] = 0;
-            for x in 0..w {
-                acc += row[x] as u32;
-                out[x + 1] = acc;
+            let mut x = 0;
+            while x < w {
+                if row[x] == 0 {
+                    x += 1;
+                    continue;
+                }
+                let s = x;
+                while x < w && row[x] != 0 {
+                    x += 1;
+                }
+                runs.push([s as u32, x as u32]);
             }
         }
-        RowPrefix {
+        starts.push(runs.len());
+        RowRuns {
             width: w,
             height: self.height,
-            sums,
+            starts,
+            runs,
         }
     }
 }
 
-/// Row prefix sums of a [`Mask`], to count set cells of a row span in O(1).
+/// The runs of set cells of a [`Mask`], row by row (maximal, in order), to
+/// ask about a row span in time logarithmic in the row's runs, with memory
+/// that follows the number of runs rather than of cells.
 #[derive(Clone, Debug)]
-pub struct RowPrefix {
+pub struct RowRuns {
+    /// Cells per row.
     pub width: usize,
+    /// Rows.
     pub height: usize,
-    sums: Vec<u32>,
+    starts: Vec<usize>,
+    runs: Vec<[u32; 2]>,
 }
 
-impl RowPrefix {
-    /// Set cells in row `y`, columns `x0..x1` (clamped to the mask).
+impl RowRuns {
+    /// Row `y`'s runs `[x0, x1)` (half-open), left to right.
     #[inline]
+    pub fn row(&self, y: usize) -> &[[u32; 2]] {
+        &self.runs[self.starts[y]..self.starts[y + 1]]
+    }
+    /// Index in row `y`'s runs of the first run ending after column `x`.
+    #[inline]
+    fn first_after(row: &[[u32; 2]], x: usize) -> usize {
+        row.partition_point(|r| r[1] as usize <= x)
+    }
+    /// Set cells in row `y`, columns `x0..x1` (clamped to the mask).
     pub fn count(&self, y: usize, x0: i64, x1: i64) -> u32 {
         let x0 = x0.clamp(0, self.width as i64) as usize;
         let x1 = x1.clamp(0, self.width as i64) as usize;
         if x1 <= x0 {
             return 0;
         }
-        let r = y * (self.width + 1);
-        self.sums[r + x1] - self.sums[r + x0]
+        let row = self.row(y);
+        row[Self::first_after(row, x0)..]
+            .iter()
+            .take_while(|r| (r[0] as usize) < x1)
+            .map(|r| (r[1] as usize).min(x1) as u32 - (r[0] as usize).max(x0) as u32)
+            .sum()
+    }
+    /// Whether every cell of row `y`, columns `x0..x1`, is set (`x0 < x1`,
+    /// both within the mask): one run must hold the span, as runs are
+    /// maximal.
+    #[inline]
+    pub fn all_set(&self, y: usize, x0: usize, x1: usize) -> bool {
+        let row = self.row(y);
+        let i = Self::first_after(row, x0);
+        i < row.len() && row[i][0] as usize <= x0 && row[i][1] as usize >= x1
+    }
+    /// Whether no cell of row `y`, columns `x0..x1` (clamped), is set.
+    #[inline]
+    pub fn none_set(&self, y: usize, x0: i64, x1: i64) -> bool {
+        let x0 = x0.clamp(0, self.width as i64) as usize;
+        let x1 = x1.clamp(0, self.width as i64) as usize;
+        if x1 <= x0 {
+            return true;
+        }
+        let row = self.row(y);
+        let i = Self::first_after(row, x0);
+        i == row.len() || row[i][0] as usize >= x1
+    }
+}
+
+/// 4-connected component labels of a mask's runs of set cells: the runs
+/// ([`RowRuns`]) and one label a run, 1..=n, numbered in order of the
+/// components' first cells in row-major order. Memory follows the runs.
+#[derive(Clone, Debug)]
+pub struct RunLabels {
+    /// The runs the labels belong to.
+    pub runs: RowRuns,
+    labels: Vec<u32>,
+}
+
+impl RunLabels {
+    /// The label of cell (x, y): 0 when the cell is unset.
+    #[inline]
+    pub fn at(&self, x: usize, y: usize) -> u32 {
+        let row = self.runs.row(y);
+        let i = RowRuns::first_after(row, x);
+        if i < row.len() && row[i][0] as usize <= x {
+            self.labels[self.runs.starts[y] + i]
+        } else {
+            0
+        }
+    }
+    /// Row `y`'s runs `[x0, x1)` with their labels, left to right.
+    pub fn row(&self, y: usize) -> impl Iterator<Item = ([u32; 2], u32)> + '_ {
+        let first = self.runs.starts[y];
+        self.runs
+            .row(y)
+            .iter()
+            .zip(&self.labels[first..])
+            .map(|(&r, &l)| (r, l))
+    }
+    /// The number of components.
+    pub fn count(&self) -> u32 {
+        self.labels.iter().copied().max().unwrap_or(0)
     }
 }
 
 impl Mask {
     /// 4-connected component labels of the set cells, row-major: 0 for an
     /// unset cell, 1..=n for the components, numbered in order of their
-    /// first cell in row-major order. Works on runs of set cells with a
-    /// union-find over runs, so its cost follows the number of runs, not of
-    /// cells, apart from writing the labels.
+    /// first cell in row-major order ([`Mask::run_labels`], expanded).
     pub fn components(&self) -> Vec<u32> {
-        let (w, h) = (self.width, self.height);
-        // runs: (row, x0, x1)
-        let mut runs: Vec<(usize, usize, usize)> = Vec::new();
-        let mut row_start = Vec::with_capacity(h + 1);
-        for y in 0..h {
-            row_start.push(runs.len());
-            let row = &self.cells[y * w..(y + 1) * w];
-            let mut x = 0;
-            while x < w {
-                if row[x] != 0 {
-                    let s = x;
-                    while x < w && row[x] != 0 {
-                        x += 1;
-                    }
-                    runs.push((y, s, x));
-                } else {
-                    x += 1;
-                }
+        let rl = self.run_labels();
+        let w = self.width;
+        let mut labels = vec![0u32; w * self.height];
+        for y in 0..self.height {
+            let first = rl.runs.starts[y];
+            for (i, r) in rl.runs.row(y).iter().enumerate() {
+                labels[y * w + r[0] as usize..y * w + r[1] as usize].fill(rl.labels[first + i]);
             }
         }
-        row_start.push(runs.len());
-        let mut parent: Vec<u32> = (0..runs.len() as u32).collect();
+        labels
+    }
+
+    /// The components of the set cells, labelled run by run: a union-find
+    /// over runs, so its cost and memory follow the number of runs, not of
+    /// cells.
+    pub fn run_labels(&self) -> RunLabels {
+        let h = self.height;
+        let runs = self.row_runs();
+        let n = runs.runs.len();
+        let mut parent: Vec<u32> = (0..n as u32).collect();
         fn find(p: &mut [u32], mut i: u32) -> u32 {
             while p[i as usize] != i {
                 p[i as usize] = p[p[i as usize] as usize];
@@ -187,11 +290,11 @@ impl Mask {
             i
         }
         for y in 1..h {
-            let (mut a, a_end) = (row_start[y - 1], row_start[y]);
-            let (mut b, b_end) = (row_start[y], row_start[y + 1]);
+            let (mut a, a_end) = (runs.starts[y - 1], runs.starts[y]);
+            let (mut b, b_end) = (runs.starts[y], runs.starts[y + 1]);
             while a < a_end && b < b_end {
-                let (_, ax0, ax1) = runs[a];
-                let (_, bx0, bx1) = runs[b];
+                let [ax0, ax1] = runs.runs[a];
+                let [bx0, bx1] = runs.runs[b];
                 if ax0 < bx1 && bx0 < ax1 {
                     let (ra, rb) = (find(&mut parent, a as u32), find(&mut parent, b as u32));
                     if ra != rb {
@@ -206,19 +309,20 @@ impl Mask {
                 }
             }
         }
-        let mut labels = vec![0u32; w * h];
-        let mut name = vec![0u32; runs.len()];
+        // runs are in row-major order, so naming roots in run order numbers
+        // the components by their first cell; a root is its set's first run
+        let mut labels = vec![0u32; n];
         let mut next = 0u32;
-        for i in 0..runs.len() {
+        for i in 0..n {
             let r = find(&mut parent, i as u32) as usize;
-            if name[r] == 0 {
+            if r == i {
                 next += 1;
-                name[r] = next;
+                labels[i] = next;
+            } else {
+                labels[i] = labels[r];
             }
-            let (y, x0, x1) = runs[i];
-            labels[y * w + x0..y * w + x1].fill(name[r]);
         }
-        labels
+        RunLabels { runs, labels }
     }
 }
 
@@ -227,6 +331,39 @@ mod tests {
     use super::*;
     use image::{GrayImage, Luma};
     use imageproc::region_labelling::{connected_components, Connectivity};
+
+    /// Row-run queries agree with counting the cells of the span one by
+    /// one, the definition (no source needed: plain counting).
+    #[test]
+    fn row_runs_answer_like_counting_cells() {
+        let mut seed = 777u64;
+        for case in 0..30 {
+            let (w, h) = (1 + case % 11 * 3, 1 + case % 5);
+            let mut m = Mask::new(w, h, false);
+            for c in m.cells.iter_mut() {
+                seed = seed
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                *c = ((seed >> 33) % 100 < 60) as u8;
+            }
+            let runs = m.row_runs();
+            for y in 0..h {
+                for x0 in -2..w as i64 + 2 {
+                    for x1 in x0..w as i64 + 3 {
+                        let n = (x0.max(0)..x1.min(w as i64))
+                            .filter(|&x| m.get(x as usize, y))
+                            .count() as u32;
+                        assert_eq!(runs.count(y, x0, x1), n, "case {case} row {y} {x0}..{x1}");
+                        assert_eq!(runs.none_set(y, x0, x1), n == 0);
+                        if x0 >= 0 && x1 <= w as i64 && x0 < x1 {
+                            let all = n as i64 == x1 - x0;
+                            assert_eq!(runs.all_set(y, x0 as usize, x1 as usize), all);
+                        }
+                    }
+                }
+            }
+        }
+    }
 
     /// The run-based labelling partitions cells exactly as imageproc's
     /// connected_components (general-purpose reference library) does.

@@ -8,7 +8,7 @@
 //! mask has no pinches ([`Mask::remove_pinches`] / [`Mask::fill_pinches`]);
 //! `component` is shared by an island's outer ring and its holes.
 
-use crate::mask::Mask;
+use crate::mask::{Mask, RunLabels};
 
 /// A lattice point in half-texel units.
 pub type Point = [i64; 2];
@@ -16,7 +16,9 @@ pub type Point = [i64; 2];
 /// A closed ring; the last point connects back to the first.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Ring {
+    /// Corner points in order (half-texel units).
     pub points: Vec<Point>,
+    /// Whether the ring bounds a hole (negative shoelace area).
     pub hole: bool,
     /// Connected component (4-connected) of the region this ring bounds.
     pub component: u32,
@@ -46,6 +48,18 @@ pub fn trace(mask: &Mask) -> Vec<Ring> {
 
 /// [`trace`] with the mask's component labels ([`label`]) already made.
 pub fn trace_labelled(mask: &Mask, labels: &[u32]) -> Vec<Ring> {
+    let w = mask.width;
+    trace_by(mask, |x, y| labels[y * w + x])
+}
+
+/// [`trace`] with the mask's components labelled run by run
+/// ([`Mask::run_labels`]), which take memory by the run, not by the cell.
+pub fn trace_runs(mask: &Mask, labels: &RunLabels) -> Vec<Ring> {
+    trace_by(mask, |x, y| labels.at(x, y))
+}
+
+/// [`trace`], the component of cell (x, y) read from `label_at`.
+fn trace_by(mask: &Mask, label_at: impl Fn(usize, usize) -> u32) -> Vec<Ring> {
     let (w, h) = (mask.width, mask.height);
     if w == 0 || h == 0 || mask.is_empty() {
         return Vec::new();
@@ -101,7 +115,7 @@ pub fn trace_labelled(mask: &Mask, labels: &[u32]) -> Vec<Ring> {
             LEFT => (sx - 1, sy - 1),
             _ => (sx, sy - 1),
         };
-        let component = labels[cell.1 as usize * w + cell.0 as usize];
+        let component = label_at(cell.0 as usize, cell.1 as usize);
         loop {
             let dir = out[idx];
             if dir == 0 {

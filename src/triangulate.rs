@@ -21,11 +21,15 @@ use std::collections::HashMap;
 /// Two triangle lists over one vertex array (lattice points, half texels).
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Triangulation {
+    /// The shared vertex array.
     pub positions: Vec<Point>,
+    /// Triangles of the opaque mesh.
     pub opaque: Vec<[u32; 3]>,
+    /// Triangles of the blended mesh.
     pub blended: Vec<[u32; 3]>,
-    /// Interior edge length (texels) after plain ear clipping, and after flips.
+    /// Interior edge length (texels) after plain ear clipping.
     pub interior_length_earcut: f64,
+    /// Interior edge length (texels) after the edge flips.
     pub interior_length: f64,
 }
 

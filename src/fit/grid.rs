@@ -4,8 +4,10 @@
 
 use crate::outline::Point;
 
+/// Side of a bucket, half-texel units.
 pub const CELL: i64 = 32;
 
+/// Vertex ids and edges (pairs of vertex ids) filed by bucket.
 pub struct BucketGrid {
     cols: i64,
     rows: i64,
@@ -14,6 +16,7 @@ pub struct BucketGrid {
 }
 
 impl BucketGrid {
+    /// An empty grid over a lattice of `width` x `height` half units.
     pub fn new(width: i64, height: i64) -> BucketGrid {
         let cols = width / CELL + 1;
         let rows = height / CELL + 1;
@@ -39,23 +42,69 @@ impl BucketGrid {
             (hi[1] / CELL).clamp(0, self.rows - 1),
         )
     }
+    /// Files vertex `id` at `p`.
     pub fn add_vertex(&mut self, id: u32, p: Point) {
         let c = self.cell(p[0], p[1]);
         self.verts[c].push(id);
     }
+    /// Takes vertex `id`, filed at `p`, out.
     pub fn remove_vertex(&mut self, id: u32, p: Point) {
         let c = self.cell(p[0], p[1]);
         if let Some(i) = self.verts[c].iter().position(|&v| v == id) {
             self.verts[c].swap_remove(i);
         }
     }
+    /// Calls `f` on every bucket that a point of the closed segment pa-pb
+    /// falls in (and perhaps a neighbour more): one bucket column at a time,
+    /// the rows the segment spans over that column, so the cost follows the
+    /// segment's length, not its bounding box's area.
+    fn segment_buckets(&self, pa: Point, pb: Point, mut f: impl FnMut(usize)) {
+        let (p, q) = if pa[0] <= pb[0] { (pa, pb) } else { (pb, pa) };
+        let (cx0, cx1) = (
+            (p[0] / CELL).clamp(0, self.cols - 1),
+            (q[0] / CELL).clamp(0, self.cols - 1),
+        );
+        let (dx, dy) = (q[0] - p[0], q[1] - p[1]);
+        for cx in cx0..=cx1 {
+            // the segment's y extent over x in [xa, xb] (closed), widened to
+            // whole lattice units: floor of the lower end, ceiling of the upper
+            let (ya, yb) = if dx == 0 {
+                (p[1].min(q[1]), p[1].max(q[1]))
+            } else {
+                let xa = (cx * CELL).max(p[0]);
+                let xb = ((cx + 1) * CELL).min(q[0]);
+                let y_at = |x: i64| {
+                    let num = p[1] * dx + (x - p[0]) * dy;
+                    (num.div_euclid(dx), -(-num).div_euclid(dx))
+                };
+                let (fa, ca) = y_at(xa);
+                let (fb, cb) = y_at(xb);
+                (fa.min(fb), ca.max(cb))
+            };
+            let cy0 = (ya.div_euclid(CELL)).clamp(0, self.rows - 1);
+            let cy1 = (yb.div_euclid(CELL)).clamp(0, self.rows - 1);
+            for cy in cy0..=cy1 {
+                f((cy * self.cols + cx) as usize);
+            }
+        }
+    }
+    /// Files edge (a, b) under the buckets its segment passes through.
     pub fn add_edge(&mut self, a: u32, b: u32, pa: Point, pb: Point) {
-        let lo = [pa[0].min(pb[0]), pa[1].min(pb[1])];
-        let hi = [pa[0].max(pb[0]), pa[1].max(pb[1])];
-        let (x0, x1, y0, y1) = self.range(lo, hi);
-        for cy in y0..=y1 {
-            for cx in x0..=x1 {
-                self.edges[(cy * self.cols + cx) as usize].push((a, b));
+        let mut cells = Vec::new();
+        self.segment_buckets(pa, pb, |c| cells.push(c));
+        for c in cells {
+            self.edges[c].push((a, b));
+        }
+    }
+    /// Takes edge (a, b), filed with [`BucketGrid::add_edge`] at the same
+    /// points, out of its buckets.
+    pub fn remove_edge(&mut self, a: u32, b: u32, pa: Point, pb: Point) {
+        let mut cells = Vec::new();
+        self.segment_buckets(pa, pb, |c| cells.push(c));
+        for c in cells {
+            let bucket = &mut self.edges[c];
+            if let Some(i) = bucket.iter().position(|&e| e == (a, b)) {
+                bucket.swap_remove(i);
             }
         }
     }
@@ -73,7 +122,8 @@ impl BucketGrid {
         }
         true
     }
-    /// Calls `f` on every (possibly stale) edge in buckets overlapping the box.
+    /// Calls `f` on every (possibly stale) edge in buckets overlapping the
+    /// box; an edge that meets the box is met at least once.
     pub fn edges_in(&self, lo: Point, hi: Point, mut f: impl FnMut(u32, u32) -> bool) -> bool {
         let (x0, x1, y0, y1) = self.range(lo, hi);
         for cy in y0..=y1 {
@@ -83,6 +133,77 @@ impl BucketGrid {
                         return false;
                     }
                 }
+            }
+        }
+        true
+    }
+    /// Calls `f` on every vertex id in buckets that a point of the closed
+    /// polygon `poly` (any simple polygon, or a segment) falls in; stops
+    /// when `f` is false. Per bucket row, only the columns the polygon spans
+    /// over that row's band are visited (the extremes of a polygon over a
+    /// band lie on its boundary), so a long thin triangle costs its length,
+    /// not its bounding box's area.
+    pub fn vertices_in_polygon(&self, poly: &[Point], mut f: impl FnMut(u32) -> bool) -> bool {
+        let ymin = poly.iter().map(|p| p[1]).min().expect("a polygon");
+        let ymax = poly.iter().map(|p| p[1]).max().expect("a polygon");
+        let (cy0, cy1) = (
+            (ymin / CELL).clamp(0, self.rows - 1),
+            (ymax / CELL).clamp(0, self.rows - 1),
+        );
+        let n = poly.len();
+        for cy in cy0..=cy1 {
+            let (y0, y1) = ((cy * CELL).max(ymin), ((cy + 1) * CELL).min(ymax));
+            let (mut xlo, mut xhi) = (i64::MAX, i64::MIN);
+            for i in 0..n {
+                let (a, b) = (poly[i], poly[(i + 1) % n]);
+                let (p, q) = if a[1] <= b[1] { (a, b) } else { (b, a) };
+                if q[1] < y0 || p[1] > y1 {
+                    continue;
+                }
+                if p[1] == q[1] {
+                    xlo = xlo.min(p[0].min(q[0]));
+                    xhi = xhi.max(p[0].max(q[0]));
+                    continue;
+                }
+                let dy = q[1] - p[1];
+                for y in [y0.max(p[1]), y1.min(q[1])] {
+                    let num = p[0] * dy + (y - p[1]) * (q[0] - p[0]);
+                    xlo = xlo.min(num.div_euclid(dy));
+                    xhi = xhi.max(-(-num).div_euclid(dy));
+                }
+            }
+            if xlo > xhi {
+                continue;
+            }
+            let cx0 = xlo.div_euclid(CELL).clamp(0, self.cols - 1);
+            let cx1 = xhi.div_euclid(CELL).clamp(0, self.cols - 1);
+            for cx in cx0..=cx1 {
+                for &v in &self.verts[(cy * self.cols + cx) as usize] {
+                    if !f(v) {
+                        return false;
+                    }
+                }
+            }
+        }
+        true
+    }
+    /// Calls `f` on every (possibly stale) edge filed in a bucket that one
+    /// of the closed `segments` passes through, so every edge that touches
+    /// one of them (perhaps more than once); stops when `f` is false.
+    pub fn edges_along(
+        &self,
+        segments: &[(Point, Point)],
+        mut f: impl FnMut(u32, u32) -> bool,
+    ) -> bool {
+        let mut ok = true;
+        for &(p, q) in segments {
+            self.segment_buckets(p, q, |c| {
+                if ok {
+                    ok = self.edges[c].iter().all(|&(a, b)| f(a, b));
+                }
+            });
+            if !ok {
+                return false;
             }
         }
         true

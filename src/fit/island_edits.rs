@@ -329,6 +329,12 @@ impl Fitter<'_> {
     pub(super) fn kill_ring(&mut self, r: u32) {
         let mut ids = Vec::new();
         self.ring_vertices_into(r, &mut ids);
+        let class = self.rings[r as usize].class as usize;
+        for &v in &ids {
+            let b = self.verts[v as usize].next;
+            let (pa, pb) = (self.verts[v as usize].p, self.verts[b as usize].p);
+            self.grids[class].remove_edge(v, b, pa, pb);
+        }
         for v in ids {
             self.kill(v);
         }

@@ -37,7 +37,7 @@ pub use holes::open_holes;
 
 pub use geom::orient;
 
-use crate::mask::{Mask, RowPrefix};
+use crate::mask::{Mask, RowRuns};
 use crate::outline::{Point, Ring};
 use grid::BucketGrid;
 use queue::{Cand, Eval};
@@ -46,7 +46,9 @@ use std::collections::{BinaryHeap, HashMap};
 /// Which region a ring bounds.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Class {
+    /// The safe-opaque region: the opaque mesh.
     Opaque = 0,
+    /// The must-cover region: both meshes together.
     Cover = 1,
 }
 
@@ -54,20 +56,25 @@ pub enum Class {
 /// the region on their right (outer rings clockwise on screen, y down).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct FitPolygon {
+    /// The outer ring.
     pub outer: Vec<Point>,
+    /// Its holes.
     pub holes: Vec<Vec<Point>>,
 }
 
 /// The fitted outlines of a layer.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct Fit {
+    /// Islands of the opaque mesh.
     pub opaque: Vec<FitPolygon>,
+    /// Islands of the covering outline (opaque + blended).
     pub cover: Vec<FitPolygon>,
     /// Distinct vertex positions over both classes.
     pub vertices: usize,
 }
 
 impl Fit {
+    /// Ring vertices of one class, counted per ring.
     pub fn outline_vertices(&self, class: Class) -> usize {
         let polys = if class == Class::Opaque {
             &self.opaque
@@ -110,12 +117,13 @@ struct Comp {
     alive: bool,
 }
 
-/// A region made ready for fitting: its exact rings, the row prefix sums
+/// A region made ready for fitting: its exact rings, the row runs
 /// the fitter's containment tests read, and each island's largest
 /// rectangle. Made once per region and shared by every fit of it.
 pub struct Prepared {
+    /// The exact rings of the region.
     pub rings: Vec<Ring>,
-    prefix: RowPrefix,
+    runs: RowRuns,
     rects: HashMap<u32, [i64; 4]>,
     size: Point,
 }
@@ -124,16 +132,16 @@ impl Prepared {
     /// Traces `mask` (which must have no pinches); `with_rects` also finds
     /// the islands' largest rectangles (wanted for the safe region).
     pub fn new(mask: &Mask, with_rects: bool) -> Prepared {
-        let labels = crate::outline::label(mask);
+        let labels = mask.run_labels();
         Prepared {
-            rings: crate::outline::trace_labelled(mask, &labels),
-            prefix: mask.row_prefix(),
+            rings: crate::outline::trace_runs(mask, &labels),
             rects: if with_rects {
-                rects::largest_rectangles(mask, &labels)
+                rects::largest_rectangles(mask, |x, y| labels.at(x, y))
             } else {
                 HashMap::new()
             },
             size: [mask.width as i64, mask.height as i64],
+            runs: labels.runs,
         }
     }
     /// Whether the region has a hole.
@@ -150,8 +158,8 @@ pub struct Fitter<'a> {
     grids: [BucketGrid; 2],
     refs: HashMap<Point, u32>,
     distinct: usize,
-    safe: &'a RowPrefix,
-    cover: &'a RowPrefix,
+    safe: &'a RowRuns,
+    cover: &'a RowRuns,
     size: Point,
     heap: BinaryHeap<Cand>,
     budget: usize,
@@ -173,8 +181,8 @@ impl<'a> Fitter<'a> {
             ],
             refs: HashMap::new(),
             distinct: 0,
-            safe: &opaque.prefix,
-            cover: &cover.prefix,
+            safe: &opaque.runs,
+            cover: &cover.runs,
             size,
             heap: BinaryHeap::new(),
             budget: usize::MAX,

@@ -8,7 +8,10 @@ use std::collections::HashMap;
 /// Per component label (as `imageproc`'s 4-connected labelling numbers
 /// them), the largest rectangle `[x0, y0, x1, y1]` (half units, exclusive
 /// upper corner) of set cells.
-pub fn largest_rectangles(mask: &Mask, labels: &[u32]) -> HashMap<u32, [i64; 4]> {
+pub fn largest_rectangles(
+    mask: &Mask,
+    label_at: impl Fn(usize, usize) -> u32,
+) -> HashMap<u32, [i64; 4]> {
     let (w, h) = (mask.width, mask.height);
     let mut best: HashMap<u32, (i64, [i64; 4])> = HashMap::new();
     let mut heights = vec![0usize; w];
@@ -28,7 +31,7 @@ pub fn largest_rectangles(mask: &Mask, labels: &[u32]) -> HashMap<u32, [i64; 4]>
                 stack.pop();
                 // rectangle columns s..x, rows y+1-hs..=y
                 let area = (hs * (x - s)) as i64;
-                let label = labels[y * w + s];
+                let label = label_at(s, y);
                 let rect = [s as i64, (y + 1 - hs) as i64, x as i64, (y + 1) as i64];
                 let e = best.entry(label).or_insert((0, rect));
                 if area > e.0 {
@@ -58,7 +61,7 @@ mod tests {
             }
         }
         let labels = vec![1u32; 36];
-        let r = largest_rectangles(&m, &labels)[&1];
+        let r = largest_rectangles(&m, |x, y| labels[y * 6 + x])[&1];
         let area = (r[2] - r[0]) * (r[3] - r[1]);
         // brute force over all rectangles as the reference
         let mut brute = 0;

@@ -30,14 +30,16 @@ impl Fitter<'_> {
         ];
         let grid = &self.grids[class as usize];
         let verts = &self.verts;
-        let ok = grid.vertices_in(lo, hi, |id| {
+        let ok = grid.vertices_in_polygon(poly, |id| {
             let v = &verts[id as usize];
-            !v.alive || skip.contains(&id) || !in_closed_polygon(v.p, poly)
+            let outside_box = v.p[0] < lo[0] || v.p[0] > hi[0] || v.p[1] < lo[1] || v.p[1] > hi[1];
+            outside_box || !v.alive || skip.contains(&id) || !in_closed_polygon(v.p, poly)
         });
         if !ok {
             return false;
         }
-        grid.edges_in(lo, hi, |a, b| {
+        // an edge that touches a new edge is filed along that new edge
+        grid.edges_along(new_edges, |a, b| {
             let va = &verts[a as usize];
             let vb = &verts[b as usize];
             if !va.alive || !vb.alive || va.next != b {
@@ -88,10 +90,10 @@ impl Fitter<'_> {
                     && y < self.size[1]
                     && x0 >= 0
                     && x1 <= self.size[0]
-                    && self.safe.count(y as usize, x0, x1) as i64 == x1 - x0
+                    && (x1 <= x0 || self.safe.all_set(y as usize, x0 as usize, x1 as usize))
             }),
             (Class::Cover, -1) => convex_row_spans(tri, |y, x0, x1| {
-                y < 0 || y >= self.size[1] || self.cover.count(y as usize, x0, x1) == 0
+                y < 0 || y >= self.size[1] || self.cover.none_set(y as usize, x0, x1)
             }),
             _ => true,
         }
@@ -285,10 +287,13 @@ impl Fitter<'_> {
         };
         let (pu, pw) = (self.verts[u as usize].p, self.verts[w as usize].p);
         let delta = -orient(pu, p, pw);
+        let class = self.rings[r as usize].class;
+        let grid = &mut self.grids[class as usize];
+        grid.remove_edge(u, v, pu, p);
+        grid.remove_edge(v, w, p, pw);
         self.kill(v);
         self.verts[u as usize].next = w;
         self.verts[w as usize].prev = u;
-        let class = self.rings[r as usize].class;
         self.grids[class as usize].add_edge(u, w, pu, pw);
         self.change_ring(r, u, -1, delta);
         self.requeue_around(u);
@@ -307,6 +312,10 @@ impl Fitter<'_> {
             self.verts[x as usize].p,
         );
         let delta = geom::twice_area(&[pu, p, px]) - geom::twice_area(&[pu, pv, pw, px]);
+        let grid = &mut self.grids[self.rings[r as usize].class as usize];
+        grid.remove_edge(u, v, pu, pv);
+        grid.remove_edge(v, w, pv, pw);
+        grid.remove_edge(w, x, pw, px);
         self.kill(v);
         self.kill(w);
         let n = self.verts.len() as u32;
