@@ -1,0 +1,5 @@
+//! Fuzz target `scene_json`: the property is [`underdraw_fuzz::scene_json`], shared with
+//! `tests/fuzz_regressions.rs` so every committed input is also a test.
+#![no_main]
+
+libfuzzer_sys::fuzz_target!(|data: &[u8]| underdraw_fuzz::scene_json(data));
