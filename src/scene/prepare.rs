@@ -10,7 +10,7 @@ use super::file::{LayerSpec, MeshSource, Scene};
 use crate::alpha::AlphaMap;
 use crate::cut::cut_layer;
 use crate::error::FileError;
-use crate::io::{load_alpha, load_mesh};
+use crate::io::{load_layer, load_mesh, ImageLimits};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use rayon::prelude::*;
@@ -21,7 +21,9 @@ use std::sync::Arc;
 /// A layer of a scene with its mesh.
 #[derive(Clone, Debug)]
 pub struct Layer {
+    /// The layer as the scene file gives it: image, mesh source, placement.
     pub spec: LayerSpec,
+    /// The layer's mesh: cut on the fly, or read from its mesh file.
     pub mesh: LayerMesh,
     /// The alpha map of a layer cut on the fly (to cut it again at other
     /// budgets); `None` for a layer read from a mesh file.
@@ -48,8 +50,19 @@ pub fn source_name(image: &Path) -> String {
         .unwrap_or_default()
 }
 
-/// Decodes the images of the layers cut on the fly, each once, in parallel.
+/// Decodes the images of the layers cut on the fly, each once, in parallel,
+/// with the default [`ImageLimits`].
 pub fn decode_images(scene: &Scene) -> Result<HashMap<PathBuf, Arc<AlphaMap>>, FileError> {
+    decode_images_with(scene, &ImageLimits::default())
+        .map(|m| m.into_iter().map(|(p, (a, _))| (p, a)).collect())
+}
+
+/// Decodes the images of the layers cut on the fly, each once, in parallel,
+/// within `limits`; each with the warnings about its file.
+pub fn decode_images_with(
+    scene: &Scene,
+    limits: &ImageLimits,
+) -> Result<HashMap<PathBuf, (Arc<AlphaMap>, Vec<String>)>, FileError> {
     let mut paths: Vec<&PathBuf> = scene
         .layers
         .iter()
@@ -58,9 +71,9 @@ pub fn decode_images(scene: &Scene) -> Result<HashMap<PathBuf, Arc<AlphaMap>>, F
         .collect();
     paths.sort();
     paths.dedup();
-    let maps: Vec<Result<(PathBuf, Arc<AlphaMap>), FileError>> = paths
+    let maps: Vec<Result<_, FileError>> = paths
         .par_iter()
-        .map(|p| load_alpha(p).map(|m| ((*p).clone(), Arc::new(m))))
+        .map(|p| load_layer(p, limits).map(|l| ((*p).clone(), (Arc::new(l.alpha), l.warnings))))
         .collect();
     maps.into_iter().collect()
 }
@@ -83,8 +96,19 @@ pub fn cut_all(
 
 /// Loads every layer's mesh: cuts the layers with cut settings (in
 /// parallel), reads the mesh files and checks them against their images.
+/// Images are read with the default [`ImageLimits`].
 pub fn prepare_layers(scene: &Scene) -> Result<Vec<Layer>, FileError> {
-    let maps = decode_images(scene)?;
+    prepare_layers_with(scene, &ImageLimits::default())
+}
+
+/// [`prepare_layers`] with images read within `limits`; a warning about an
+/// image file (an animated PNG, say) becomes a note of each layer using it.
+pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<Layer>, FileError> {
+    let decoded = decode_images_with(scene, limits)?;
+    let maps: HashMap<PathBuf, Arc<AlphaMap>> = decoded
+        .iter()
+        .map(|(p, (a, _))| (p.clone(), a.clone()))
+        .collect();
     let jobs: Vec<(PathBuf, CutSettings)> = scene
         .layers
         .iter()
@@ -99,7 +123,8 @@ pub fn prepare_layers(scene: &Scene) -> Result<Vec<Layer>, FileError> {
         .iter()
         .map(|spec| match &spec.mesh {
             MeshSource::Cut(s) => {
-                let (mesh, notes) = cuts[&(spec.image.clone(), *s)].clone();
+                let (mesh, mut notes) = cuts[&(spec.image.clone(), *s)].clone();
+                notes.splice(0..0, decoded[&spec.image].1.iter().cloned());
                 Ok(Layer {
                     spec: spec.clone(),
                     mesh,

@@ -5,7 +5,7 @@
 use super::budget::allocate_scene;
 use super::draws::{frame_draws, Strategy};
 use super::file::{load_scene, Scene};
-use super::prepare::prepare_layers;
+use super::prepare::prepare_layers_with;
 use super::report::{HeatmapInfo, SceneReport};
 use super::score::{render_frame, score_frames_with, summarize};
 use crate::error::FileError;
@@ -24,7 +24,10 @@ pub const HEATMAP_TOP_MAX: u32 = 15;
 /// What `underdraw scene` was asked to do.
 #[derive(Clone, Debug)]
 pub struct SceneOptions {
+    /// The scene file (`<name>.scene.json`).
     pub scene: PathBuf,
+    /// The output folder: `scene-report.json`, the heatmaps, the dumped frame
+    /// and the allocated meshes go there.
     pub out: PathBuf,
     /// Camera sample whose draws and counts to write.
     pub dump_frame: Option<usize>,
@@ -34,6 +37,8 @@ pub struct SceneOptions {
     pub report: Option<PathBuf>,
     /// Folder for every layer's meshes (JSON and glTF) and the draw list.
     pub export: Option<PathBuf>,
+    /// The largest image accepted.
+    pub limits: crate::io::ImageLimits,
     /// Told how far the long steps are (the command line draws a bar).
     pub progress: Option<Arc<dyn Progress>>,
 }
@@ -41,7 +46,10 @@ pub struct SceneOptions {
 /// Someone told how far `run_scene`'s long steps are: `start` as a step of
 /// `total` units begins, `step` as each unit ends (from any thread).
 pub trait Progress: Send + Sync {
+    /// A long step named `what` (such as `"camera samples"`) begins; it has
+    /// `total` units.
     fn start(&self, what: &str, total: usize);
+    /// One unit of the current step is done; may be called from any thread.
     fn step(&self);
 }
 
@@ -51,18 +59,23 @@ impl std::fmt::Debug for dyn Progress {
     }
 }
 
-/// A dumped frame: `frame-K.json`.
+/// A dumped frame: `frame-K.json`, written for `--dump-frame K` beside the
+/// per-pixel counts `counts-K-<strategy>.png`.
 #[derive(Clone, Debug, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct FrameDump {
+    /// The viewport's size in pixels, [width, height].
     pub viewport: [u32; 2],
+    /// The frame's draws under each strategy, by its name (`rect`, `outline`,
+    /// `split`).
     pub strategies: BTreeMap<String, DumpedDraws>,
 }
 
+/// One strategy's draws of the dumped frame.
 #[derive(Clone, Debug, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct DumpedDraws {
-    /// In submission order.
+    /// The draws, in submission order.
     pub draws: Vec<Draw>,
 }
 
@@ -107,7 +120,12 @@ fn draws_at(scene: &Scene, strategy: Strategy, meshes: &[&LayerMesh], k: usize) 
     )
 }
 
-/// Runs the whole `scene` command.
+/// Runs the whole `scene` command: loads the scene, cuts (or reads) every
+/// layer's mesh, renders every strategy at every camera sample, and writes
+/// into `opts.out` the heatmaps, the dumped frame, the allocated meshes and
+/// `scene-report.json` (and the web page and export folders when asked).
+/// Returns the report; fails naming the file when a file cannot be read or
+/// written, or when an output would overwrite one of the scene's inputs.
 pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     let scene = load_scene(&opts.scene)?;
     if let Some(k) = opts.dump_frame {
@@ -135,7 +153,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         inputs: scene.inputs(),
         written: Vec::new(),
     };
-    let layers = prepare_layers(&scene)?;
+    let layers = prepare_layers_with(&scene, &opts.limits)?;
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
     let cams = scene.camera_positions();

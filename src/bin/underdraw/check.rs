@@ -4,9 +4,14 @@ use crate::{error, Print};
 use std::path::Path;
 use std::process::ExitCode;
 use underdraw::check::check_mesh;
-use underdraw::io::{load_alpha, load_mesh};
+use underdraw::io::{load_layer, load_mesh, ImageLimits};
 
-pub(crate) fn check(mesh_path: &Path, image_path: &Path, print: Print) -> ExitCode {
+pub(crate) fn check(
+    mesh_path: &Path,
+    image_path: &Path,
+    print: Print,
+    limits: ImageLimits,
+) -> ExitCode {
     let mesh = match load_mesh(mesh_path) {
         Ok(m) => m,
         Err(e) => {
@@ -14,8 +19,8 @@ pub(crate) fn check(mesh_path: &Path, image_path: &Path, print: Print) -> ExitCo
             return ExitCode::from(2);
         }
     };
-    let map = match load_alpha(image_path) {
-        Ok(m) => m,
+    let map = match load_layer(image_path, &limits) {
+        Ok(m) => m.alpha,
         Err(e) => {
             error(&e);
             return ExitCode::from(2);

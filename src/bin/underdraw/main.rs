@@ -8,7 +8,7 @@ mod cut;
 mod scene;
 mod sweep;
 
-use clap::{Args, Parser, Subcommand, ValueEnum};
+use clap::{Args, CommandFactory, FromArgMatches, Parser, Subcommand, ValueEnum};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -18,7 +18,7 @@ use cut::CutArgs;
 use scene::SceneArgs;
 use sweep::SweepArgs;
 
-const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract violation; 2 bad usage or bad input (a batch finishes the good layers first and lists the failures).";
+const EXIT_HELP: &str = "Exit status: 0 success; 1 `check` found a contract violation; 2 bad usage or bad input (a batch finishes the good layers first and lists the failures), or an internal error, reported as one.";
 
 /// Cut 2D sprite layers into an opaque mesh (drawn with blending off, so the
 /// GPU can cull what lies behind it) and a blended mesh for the remaining
@@ -40,6 +40,11 @@ struct Cli {
     /// holds; `sweep`, the points and the knee.
     #[arg(long, global = true, conflicts_with = "quiet")]
     json: bool,
+    /// Largest layer accepted, in texels (width x height), checked from the
+    /// PNG header before decoding. Each side is also limited to 16384
+    /// texels, the largest texture GPUs commonly accept: tile wider layers.
+    #[arg(long, global = true, value_name = "N", default_value_t = underdraw::io::MAX_PIXELS)]
+    max_pixels: u64,
 }
 
 /// How much to print.
@@ -172,17 +177,66 @@ impl CutOptions {
     }
 }
 
+/// The last panic's message and place, recorded by the hook [`main`]
+/// installs (the default hook's backtrace text is not for artists).
+static LAST_PANIC: std::sync::Mutex<Option<String>> = std::sync::Mutex::new(None);
+
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    std::panic::set_hook(Box::new(|info| {
+        let payload = info.payload();
+        let msg = payload
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| payload.downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "unknown panic".into());
+        let place = info
+            .location()
+            .map(|l| format!(" (at {}:{})", l.file(), l.line()))
+            .unwrap_or_default();
+        if let Ok(mut last) = LAST_PANIC.lock() {
+            *last = Some(format!("{msg}{place}"));
+        }
+    }));
+    // A panic inside one layer of a `cut` batch is that layer's failure
+    // (see underdraw::batch); anywhere else it ends the command here, as an
+    // internal error with exit status 2, never as a Rust backtrace.
+    match std::panic::catch_unwind(run) {
+        Ok(code) => code,
+        Err(_) => {
+            let what = LAST_PANIC
+                .lock()
+                .ok()
+                .and_then(|mut l| l.take())
+                .unwrap_or_else(|| "unknown panic".into());
+            error(format!(
+                "internal error: {what}\n  hint: this is a bug in underdraw, not in your files; please report it with the command line and the input files"
+            ));
+            ExitCode::from(2)
+        }
+    }
+}
+
+fn run() -> ExitCode {
+    let matches = Cli::command().get_matches();
+    let cli = Cli::from_arg_matches(&matches).unwrap_or_else(|e| e.exit());
+    let limits = underdraw::io::ImageLimits {
+        max_pixels: cli.max_pixels,
+        ..Default::default()
+    };
     let print = Print {
         quiet: cli.quiet,
         json: cli.json,
     };
     match cli.command {
-        Command::Cut(args) => cut::cut(&args, print),
-        Command::Check { mesh, image } => check::check(&mesh, &image, print),
-        Command::Scene(args) => scene::scene(&args, print),
-        Command::Sweep(args) => sweep::sweep(&args, print),
+        Command::Cut(args) => {
+            let sub = matches
+                .subcommand_matches("cut")
+                .expect("the cut subcommand");
+            cut::cut(&args, sub, print, limits)
+        }
+        Command::Check { mesh, image } => check::check(&mesh, &image, print, limits),
+        Command::Scene(args) => scene::scene(&args, print, limits),
+        Command::Sweep(args) => sweep::sweep(&args, print, limits),
     }
 }
 

@@ -69,7 +69,11 @@ impl SceneBar {
     }
 }
 
-pub(crate) fn scene(args: &SceneArgs, print: Print) -> ExitCode {
+pub(crate) fn scene(
+    args: &SceneArgs,
+    print: Print,
+    limits: underdraw::io::ImageLimits,
+) -> ExitCode {
     let out = args.out.clone().unwrap_or_else(|| {
         let stem = args
             .scene
@@ -86,6 +90,7 @@ pub(crate) fn scene(args: &SceneArgs, print: Print) -> ExitCode {
         vertex_total: args.vertex_total,
         report: args.report.clone(),
         export: args.export.clone(),
+        limits,
         progress: None,
     };
     let progress = Arc::new(SceneBar {

@@ -5,7 +5,7 @@ use clap::Args;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use underdraw::error::FileError;
-use underdraw::io::{load_alpha, write_atomic};
+use underdraw::io::{load_layer, write_atomic, ImageLimits};
 use underdraw::sweep::{knee, sweep_layer, to_csv, to_table, BUDGETS};
 
 #[derive(Args)]
@@ -23,7 +23,7 @@ pub(crate) struct SweepArgs {
     knee: f64,
 }
 
-pub(crate) fn sweep(args: &SweepArgs, print: Print) -> ExitCode {
+pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> ExitCode {
     let fail = |e: FileError| {
         error(&e);
         ExitCode::from(2)
@@ -40,8 +40,15 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print) -> ExitCode {
         error(&e);
         return ExitCode::from(2);
     }
-    let map = match load_alpha(&args.image) {
-        Ok(m) => m,
+    let map = match load_layer(&args.image, &limits) {
+        Ok(m) => {
+            if print.text() {
+                for w in &m.warnings {
+                    println!("note: {w}");
+                }
+            }
+            m.alpha
+        }
         Err(e) => return fail(e),
     };
     let out = args
