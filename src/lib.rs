@@ -21,6 +21,9 @@
 //! For the artist: [`preview`] draws a cut over its layer, [`plot`] draws a
 //! layer's budget sweep as SVG.
 //!
+//! For many layers: [`batch`] cuts files and folders into one output folder,
+//! with a settings file, a manifest and reruns that skip unchanged layers.
+//!
 //! ```
 //! use underdraw::{alpha::AlphaMap, check::check_mesh, cut::cut_layer, settings::CutSettings};
 //! // an 8x8 layer: an opaque 6x6 square with a soft one-texel rim
@@ -35,7 +38,10 @@
 //! assert!(out.mesh.vertex_count() <= 8);
 //! assert!(check_mesh(&out.mesh, &map).unwrap().holds());
 //! ```
+#![warn(missing_docs)]
+
 pub mod alpha;
+pub mod batch;
 pub mod check;
 pub mod cut;
 pub mod error;

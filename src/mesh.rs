@@ -16,10 +16,13 @@ pub const VERSION: u32 = 1;
 /// A triangle list into the shared vertex array.
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct TriangleList {
+    /// Vertex indices into [`LayerMesh::positions`] (and `uvs`), three per
+    /// triangle; the count is a multiple of 3.
     pub indices: Vec<u32>,
 }
 
 impl TriangleList {
+    /// Number of triangles: `indices.len() / 3`.
     pub fn triangle_count(&self) -> usize {
         self.indices.len() / 3
     }
@@ -36,22 +39,36 @@ pub struct MeshStats {
     pub must_cover_area: f64,
     /// Area of the two meshes together.
     pub covered_area: f64,
-    /// Vertices in the shared array.
+    /// Vertices in the shared array (a vertex both meshes use counts once).
     pub vertices: usize,
+    /// Vertices of the fitted opaque outline: every ring (islands and holes)
+    /// of the opaque mesh, summed.
     pub opaque_outline_vertices: usize,
+    /// Vertices of the fitted covering outline: every ring (islands and holes)
+    /// of the outline the two meshes fill together, summed.
     pub cover_outline_vertices: usize,
+    /// Triangles of the opaque mesh.
     pub opaque_triangles: usize,
+    /// Triangles of the blended mesh.
     pub blended_triangles: usize,
-    /// Texel counts by class.
+    /// Texels opaque: alpha at least `opaque_min`. The texel counts and
+    /// edge lengths below read as 0 from mesh files that lack them.
     #[serde(default)]
     pub opaque_texels: u64,
+    /// Texels partly transparent: alpha at least `visible_min`, below
+    /// `opaque_min`.
     #[serde(default)]
     pub partial_texels: u64,
+    /// Texels transparent: alpha below `visible_min`.
     #[serde(default)]
     pub transparent_texels: u64,
-    /// Total length of the edges inside each mesh, after plain ear clipping and after edge flips.
+    /// Total length, in texels, of the edges shared by two triangles of one
+    /// mesh (opaque and blended summed), after plain ear clipping.
     #[serde(default)]
     pub interior_edge_length_earcut: f64,
+    /// Total length, in texels, of the edges shared by two triangles of one
+    /// mesh (opaque and blended summed), after flipping edges to shorter
+    /// diagonals.
     #[serde(default)]
     pub interior_edge_length: f64,
 }
@@ -75,7 +92,9 @@ impl MeshStats {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Winding {
+    /// Clockwise on screen (x right, y down); what the cutter writes.
     Cw,
+    /// Counter-clockwise on screen (x right, y down).
     Ccw,
 }
 
@@ -83,18 +102,25 @@ pub enum Winding {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct LayerMesh {
+    /// The file format's name, always [`FORMAT`].
     pub format: String,
+    /// The file format's version, [`VERSION`] for the files written now.
     pub version: u32,
     /// The image file name the mesh was cut from.
     pub source: String,
     /// Image size in texels, [W, H].
     pub size: [u32; 2],
+    /// The texture filter and highest mip level the opaque mesh is safe for.
     pub filter: Filter,
+    /// The alpha thresholds that class the texels as opaque or visible.
     pub alpha: AlphaThresholds,
+    /// The axes on which the texture repeats; the others clamp to the edge texel.
     pub wrap: Wrap,
-    /// The budget the mesh was fitted to.
+    /// The vertex budget the mesh was fitted to; `None` in files that do
+    /// not record it.
     #[serde(default)]
     pub budget: Option<usize>,
+    /// The winding of every triangle of both meshes.
     pub winding: Winding,
     /// x0, y0, x1, y1, ... in texel units (x right, y down).
     pub positions: Vec<f32>,
@@ -104,10 +130,13 @@ pub struct LayerMesh {
     pub opaque: TriangleList,
     /// Draw with blending on.
     pub blended: TriangleList,
+    /// The numbers of the cut: areas, vertex and triangle counts, texel classes.
     pub stats: MeshStats,
 }
 
 impl LayerMesh {
+    /// Vertices in the shared array (`positions.len() / 2`); a vertex both
+    /// meshes use counts once, as in the vertex budget.
     pub fn vertex_count(&self) -> usize {
         self.positions.len() / 2
     }

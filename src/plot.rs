@@ -17,17 +17,20 @@
 use crate::sweep::SweepPoint;
 use std::fmt::Write;
 
-/// Size of the plot, SVG user units (pixels at 100%).
+/// Width of the plot, in SVG user units (pixels at 100%).
 pub const WIDTH: f64 = 640.0;
+/// Height of the plot, in SVG user units (pixels at 100%).
 pub const HEIGHT: f64 = 400.0;
 const LEFT: f64 = 86.0;
 const RIGHT: f64 = 24.0;
 const TOP: f64 = 44.0;
 const BOTTOM: f64 = 58.0;
 
-/// Colours of the curve, the knee and the chosen budget (our own).
+/// Colour of the curve and its cuts (a blue; the colours are our own).
 pub const CURVE: &str = "#1f5fa8";
+/// Colour of the knee's mark and its target line (an orange).
 pub const KNEE: &str = "#d9480f";
+/// Colour of the chosen budget's line (a green).
 pub const CHOSEN: &str = "#2b8a3e";
 
 /// What to mark on the plot besides the curve.

@@ -51,12 +51,15 @@ pub const BLENDED_EDGE: [u8; 3] = [150, 80, 0];
 pub const SAFE_OUTLINE: [u8; 3] = [255, 255, 255];
 /// Dotted outline of the must-cover region.
 pub const COVER_OUTLINE: [u8; 3] = [0, 0, 0];
-/// Checkerboard squares, preview pixels a side, and their two greys.
+/// Side of a checkerboard square, in preview pixels.
 pub const CHECKER_PX: u32 = 8;
+/// The checkerboard's light grey (squares whose column + row is even).
 pub const CHECKER_LIGHT: [u8; 3] = [232, 232, 232];
+/// The checkerboard's dark grey (the other squares).
 pub const CHECKER_DARK: [u8; 3] = [180, 180, 180];
-/// Caption strip: background and ink.
+/// Background of the caption strip below the image.
 pub const CAPTION_BACK: [u8; 3] = [30, 30, 30];
+/// Ink of the caption's text.
 pub const CAPTION_INK: [u8; 3] = [240, 240, 240];
 
 /// Width of a preview of a `width`-texel layer, at most `max_width`

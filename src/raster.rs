@@ -185,6 +185,8 @@ pub struct QuadTracker {
 }
 
 impl QuadTracker {
+    /// A tracker for rows `width` pixels wide (the viewport's width), before any
+    /// triangle.
     pub fn new(width: u32) -> QuadTracker {
         QuadTracker {
             stamp: vec![0; (width as usize).div_ceil(2)],

@@ -20,6 +20,7 @@ pub enum FilterMode {
 /// The filter the meshes are made safe for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Hash)]
 pub struct Filter {
+    /// Nearest or bilinear sampling.
     pub mode: FilterMode,
     /// Highest mip level the layer may be sampled from (0 = no mipmaps).
     pub mip_levels: u32,
@@ -56,20 +57,28 @@ impl Default for AlphaThresholds {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
 #[serde(rename_all = "lowercase")]
 pub enum Wrap {
+    /// No axis repeats: both clamp to the edge texel (the default).
     #[default]
     None,
+    /// The texture repeats horizontally (x); y clamps.
     X,
+    /// The texture repeats vertically (y); x clamps.
     Y,
+    /// The texture repeats on both axes.
     Xy,
 }
 
 impl Wrap {
+    /// Whether the texture repeats horizontally ([`Wrap::X`] or [`Wrap::Xy`]).
     pub fn x(self) -> bool {
         matches!(self, Wrap::X | Wrap::Xy)
     }
+    /// Whether the texture repeats vertically ([`Wrap::Y`] or [`Wrap::Xy`]).
     pub fn y(self) -> bool {
         matches!(self, Wrap::Y | Wrap::Xy)
     }
+    /// The name used in files and on the command line: `none`, `x`, `y`, `xy`
+    /// (as serialized).
     pub fn as_str(self) -> &'static str {
         match self {
             Wrap::None => "none",
@@ -85,8 +94,11 @@ impl Wrap {
 pub struct CutSettings {
     /// Most vertices the layer's two meshes may use together (shared vertices count once).
     pub budget: usize,
+    /// The texture filter and highest mip level the opaque mesh must be safe for.
     pub filter: Filter,
+    /// The alpha thresholds from which a texel counts as opaque and as visible.
     pub alpha: AlphaThresholds,
+    /// The axes on which the texture repeats.
     pub wrap: Wrap,
 }
 

@@ -24,10 +24,15 @@ pub const BUDGETS: [usize; 13] = [4, 6, 8, 12, 16, 24, 32, 48, 64, 96, 128, 192,
 /// One cut of a sweep; areas in texels.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct SweepPoint {
+    /// The vertex budget of this cut.
     pub budget: usize,
+    /// Vertices the cut has (both meshes, shared vertices once).
     pub vertices: usize,
+    /// Area of the opaque mesh, in texels.
     pub opaque_area: f64,
+    /// Area of the two meshes together, in texels.
     pub covered_area: f64,
+    /// Area of the layer's rectangle (width x height), in texels.
     pub rect_area: f64,
     /// opaque_area + (rect_area - covered_area).
     pub saving: f64,
@@ -36,7 +41,24 @@ pub struct SweepPoint {
     pub notes: Vec<String>,
 }
 
-/// Cuts a layer at each budget (in parallel), with the other settings of `base`.
+/// Cuts a layer at each budget (in parallel), with the other settings of
+/// `base`; one point per budget, in the order of `budgets`.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, settings::CutSettings, sweep::{knee, sweep_layer}};
+/// // an 8 x 8 layer opaque throughout: clamped to its edge, no sample of it
+/// // is less than opaque, so at any budget the opaque mesh can be the whole
+/// // rectangle, which hides 64 texels and leaves none uncovered
+/// let map = AlphaMap::from_raw(8, 8, vec![255; 64]);
+/// let points = sweep_layer(&map, "full.png", &CutSettings::default(), &[4, 8]);
+/// assert_eq!(points.len(), 2);
+/// for p in &points {
+///     assert_eq!((p.rect_area, p.opaque_area, p.covered_area), (64.0, 64.0, 64.0));
+///     assert_eq!(p.saving, 64.0);
+/// }
+/// // the smallest budget already saves everything: it is the knee
+/// assert_eq!(knee(&points, 0.8), Some(4));
+/// ```
 pub fn sweep_layer(
     map: &AlphaMap,
     source: &str,
@@ -127,7 +149,10 @@ pub fn to_table(points: &[SweepPoint], knee: Option<usize>) -> String {
 /// One option of a layer: a mesh of `vertices` vertices saving `gain`.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize)]
 pub struct CurvePoint {
+    /// Vertices of this option's mesh.
     pub vertices: usize,
+    /// What this option saves, in the caller's unit (fragments per frame
+    /// in the scene's allocation, [`crate::scene::budget`]); more is better.
     pub gain: f64,
 }
 

@@ -54,16 +54,29 @@ use std::path::{Component, Path, PathBuf};
 
 /// WebGL / OpenGL ES enums used by glTF (Samplers, Buffers and Buffer Views).
 pub mod gl {
+    /// Sampler filter `NEAREST` (9728): the nearest texel of the base level.
     pub const NEAREST: u32 = 9728;
+    /// Sampler filter `LINEAR` (9729): bilinear in the base level.
     pub const LINEAR: u32 = 9729;
+    /// Minification filter `NEAREST_MIPMAP_NEAREST` (9984): the nearest texel of
+    /// the nearest mip level.
     pub const NEAREST_MIPMAP_NEAREST: u32 = 9984;
+    /// Minification filter `LINEAR_MIPMAP_LINEAR` (9987): bilinear in the two
+    /// nearest mip levels, blended (trilinear).
     pub const LINEAR_MIPMAP_LINEAR: u32 = 9987;
+    /// Wrap mode `REPEAT` (10497): the texture tiles on that axis.
     pub const REPEAT: u32 = 10497;
+    /// Wrap mode `CLAMP_TO_EDGE` (33071): samples past the edge take the edge texel.
     pub const CLAMP_TO_EDGE: u32 = 33071;
+    /// Buffer view target `ARRAY_BUFFER` (34962): vertex attributes.
     pub const ARRAY_BUFFER: u32 = 34962;
+    /// Buffer view target `ELEMENT_ARRAY_BUFFER` (34963): indices.
     pub const ELEMENT_ARRAY_BUFFER: u32 = 34963;
+    /// Accessor component type `FLOAT` (5126): 32-bit IEEE float.
     pub const FLOAT: u32 = 5126;
+    /// Accessor component type `UNSIGNED_SHORT` (5123): 16-bit unsigned integer.
     pub const UNSIGNED_SHORT: u32 = 5123;
+    /// Accessor component type `UNSIGNED_INT` (5125): 32-bit unsigned integer.
     pub const UNSIGNED_INT: u32 = 5125;
 }
 
@@ -76,7 +89,11 @@ pub const MAX_U16_VERTICES: usize = 65_535;
 /// names the `.bin`, [`write_glb`] leaves it out (the GLB-stored buffer).
 #[derive(Clone, Debug)]
 pub struct Asset {
+    /// The glTF JSON document (the `.gltf` file, or the GLB's JSON chunk).
     pub json: Value,
+    /// The binary buffer, little-endian: the positions, the texture
+    /// coordinates, then each primitive's indices, every buffer view starting
+    /// on a 4-byte boundary; empty when the layer has no triangles.
     pub bin: Vec<u8>,
 }
 
@@ -96,6 +113,27 @@ pub fn glb_path(dir: &Path, stem: &str) -> PathBuf {
 /// Builds the asset of `mesh`. `image_uri` is the layer's PNG as a relative
 /// URI reference from the folder of the `.gltf` (see [`relative_uri`]);
 /// `name` names the node and mesh.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, cut::cut_layer, export::gltf::build, settings::CutSettings};
+/// // an 8 x 8 layer: an opaque 6 x 6 square with a soft one-texel rim
+/// let alpha = (0..64)
+///     .map(|i| if (1..7).contains(&(i % 8)) && (1..7).contains(&(i / 8)) { 255 } else { 100 })
+///     .collect();
+/// let map = AlphaMap::from_raw(8, 8, alpha);
+/// let mesh = cut_layer(&map, "square.png", &CutSettings { budget: 8, ..Default::default() }).mesh;
+/// let asset = build(&mesh, "square.png", "square");
+/// let j = &asset.json;
+/// assert_eq!(j["asset"]["version"], "2.0");
+/// // one primitive drawn opaque, one blended (glTF 2.0, Materials: alphaMode)
+/// let modes: Vec<&str> = j["materials"].as_array().unwrap().iter()
+///     .map(|m| m["alphaMode"].as_str().unwrap()).collect();
+/// assert_eq!(modes, ["OPAQUE", "BLEND"]);
+/// // every texel is visible, so the meshes span the whole layer; glTF is y up
+/// // (Coordinate System and Units), so the layer lies from y = 0 down to -8
+/// assert_eq!(j["accessors"][0]["min"][1], -8.0);
+/// assert_eq!(j["accessors"][0]["max"][1], 0.0);
+/// ```
 pub fn build(mesh: &LayerMesh, image_uri: &str, name: &str) -> Asset {
     let n = mesh.vertex_count();
     let mut bin = Vec::new();

@@ -48,39 +48,59 @@ const ROUNDS: usize = 2;
 /// A layer's choice.
 #[derive(Clone, Debug, Serialize)]
 pub struct LayerChoice {
+    /// The layer's name in the scene file.
     pub name: String,
     /// Budget chosen (`None` for a mesh file, kept as it is).
     pub budget: Option<usize>,
+    /// Vertices of the chosen mesh.
     pub vertices: usize,
-    /// Budget and vertices in the even spread.
+    /// Budget in the even spread (`None` for a mesh file).
     pub even_budget: Option<usize>,
+    /// Vertices of the layer's mesh in the even spread.
     pub even_vertices: usize,
-    /// The layer's curve in the last round: fragments saved per frame
-    /// against its rectangle, by the gain model.
+    /// The layer's curve in the round whose choice was kept: fragments
+    /// saved per frame against its rectangle, by the gain model, at each
+    /// candidate budget (empty for a mesh file).
     pub curve: Vec<CurveEntry>,
 }
 
+/// One point of a layer's curve: the layer cut at one budget, and what that
+/// cut saves in the scene.
 #[derive(Clone, Debug, Serialize)]
 pub struct CurveEntry {
+    /// The vertex budget the layer was cut at.
     pub budget: usize,
+    /// Vertices the cut at that budget actually has (at most `budget`).
     pub vertices: usize,
+    /// Fragments saved per frame (mean over the camera samples) against the
+    /// layer drawn as a blended rectangle, by the gain model of this module.
     pub gain: f64,
 }
 
 /// An assignment of meshes, scored exactly with the split strategy.
 #[derive(Clone, Debug, Serialize)]
 pub struct Scored {
+    /// Vertices of all the scene's meshes together.
     pub vertices: usize,
     /// Mean fragments per frame.
     pub fragments: f64,
+    /// Overdraw: mean fragments per frame divided by the viewport's pixels
+    /// (fragments shaded per pixel).
     pub overdraw: f64,
 }
 
+/// The result of [`allocate_scene`] for the report: the vertex total, each
+/// layer's choice, and the chosen and even assignments scored exactly.
 #[derive(Clone, Debug, Serialize)]
 pub struct AllocationReport {
+    /// The vertex total asked for (`--vertex-total`), for all layers together.
     pub vertex_total: usize,
+    /// Each layer's choice, in the scene's order.
     pub layers: Vec<LayerChoice>,
+    /// The chosen assignment (the best round), scored exactly.
     pub allocated: Scored,
+    /// The even spread (every layer cut on the fly gets the same budget), scored
+    /// exactly.
     pub even: Scored,
     /// Each round's choice, scored exactly.
     pub rounds: Vec<Scored>,
@@ -88,7 +108,9 @@ pub struct AllocationReport {
     pub saved_vs_even: f64,
 }
 
+/// What [`allocate_scene`] returns: the report and the chosen meshes.
 pub struct AllocationOutcome {
+    /// The choices and their exact scores.
     pub report: AllocationReport,
     /// The chosen mesh of each layer, in the scene's order.
     pub meshes: Vec<LayerMesh>,

@@ -23,14 +23,22 @@ use serde::{Deserialize, Serialize};
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Strategy {
+    /// Every layer's full rectangle, blended, back to front, no depth.
     Rect,
+    /// Every layer's covering outline (opaque and blended triangles), all
+    /// blended, back to front, no depth.
     Outline,
+    /// Opaque meshes front to back with depth test and write and blending off,
+    /// then blended meshes back to front with depth test, no write.
     Split,
 }
 
 impl Strategy {
+    /// Every strategy, in the order the report lists them.
     pub const ALL: [Strategy; 3] = [Strategy::Rect, Strategy::Outline, Strategy::Split];
 
+    /// The strategy's name in file names, reports and frame dumps: `rect`,
+    /// `outline`, `split`.
     pub fn name(self) -> &'static str {
         match self {
             Strategy::Rect => "rect",
@@ -123,11 +131,16 @@ pub enum Part {
     Rect,
     /// Opaque and blended triangles together.
     Cover,
+    /// The opaque triangles; the only part drawn with blending off.
     Opaque,
+    /// The blended triangles.
     Blended,
 }
 
-/// One layer's draw of `part`, or `None` when it has nothing on screen.
+/// One layer's draw of `part` at `depth`, every copy on screen in one draw
+/// (positions in screen pixels), or `None` when it has nothing on screen or
+/// `part` has no triangle. Blending is on except for [`Part::Opaque`]; depth
+/// test and write are off (the caller turns them on for its strategy).
 pub fn layer_draw(
     spec: &LayerSpec,
     mesh: &LayerMesh,

@@ -11,6 +11,8 @@ use std::fmt::Write;
 /// One layer's card.
 #[derive(Clone, Debug, Default)]
 pub struct LayerCard {
+    /// The layer's name in the scene file: the card's heading and its
+    /// `data-layer` attribute.
     pub name: String,
     /// The preview image's file name beside the page.
     pub preview: Option<String>,

@@ -1,7 +1,7 @@
 //! Scenes: parallax layers on a simulated GPU, scored per drawing strategy,
 //! and a vertex total split over the layers.
 //!
-//! * [`file`]: the scene file and its validation ([`file::load_scene`]).
+//! * [`file`](mod@file): the scene file and its validation ([`file::load_scene`]).
 //! * [`prepare`]: each layer's mesh, cut on the fly or read from a file.
 //! * [`draws`]: the draws of a frame per [`draws::Strategy`] and camera position.
 //! * [`score`]: every strategy at every camera sample rendered with

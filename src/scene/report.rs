@@ -8,21 +8,37 @@ use serde::Serialize;
 /// A heatmap written, and the frame it shows.
 #[derive(Clone, Debug, Serialize)]
 pub struct HeatmapInfo {
+    /// The heatmap's file name in the output folder (`heatmap-rect.png`,
+    /// `heatmap-split.png`).
     pub file: String,
+    /// The camera sample shown (index into [`SceneReport::camera_positions`]):
+    /// the one where the strategy's overdraw peaks.
     pub sample: usize,
+    /// The camera's x position at that sample, in screen pixels.
     pub camera_x: f64,
     /// The colour scale's top count (`top` and more share the last colour).
     pub top: u32,
 }
 
+/// The report of `underdraw scene`, as printed ([`SceneReport::table`]) and
+/// written to `scene-report.json`.
 #[derive(Clone, Debug, Serialize)]
 pub struct SceneReport {
+    /// The scene file's path, as given.
     pub scene: String,
+    /// The viewport's size in pixels, [width, height].
     pub viewport: [u32; 2],
+    /// The camera's x position at each sample, in screen pixels, in sample order.
     pub camera_positions: Vec<f64>,
+    /// Each drawing strategy's numbers per frame (rect, outline, split).
     pub strategies: Vec<StrategyReport>,
+    /// Each layer's numbers, in the scene's order (back to front).
     pub layers: Vec<LayerReport>,
+    /// The overdraw heatmaps written (rect and split, each at its peak sample,
+    /// on one colour scale).
     pub heatmaps: Vec<HeatmapInfo>,
+    /// The split of a vertex total over the layers, when one was asked for
+    /// (`--vertex-total`); left out of the JSON otherwise.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub allocation: Option<AllocationReport>,
     /// The cuts' remarks, prefixed by the layer's name.

@@ -15,13 +15,20 @@ use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
 use std::collections::HashMap;
 
-/// Work on the simulated GPU, summed or averaged.
+/// Work on the simulated GPU ([`crate::frame`]), summed over draws or
+/// averaged over frames.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Serialize, Deserialize)]
 pub struct Work {
+    /// Fragments shaded (covered pixels that pass the depth test).
     pub fragments: f64,
+    /// Shader lanes: 4 per (triangle, aligned 2x2 quad) holding a shaded
+    /// fragment, idle lanes included.
     pub lanes: f64,
+    /// Vertex shader invocations: distinct indices referenced, per draw.
     pub vertices: f64,
+    /// Triangles submitted, drawn or not.
     pub triangles: f64,
+    /// Draw calls.
     pub draws: f64,
 }
 
@@ -46,9 +53,11 @@ impl Work {
 /// One rendered frame, summarized.
 #[derive(Clone, Debug)]
 pub struct FrameScore {
+    /// The strategy the frame was drawn with.
     pub strategy: Strategy,
     /// Index of the camera sample.
     pub sample: usize,
+    /// The frame's work, all layers summed.
     pub total: Work,
     /// Per layer, in the scene's order.
     pub per_layer: Vec<Work>,
@@ -169,11 +178,13 @@ pub fn score_scene(
 /// A strategy's numbers over the camera samples.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct StrategyReport {
+    /// The strategy these numbers are for.
     pub strategy: Strategy,
     /// Mean over the samples of the frame's fragments per pixel.
     pub mean_overdraw: f64,
-    /// The highest frame's fragments per pixel, and its sample.
+    /// The highest frame's fragments per pixel.
     pub peak_overdraw: f64,
+    /// The camera sample of the peak (index into the camera positions).
     pub peak_sample: usize,
     /// Most fragments at one pixel in any frame.
     pub max_pixel: u32,
@@ -186,17 +197,27 @@ pub struct StrategyReport {
 /// One layer's numbers, per frame (means over the samples).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct LayerReport {
+    /// The layer's name in the scene file.
     pub name: String,
     /// The budget it was cut to (`None` for a mesh file without one).
     pub budget: Option<usize>,
+    /// Vertices of the layer's mesh (both meshes, shared vertices once), as
+    /// stored; a repeated layer draws them once per copy.
     pub mesh_vertices: usize,
+    /// The layer's work per frame drawn as a blended rectangle ([`Strategy::Rect`]).
     pub rect: Work,
+    /// The layer's work per frame with [`Strategy::Outline`].
     pub outline: Work,
+    /// The layer's work per frame with [`Strategy::Split`].
     pub split: Work,
-    /// Fragments split shades fewer than outline and than rect.
+    /// Fragments per frame the split strategy shades fewer than outline
+    /// (`outline.fragments - split.fragments`).
     pub saved_vs_outline: f64,
+    /// Fragments per frame the split strategy shades fewer than rect
+    /// (`rect.fragments - split.fragments`).
     pub saved_vs_rect: f64,
-    /// Vertices split processes more than rect.
+    /// Vertices per frame the split strategy processes more than rect
+    /// (`split.vertices - rect.vertices`).
     pub vertices_added: f64,
     /// saved_vs_rect / vertices_added (`None` when no vertex is added).
     pub saved_per_vertex: Option<f64>,
