@@ -74,17 +74,113 @@ impl Builder {
         }
         let tris = earcutr::earcut(&flat, &hole_starts, 2)
             .map_err(|e| format!("ear clipping failed: {e:?}"))?;
-        for t in tris.chunks_exact(3) {
-            let (a, b, c) = (pts[t[0]], pts[t[1]], pts[t[2]]);
-            let o = orient(a, b, c);
-            if o == 0 {
-                continue;
+        let found: Vec<[Point; 3]> = tris
+            .chunks_exact(3)
+            .map(|t| [pts[t[0]], pts[t[1]], pts[t[2]]])
+            .filter(|t| orient(t[0], t[1], t[2]) != 0)
+            .collect();
+        // Ear clipping can overlap triangles where holes touch the outer
+        // ring or each other at a vertex; then the triangles' areas do not
+        // sum to the polygon's (exact, in integers), and a constrained
+        // Delaunay triangulation of the same rings is used instead.
+        let rings: Vec<&[Point]> = std::iter::once(outer)
+            .chain(holes.iter().map(|h| h.as_slice()))
+            .collect();
+        let want = polygon_twice_area(&rings);
+        let found = if twice_area_sum(&found) == want {
+            found
+        } else {
+            let cdt = constrained(&rings)?;
+            if twice_area_sum(&cdt) != want {
+                return Err(
+                    "neither ear clipping nor the constrained triangulation tiles an outline"
+                        .into(),
+                );
             }
+            cdt
+        };
+        for [a, b, c] in found {
+            let o = orient(a, b, c);
             let (ia, ib, ic) = (self.id(a), self.id(b), self.id(c));
             out.push(if o > 0 { [ia, ib, ic] } else { [ia, ic, ib] });
         }
         Ok(())
     }
+}
+
+/// Twice the area of a polygon: its outer ring's minus its holes'.
+fn polygon_twice_area(rings: &[&[Point]]) -> i64 {
+    let shoelace = |r: &[Point]| -> i64 {
+        (0..r.len())
+            .map(|i| {
+                let (a, b) = (r[i], r[(i + 1) % r.len()]);
+                a[0] * b[1] - b[0] * a[1]
+            })
+            .sum::<i64>()
+            .abs()
+    };
+    let outer = rings.first().map_or(0, |r| shoelace(r));
+    outer - rings[1..].iter().map(|r| shoelace(r)).sum::<i64>()
+}
+
+/// Twice the summed (unsigned) area of triangles.
+fn twice_area_sum(tris: &[[Point; 3]]) -> i64 {
+    tris.iter().map(|t| orient(t[0], t[1], t[2]).abs()).sum()
+}
+
+/// Triangulates a polygon (outer ring, then holes; rings that may touch at
+/// vertices but do not cross) by a constrained Delaunay triangulation
+/// (`spade`, exact predicates) of its ring edges, keeping the triangles
+/// whose centroid is inside by the even-odd rule. Adds no vertex.
+fn constrained(rings: &[&[Point]]) -> Result<Vec<[Point; 3]>, String> {
+    use spade::{ConstrainedDelaunayTriangulation, Point2, Triangulation as _};
+    let mut cdt = ConstrainedDelaunayTriangulation::<Point2<f64>>::new();
+    for ring in rings {
+        let handles = ring
+            .iter()
+            .map(|p| cdt.insert(Point2::new(p[0] as f64, p[1] as f64)))
+            .collect::<Result<Vec<_>, _>>()
+            .map_err(|e| format!("constrained triangulation: {e:?}"))?;
+        for i in 0..handles.len() {
+            let (a, b) = (handles[i], handles[(i + 1) % handles.len()]);
+            if a == b {
+                continue;
+            }
+            if !cdt.can_add_constraint(a, b) {
+                return Err("constrained triangulation: outline edges cross".into());
+            }
+            cdt.add_constraint(a, b);
+        }
+    }
+    // even-odd test of a centroid, scaled by 3 to stay in integers
+    let inside = |q: Point| {
+        let mut odd = false;
+        for ring in rings {
+            for i in 0..ring.len() {
+                let (a, b) = (ring[i], ring[(i + 1) % ring.len()]);
+                let (a, b) = ([3 * a[0], 3 * a[1]], [3 * b[0], 3 * b[1]]);
+                if (a[1] > q[1]) != (b[1] > q[1]) {
+                    let dy = b[1] - a[1];
+                    let num = (a[0] - q[0]) * dy + (q[1] - a[1]) * (b[0] - a[0]);
+                    if (num > 0) == (dy > 0) {
+                        odd = !odd;
+                    }
+                }
+            }
+        }
+        odd
+    };
+    let mut out = Vec::new();
+    for face in cdt.inner_faces() {
+        let v = face
+            .vertices()
+            .map(|v| [v.position().x as i64, v.position().y as i64]);
+        let c = [v[0][0] + v[1][0] + v[2][0], v[0][1] + v[1][1] + v[2][1]];
+        if orient(v[0], v[1], v[2]) != 0 && inside(c) {
+            out.push(v);
+        }
+    }
+    Ok(out)
 }
 
 fn to_geo(poly: &FitPolygon) -> Polygon<f64> {
@@ -245,6 +341,26 @@ fn flip_to_shorter(pos: &[Point], tris: &mut [[u32; 3]]) {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    /// The constrained fallback tiles a polygon whose holes touch the outer
+    /// ring and each other at vertices: the triangles' areas sum to the
+    /// polygon's (outer minus holes; the shoelace formula), every triangle
+    /// lies inside (its centroid), and no vertex is added.
+    #[test]
+    fn constrained_fallback_tiles_touching_holes() {
+        // a diamond touching the outer ring at its vertex (6, 0), and a
+        // second diamond touching the first at (6, 6)
+        let outer_split: Vec<Point> = vec![[0, 0], [6, 0], [12, 0], [12, 12], [0, 12]];
+        let hole_a: Vec<Point> = vec![[6, 0], [8, 3], [6, 6], [4, 3]];
+        let hole_b: Vec<Point> = vec![[6, 6], [9, 9], [6, 10], [3, 9]];
+        let rings: Vec<&[Point]> = vec![&outer_split, &hole_a, &hole_b];
+        let tris = constrained(&rings).unwrap();
+        assert_eq!(twice_area_sum(&tris), polygon_twice_area(&rings));
+        assert_eq!(polygon_twice_area(&rings), 2 * (144 - 12 - 12));
+        let corners: std::collections::HashSet<Point> =
+            rings.iter().flat_map(|r| r.iter().copied()).collect();
+        assert!(tris.iter().flatten().all(|p| corners.contains(p)));
+    }
 
     #[test]
     fn flips_shorten_a_long_diagonal() {
