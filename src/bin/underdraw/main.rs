@@ -34,8 +34,8 @@ struct Cli {
     #[arg(long, global = true)]
     quiet: bool,
     /// Print a machine-readable result on stdout instead of the tables:
-    /// `cut`, an array of per-layer objects (layer, vertices,
-    /// opaque_capture, excess, notes, outputs); `scene`, the scene report
+    /// `cut`, an array of per-layer objects (layer, status cut / unchanged
+    /// / failed, vertices, opaque_capture, excess, notes, outputs); `scene`, the scene report
     /// (as scene-report.json); `check`, the contract's areas and whether it
     /// holds; `sweep`, the points and the knee.
     #[arg(long, global = true, conflicts_with = "quiet")]
@@ -92,8 +92,9 @@ pub(crate) fn bar(print: Print, len: usize, what: &str) -> indicatif::ProgressBa
 
 #[derive(Subcommand)]
 enum Command {
-    /// Cut PNG layers into `<OUT>/<stem>.mesh.json` mesh files, or glTF 2.0
-    /// assets for an engine (`--format`).
+    /// Cut PNG layers, or folders of them, into mesh files
+    /// (`<OUT>/<stem>.mesh.json`) or glTF 2.0 assets for an engine
+    /// (`--format`); reruns skip the layers that did not change.
     #[command(after_help = EXIT_HELP)]
     Cut(CutArgs),
     /// Re-verify a mesh file against its layer, with code independent of `cut`.
