@@ -19,7 +19,6 @@ use generate::{corpus, Entry};
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::atomic::{AtomicUsize, Ordering};
 use underdraw::check::check_mesh;
 use underdraw::cut::cut_layer;
 use underdraw::io::{decode_layer, ImageLimits};
@@ -32,28 +31,8 @@ fn corpus_dir() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/corpus")
 }
 
-/// A fresh folder, removed on drop.
-struct TempDir(PathBuf);
-
-impl TempDir {
-    fn new(test: &str) -> TempDir {
-        static N: AtomicUsize = AtomicUsize::new(0);
-        let dir = std::env::temp_dir().join(format!(
-            "underdraw-bad-{test}-{}-{}",
-            std::process::id(),
-            N.fetch_add(1, Ordering::Relaxed)
-        ));
-        let _ = fs::remove_dir_all(&dir);
-        fs::create_dir_all(&dir).expect("create the test folder");
-        TempDir(dir)
-    }
-}
-
-impl Drop for TempDir {
-    fn drop(&mut self) {
-        let _ = fs::remove_dir_all(&self.0);
-    }
-}
+mod common;
+use common::TempDir;
 
 fn run(args: &[&Path]) -> Output {
     Command::new(BIN)

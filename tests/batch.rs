@@ -12,34 +12,11 @@ use std::collections::BTreeMap;
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::atomic::{AtomicUsize, Ordering};
 
 const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
 
-struct TempDir(PathBuf);
-
-impl TempDir {
-    fn new(test: &str) -> TempDir {
-        static N: AtomicUsize = AtomicUsize::new(0);
-        let dir = std::env::temp_dir().join(format!(
-            "underdraw-batch-{test}-{}-{}",
-            std::process::id(),
-            N.fetch_add(1, Ordering::Relaxed)
-        ));
-        let _ = fs::remove_dir_all(&dir);
-        fs::create_dir_all(&dir).expect("create the test folder");
-        TempDir(dir)
-    }
-    fn path(&self, rel: &str) -> PathBuf {
-        self.0.join(rel)
-    }
-}
-
-impl Drop for TempDir {
-    fn drop(&mut self) {
-        let _ = fs::remove_dir_all(&self.0);
-    }
-}
+mod common;
+use common::TempDir;
 
 fn text(b: &[u8]) -> String {
     String::from_utf8_lossy(b).into_owned()

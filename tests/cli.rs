@@ -9,36 +9,12 @@ use image::{ImageFormat, Rgba, RgbaImage};
 use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
-use std::sync::atomic::{AtomicUsize, Ordering};
 use underdraw::mesh::LayerMesh;
 
 const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
 
-/// A fresh folder, removed on drop.
-struct TempDir(PathBuf);
-
-impl TempDir {
-    fn new(test: &str) -> TempDir {
-        static N: AtomicUsize = AtomicUsize::new(0);
-        let dir = std::env::temp_dir().join(format!(
-            "underdraw-cli-{test}-{}-{}",
-            std::process::id(),
-            N.fetch_add(1, Ordering::Relaxed)
-        ));
-        let _ = fs::remove_dir_all(&dir);
-        fs::create_dir_all(&dir).expect("create the test folder");
-        TempDir(dir)
-    }
-    fn path(&self, name: &str) -> PathBuf {
-        self.0.join(name)
-    }
-}
-
-impl Drop for TempDir {
-    fn drop(&mut self) {
-        let _ = fs::remove_dir_all(&self.0);
-    }
-}
+mod common;
+use common::TempDir;
 
 fn demo(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))

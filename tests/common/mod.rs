@@ -50,3 +50,33 @@ pub fn triangle_polygons(
         })
         .collect()
 }
+
+/// A fresh folder under the system temp dir, named after the test (and
+/// this process, and a counter), removed with its contents on drop.
+pub struct TempDir(pub std::path::PathBuf);
+
+impl TempDir {
+    /// Creates `underdraw-<test>-<pid>-<n>`, emptied if it existed.
+    pub fn new(test: &str) -> TempDir {
+        use std::sync::atomic::{AtomicUsize, Ordering};
+        static N: AtomicUsize = AtomicUsize::new(0);
+        let dir = std::env::temp_dir().join(format!(
+            "underdraw-{test}-{}-{}",
+            std::process::id(),
+            N.fetch_add(1, Ordering::Relaxed)
+        ));
+        let _ = std::fs::remove_dir_all(&dir);
+        std::fs::create_dir_all(&dir).expect("create the test folder");
+        TempDir(dir)
+    }
+    /// A path inside the folder.
+    pub fn path(&self, rel: &str) -> std::path::PathBuf {
+        self.0.join(rel)
+    }
+}
+
+impl Drop for TempDir {
+    fn drop(&mut self) {
+        let _ = std::fs::remove_dir_all(&self.0);
+    }
+}
