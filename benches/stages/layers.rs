@@ -48,28 +48,12 @@ impl Kind {
     }
 }
 
-/// splitmix64 (Steele, Lea and Flood, "Fast splittable pseudorandom number
-/// generators", OOPSLA 2014; constants from memory).
-pub struct Rng(u64);
-
-impl Rng {
-    /// A generator seeded with `seed`.
-    pub fn new(seed: u64) -> Rng {
-        Rng(seed)
-    }
-    /// The next 64 random bits.
-    pub fn next(&mut self) -> u64 {
-        self.0 = self.0.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        let mut z = self.0;
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        z ^ (z >> 31)
-    }
-    /// Uniform in [lo, hi).
-    pub fn range(&mut self, lo: f64, hi: f64) -> f64 {
-        lo + (hi - lo) * ((self.next() >> 11) as f64 / (1u64 << 53) as f64)
-    }
-}
+/// splitmix64, the generator the integration tests use (Steele, Lea and
+/// Flood, "Fast splittable pseudorandom number generators", OOPSLA 2014;
+/// constants from memory).
+#[path = "../../tests/common/mod.rs"]
+mod common;
+pub use common::Rng;
 
 /// An RGBA8 layer, row-major, 4 bytes a texel.
 pub struct Rgba {
@@ -151,7 +135,7 @@ fn coverage(a: f64) -> u8 {
 }
 
 fn hash(x: u32, y: u32, seed: u64) -> u64 {
-    Rng::new(((y as u64) << 32 | x as u64) ^ seed.wrapping_mul(0x2545_F491_4F6C_DD1D)).next()
+    Rng(((y as u64) << 32 | x as u64) ^ seed.wrapping_mul(0x2545_F491_4F6C_DD1D)).next()
 }
 
 fn colourize(kind: Kind, width: u32, height: u32, alpha: &[u8]) -> Rgba {
@@ -197,7 +181,7 @@ fn fill(alpha: &mut [u8], width: u32, height: u32, r: [f64; 4], a: u8) {
 fn skyline(width: u32, height: u32, seed: u64) -> Vec<u8> {
     let (w, h) = (width as f64, height as f64);
     let s = w.min(h) / 1024.0;
-    let mut rng = Rng::new(seed ^ 0x5C71);
+    let mut rng = Rng(seed ^ 0x5C71);
     let mut alpha = vec![0u8; width as usize * height as usize];
     let ground = h - 0.06 * h;
     fill(&mut alpha, width, height, [0.0, w, ground, h], 255);
@@ -253,7 +237,7 @@ fn skyline(width: u32, height: u32, seed: u64) -> Vec<u8> {
 fn clouds(width: u32, height: u32, seed: u64) -> Vec<u8> {
     let (w, h) = (width as f64, height as f64);
     let s = w.min(h) / 1024.0;
-    let mut rng = Rng::new(seed ^ 0xC10D);
+    let mut rng = Rng(seed ^ 0xC10D);
     // alpha as coverage in [0, 1], composited "over": a = 1 - (1-a)(1-b)
     let mut clear = vec![1.0f32; width as usize * height as usize];
     let n_clouds = (12.0 * w / h.max(1.0)).clamp(6.0, 40.0) as usize;
@@ -333,7 +317,7 @@ fn line(alpha: &mut [u8], size: [u32; 2], a: [f64; 2], b: [f64; 2], width: f64) 
 fn rigging(width: u32, height: u32, seed: u64) -> Vec<u8> {
     let (w, h) = (width as f64, height as f64);
     let s = w.min(h) / 1024.0;
-    let mut rng = Rng::new(seed ^ 0x819);
+    let mut rng = Rng(seed ^ 0x819);
     let mut alpha = vec![0u8; width as usize * height as usize];
     let size = [width, height];
     let ships = ((w / (340.0 * s)).round() as usize).max(1);
