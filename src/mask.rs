@@ -136,17 +136,30 @@ impl Mask {
         for y in 0..self.height {
             starts.push(runs.len());
             let row = &self.cells[y * w..(y + 1) * w];
-            let mut x = 0;
+            // eight cells at a time while they all equal the current state
+            const ONES: u64 = 0x0101_0101_0101_0101;
+            let (mut x, mut inside, mut s) = (0, false, 0);
             while x < w {
-                if row[x] == 0 {
-                    x += 1;
-                    continue;
+                if x + 8 <= w {
+                    let c = u64::from_ne_bytes(row[x..x + 8].try_into().expect("8 bytes"));
+                    if c == if inside { ONES } else { 0 } {
+                        x += 8;
+                        continue;
+                    }
                 }
-                let s = x;
-                while x < w && row[x] != 0 {
-                    x += 1;
+                let v = row[x] != 0;
+                if v != inside {
+                    if v {
+                        s = x;
+                    } else {
+                        runs.push([s as u32, x as u32]);
+                    }
+                    inside = v;
                 }
-                runs.push([s as u32, x as u32]);
+                x += 1;
+            }
+            if inside {
+                runs.push([s as u32, w as u32]);
             }
         }
         starts.push(runs.len());

@@ -36,107 +36,104 @@ pub fn twice_area(points: &[Point]) -> i64 {
     a
 }
 
-const RIGHT: u8 = 1;
-const DOWN: u8 = 2;
-const LEFT: u8 = 3;
-const UP: u8 = 4;
-
 /// Traces every boundary of `mask`. The mask must have no pinches.
 pub fn trace(mask: &Mask) -> Vec<Ring> {
-    trace_labelled(mask, &label(mask))
+    trace_runs(&mask.run_labels())
 }
 
-/// [`trace`] with the mask's component labels ([`label`]) already made.
-pub fn trace_labelled(mask: &Mask, labels: &[u32]) -> Vec<Ring> {
-    let w = mask.width;
-    trace_by(mask, |x, y| labels[y * w + x])
-}
-
-/// [`trace`] with the mask's components labelled run by run
-/// ([`Mask::run_labels`]), which take memory by the run, not by the cell.
-pub fn trace_runs(mask: &Mask, labels: &RunLabels) -> Vec<Ring> {
-    trace_by(mask, |x, y| labels.at(x, y))
-}
-
-/// [`trace`], the component of cell (x, y) read from `label_at`.
-fn trace_by(mask: &Mask, label_at: impl Fn(usize, usize) -> u32) -> Vec<Ring> {
-    let (w, h) = (mask.width, mask.height);
-    if w == 0 || h == 0 || mask.is_empty() {
+/// [`trace`] from the mask's runs and their component labels
+/// ([`Mask::run_labels`]): time and memory follow the runs and the corners,
+/// not the cells. The runs must come from a mask without pinches.
+///
+/// Method: a lattice point is a ring corner iff an odd number of its four
+/// cells is set, i.e. iff it is a run end in exactly one of the rows above
+/// and below it, so lattice row `y`'s corners are the symmetric difference
+/// of the run ends of cell rows `y - 1` and `y`. Along a lattice row the
+/// horizontal boundary is where those two rows differ, so its corners pair
+/// up left to right (first with second, third with fourth); down a lattice
+/// column likewise top to bottom. A ring alternates between the two
+/// pairings. Each ring starts at its first corner in row-major order, whose
+/// outgoing edge runs right (an island) or down (a hole), and rings come in
+/// the order of those corners: the same rings, points and order as tracing
+/// cell by cell (the module's test `runs_trace_like_cells` compares them).
+pub fn trace_runs(labels: &RunLabels) -> Vec<Ring> {
+    let runs = &labels.runs;
+    let h = runs.height;
+    // corners in row-major order; every lattice row holds an even number
+    let mut corners: Vec<Point> = Vec::new();
+    let mut ends_above: Vec<u32> = Vec::new();
+    let mut ends_below: Vec<u32> = Vec::new();
+    for y in 0..=h {
+        std::mem::swap(&mut ends_above, &mut ends_below);
+        ends_below.clear();
+        if y < h {
+            ends_below.extend(runs.row(y).iter().flatten());
+        }
+        let (a, b) = (&ends_above, &ends_below);
+        let (mut i, mut j) = (0, 0);
+        while i < a.len() || j < b.len() {
+            let x = match (a.get(i), b.get(j)) {
+                (Some(&p), Some(&q)) if p == q => {
+                    i += 1;
+                    j += 1;
+                    continue;
+                }
+                (Some(&p), Some(&q)) if p < q => {
+                    i += 1;
+                    p
+                }
+                (Some(&p), None) => {
+                    i += 1;
+                    p
+                }
+                (_, Some(&q)) => {
+                    j += 1;
+                    q
+                }
+                (None, None) => unreachable!(),
+            };
+            corners.push([x as i64, y as i64]);
+        }
+    }
+    let n = corners.len();
+    if n == 0 {
         return Vec::new();
     }
-    let lw = w + 1;
-    // Outgoing boundary direction at each lattice point (0: none).
-    let mut out = vec![0u8; lw * (h + 1)];
-    let cells = &mask.cells;
-    for y in 0..h {
-        let row = &cells[y * w..(y + 1) * w];
-        let above = if y > 0 {
-            Some(&cells[(y - 1) * w..y * w])
-        } else {
-            None
-        };
-        let below = if y + 1 < h {
-            Some(&cells[(y + 1) * w..(y + 2) * w])
-        } else {
-            None
-        };
-        for x in 0..w {
-            if row[x] == 0 {
-                continue;
-            }
-            if above.map_or(true, |r| r[x] == 0) {
-                out[y * lw + x] = RIGHT;
-            }
-            if x + 1 == w || row[x + 1] == 0 {
-                out[y * lw + x + 1] = DOWN;
-            }
-            if below.map_or(true, |r| r[x] == 0) {
-                out[(y + 1) * lw + x + 1] = LEFT;
-            }
-            if x == 0 || row[x - 1] == 0 {
-                out[(y + 1) * lw + x] = UP;
-            }
-        }
+    // vertical pairing: corners sorted by column, then row
+    let mut by_column: Vec<u32> = (0..n as u32).collect();
+    by_column.sort_unstable_by_key(|&i| {
+        let [x, y] = corners[i as usize];
+        (x, y)
+    });
+    let mut below = vec![0u32; n];
+    for pair in by_column.chunks_exact(2) {
+        below[pair[0] as usize] = pair[1];
+        below[pair[1] as usize] = pair[0];
     }
+    drop(by_column);
+    let mut seen = vec![false; n];
     let mut rings = Vec::new();
-    for start in 0..out.len() {
-        if out[start] == 0 {
+    for start in 0..n {
+        if seen[start] {
             continue;
         }
-        let mut points = Vec::new();
-        let mut idx = start;
-        let mut prev_dir = 0u8;
-        let first_dir = out[start];
-        let (sx, sy) = ((start % lw) as i64, (start / lw) as i64);
-        // the cell on the right of the first edge names the component
-        let cell = match first_dir {
-            RIGHT => (sx, sy),
-            DOWN => (sx - 1, sy),
-            LEFT => (sx - 1, sy - 1),
-            _ => (sx, sy - 1),
+        let [sx, sy] = corners[start];
+        // the cell below-right of the start is set for an island (edge
+        // right), unset for a hole (edge down, the cell below-left set)
+        let island = labels.at(sx as usize, sy as usize) != 0;
+        let component = if island {
+            labels.at(sx as usize, sy as usize)
+        } else {
+            labels.at(sx as usize - 1, sy as usize)
         };
-        let component = label_at(cell.0 as usize, cell.1 as usize);
-        loop {
-            let dir = out[idx];
-            if dir == 0 {
-                break;
-            }
-            out[idx] = 0;
-            let (x, y) = ((idx % lw) as i64, (idx / lw) as i64);
-            if dir != prev_dir {
-                points.push([x, y]);
-            }
-            prev_dir = dir;
-            idx = match dir {
-                RIGHT => idx + 1,
-                DOWN => idx + lw,
-                LEFT => idx - 1,
-                _ => idx - lw,
-            };
-        }
-        if prev_dir == first_dir && points.len() > 1 {
-            // the start point lies mid-edge: drop it
-            points.remove(0);
+        let mut points = Vec::new();
+        let mut i = start;
+        let mut horizontal = island;
+        while !seen[i] {
+            seen[i] = true;
+            points.push(corners[i]);
+            i = if horizontal { i ^ 1 } else { below[i] as usize };
+            horizontal = !horizontal;
         }
         let hole = twice_area(&points) < 0;
         rings.push(Ring {
@@ -157,6 +154,105 @@ pub fn label(mask: &Mask) -> Vec<u32> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    const RIGHT: u8 = 1;
+    const DOWN: u8 = 2;
+    const LEFT: u8 = 3;
+    const UP: u8 = 4;
+
+    /// The definition, cell by cell: every set cell writes the outgoing
+    /// boundary direction at the lattice points of its unset sides, then
+    /// rings are followed from the first lattice point in row-major order.
+    fn trace_cells(mask: &Mask) -> Vec<Ring> {
+        let labels = mask.components();
+        let label_at = |x: usize, y: usize| labels[y * mask.width + x];
+        let (w, h) = (mask.width, mask.height);
+        if w == 0 || h == 0 || mask.is_empty() {
+            return Vec::new();
+        }
+        let lw = w + 1;
+        // Outgoing boundary direction at each lattice point (0: none).
+        let mut out = vec![0u8; lw * (h + 1)];
+        let cells = &mask.cells;
+        for y in 0..h {
+            let row = &cells[y * w..(y + 1) * w];
+            let above = if y > 0 {
+                Some(&cells[(y - 1) * w..y * w])
+            } else {
+                None
+            };
+            let below = if y + 1 < h {
+                Some(&cells[(y + 1) * w..(y + 2) * w])
+            } else {
+                None
+            };
+            for x in 0..w {
+                if row[x] == 0 {
+                    continue;
+                }
+                if above.map_or(true, |r| r[x] == 0) {
+                    out[y * lw + x] = RIGHT;
+                }
+                if x + 1 == w || row[x + 1] == 0 {
+                    out[y * lw + x + 1] = DOWN;
+                }
+                if below.map_or(true, |r| r[x] == 0) {
+                    out[(y + 1) * lw + x + 1] = LEFT;
+                }
+                if x == 0 || row[x - 1] == 0 {
+                    out[(y + 1) * lw + x] = UP;
+                }
+            }
+        }
+        let mut rings = Vec::new();
+        for start in 0..out.len() {
+            if out[start] == 0 {
+                continue;
+            }
+            let mut points = Vec::new();
+            let mut idx = start;
+            let mut prev_dir = 0u8;
+            let first_dir = out[start];
+            let (sx, sy) = ((start % lw) as i64, (start / lw) as i64);
+            // the cell on the right of the first edge names the component
+            let cell = match first_dir {
+                RIGHT => (sx, sy),
+                DOWN => (sx - 1, sy),
+                LEFT => (sx - 1, sy - 1),
+                _ => (sx, sy - 1),
+            };
+            let component = label_at(cell.0 as usize, cell.1 as usize);
+            loop {
+                let dir = out[idx];
+                if dir == 0 {
+                    break;
+                }
+                out[idx] = 0;
+                let (x, y) = ((idx % lw) as i64, (idx / lw) as i64);
+                if dir != prev_dir {
+                    points.push([x, y]);
+                }
+                prev_dir = dir;
+                idx = match dir {
+                    RIGHT => idx + 1,
+                    DOWN => idx + lw,
+                    LEFT => idx - 1,
+                    _ => idx - lw,
+                };
+            }
+            if prev_dir == first_dir && points.len() > 1 {
+                // the start point lies mid-edge: drop it
+                points.remove(0);
+            }
+            let hole = twice_area(&points) < 0;
+            rings.push(Ring {
+                points,
+                hole,
+                component,
+            });
+        }
+        rings
+    }
 
     fn mask_from(rows: &[&str]) -> Mask {
         let mut m = Mask::new(rows[0].len(), rows.len(), false);
@@ -186,5 +282,30 @@ mod tests {
         let m = mask_from(&["##..#", "###.#", ".#..#", "...##", "#...."]);
         let total: i64 = trace(&m).iter().map(|r| twice_area(&r.points)).sum();
         assert_eq!(total, 2 * m.count() as i64);
+    }
+
+    /// The run tracer gives exactly the rings of the cell-by-cell
+    /// definition (same points, start, order and components) on random
+    /// masks with their pinches removed or filled.
+    #[test]
+    fn runs_trace_like_cells() {
+        let mut seed = 99u64;
+        for case in 0..300 {
+            let (w, h) = (1 + case % 17, 1 + case % 13 * 2);
+            let density = 20 + case % 7 * 10;
+            let mut m = Mask::new(w, h, false);
+            for c in m.cells.iter_mut() {
+                seed = seed
+                    .wrapping_mul(6364136223846793005)
+                    .wrapping_add(1442695040888963407);
+                *c = ((seed >> 33) % 100 < density as u64) as u8;
+            }
+            if case % 2 == 0 {
+                m.remove_pinches();
+            } else {
+                m.fill_pinches();
+            }
+            assert_eq!(trace(&m), trace_cells(&m), "case {case}: {m:?}");
+        }
     }
 }

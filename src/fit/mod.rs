@@ -134,9 +134,9 @@ impl Prepared {
     pub fn new(mask: &Mask, with_rects: bool) -> Prepared {
         let labels = mask.run_labels();
         Prepared {
-            rings: crate::outline::trace_runs(mask, &labels),
+            rings: crate::outline::trace_runs(&labels),
             rects: if with_rects {
-                rects::largest_rectangles(mask, |x, y| labels.at(x, y))
+                rects::largest_rectangles(&labels)
             } else {
                 HashMap::new()
             },
