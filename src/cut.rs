@@ -9,6 +9,7 @@
 use crate::alpha::{AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
 use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
+use crate::mask::Mask;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
@@ -35,9 +36,14 @@ pub struct Outlines {
 /// Analyzes, traces and fits a layer's outlines to `settings.budget`.
 pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     let regions = Regions::analyze(map, settings);
-    let mut safe = regions.safe.clone();
+    let fit = fit_regions(regions.safe.clone(), regions.cover.clone(), settings.budget);
+    Outlines { regions, fit }
+}
+
+/// Fits the safe and must-cover regions (`safe`, `cover`, consumed: they
+/// are edited in place and freed as soon as they are traced) to `budget`.
+fn fit_regions(mut safe: Mask, mut cover_mask: Mask, budget: usize) -> Fit {
     safe.remove_pinches();
-    let mut cover_mask = regions.cover.clone();
     cover_mask.fill_pinches();
     let (cover, plain) = rayon::join(
         || Prepared::new(&cover_mask, false),
@@ -65,22 +71,17 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
         .map(|&(safe, cap)| {
             let mut fitter = Fitter::new(safe, &cover);
             fitter.set_cap_savings(cap);
-            fitter.fit(settings.budget);
+            fitter.fit(budget);
             (fitter.objective(), fitter.result())
         })
         .collect();
     // the first of the best, so the choice does not depend on scheduling
-    let mut best = results
+    results
         .into_iter()
         .enumerate()
         .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
-        .map(|(_, r)| r)
-        .expect("at least one variant");
-    let _ = &mut best;
-    Outlines {
-        regions,
-        fit: best.1,
-    }
+        .map(|(_, (_, fit))| fit)
+        .expect("at least one variant")
 }
 
 /// Cuts one layer into its opaque and blended meshes.
@@ -95,9 +96,11 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 /// assert_eq!(out.mesh.blended.triangle_count(), 0);
 /// ```
 pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
-    let Outlines { regions, fit } = fit_layer(map, settings);
-    // only the areas are needed from here on: free the masks before the check
-    let regions = regions.stats;
+    // only the areas are needed once the regions are fitted: their masks
+    // are consumed by the fit and freed before the check
+    let Regions { safe, cover, stats } = Regions::analyze(map, settings);
+    let fit = fit_regions(safe, cover, settings.budget);
+    let regions = stats;
     let mut notes = Vec::new();
     if fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());

@@ -12,7 +12,12 @@
 //! `visible_min <= opaque_min`); `cover` lies inside the image rectangle.
 
 use crate::mask::Mask;
-use crate::settings::{AlphaThresholds, CutSettings, FilterMode, Wrap};
+use crate::settings::{AlphaThresholds, CutSettings, FilterMode};
+use runs::Row;
+
+#[cfg(test)]
+mod reference;
+pub mod runs;
 use image::DynamicImage;
 
 /// The alpha channel of a layer, row-major, one byte a texel.
@@ -119,184 +124,117 @@ impl Regions {
     /// 2^l half cells, with clamp or repeat addressing beyond the edges.
     pub fn analyze(map: &AlphaMap, settings: &CutSettings) -> Regions {
         let t = settings.alpha;
-        let (w, h) = (map.width as usize, map.height as usize);
-        let region = |min: u8, all: bool| {
-            let texels: Vec<bool> = map.alpha.iter().map(|&a| a >= min).collect();
-            let mut acc: Option<Mask> = None;
-            for level in 0..=settings.filter.mip_levels {
-                let mut m = block_mask(&texels, w, h, level, all);
-                if settings.filter.mode == FilterMode::Bilinear {
-                    let k = 1usize << level; // 2^(l-1) texels = 2^l half cells
-                    m = window_filter(m, k, settings.wrap, all);
-                }
-                match acc.as_mut() {
-                    None => acc = Some(m),
-                    Some(a) if all => a.and_with(&m),
-                    Some(a) => a.or_with(&m),
-                }
-            }
-            acc.expect("level 0 is always built")
-        };
         // the two regions are independent: build them side by side
-        let (safe, cover) = rayon::join(
-            || region(t.opaque_min, true),
-            || region(t.visible_min, false),
+        let ((safe, safe_cells), (cover, cover_cells)) = rayon::join(
+            || region(map, settings, t.opaque_min, true),
+            || region(map, settings, t.visible_min, false),
         );
         let (opaque_texels, partial_texels, transparent_texels) = map.class_counts(t);
         let stats = RegionStats {
             opaque_texels,
             partial_texels,
             transparent_texels,
-            safe_opaque_area: safe.count() as f64 * 0.25,
-            must_cover_area: cover.count() as f64 * 0.25,
+            safe_opaque_area: safe_cells as f64 * 0.25,
+            must_cover_area: cover_cells as f64 * 0.25,
         };
         Regions { safe, cover, stats }
     }
 }
 
-/// Level-`level` block classification expanded to the half grid: a cell is
-/// set when its block is all set (`all`) or has any set texel (`!all`).
-fn block_mask(texels: &[bool], w: usize, h: usize, level: u32, all: bool) -> Mask {
-    let s = 1usize << level;
-    let (bw, bh) = (w.div_ceil(s), h.div_ceil(s));
-    let mut blocks = vec![all; bw * bh];
-    for y in 0..h {
-        for x in 0..w {
-            let b = &mut blocks[(y >> level) * bw + (x >> level)];
-            if all {
-                *b &= texels[y * w + x];
+/// The safe-opaque region (`all`: every texel of a block at least `min`)
+/// or the must-cover region (`!all`: any texel), and its set cells, built
+/// row by row as runs ([`runs`]).
+fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> (Mask, u64) {
+    let (w, h) = (map.width as usize, map.height as usize);
+    let (cw, ch) = (2 * map.width, 2 * map.height);
+    if w == 0 || h == 0 {
+        return (Mask::new(cw as usize, ch as usize, false), 0);
+    }
+    let bilinear = settings.filter.mode == FilterMode::Bilinear;
+    let mut scratch = Row::new();
+    let texel_rows: Vec<Row> = map
+        .alpha
+        .chunks_exact(w)
+        .map(|texels| {
+            let mut r = Row::new();
+            runs::threshold(texels, min, &mut r);
+            r
+        })
+        .collect();
+    // per level, its block rows as cells, filtered along the row
+    let levels: Vec<Vec<Row>> = (0..=settings.filter.mip_levels)
+        .map(|level| {
+            let s = 1usize << level;
+            texel_rows
+                .chunks(s)
+                .map(|rows| {
+                    let mut acc = rows[0].clone();
+                    for r in &rows[1..] {
+                        runs::combine(&mut acc, r, all, &mut scratch);
+                    }
+                    let mut cells = Row::new();
+                    runs::blocks_to_cells(&acc, s as u32, map.width, all, &mut cells);
+                    if bilinear {
+                        // 2^(l-1) texels = 2^l half cells
+                        runs::filter_row(&cells, s as u32, cw, settings.wrap.x(), all, &mut acc);
+                        acc
+                    } else {
+                        cells
+                    }
+                })
+                .collect()
+        })
+        .collect();
+    drop(texel_rows);
+    let mut mask = Mask::new(cw as usize, ch as usize, false);
+    let mut set = 0u64;
+    // per level, the last window's block rows and their combination
+    let mut cache: Vec<([usize; 4], Row)> = vec![([usize::MAX; 4], Row::new()); levels.len()];
+    let mut acc = Row::new();
+    for y in 0..ch {
+        for (level, rows) in levels.iter().enumerate() {
+            let s = 1u32 << level;
+            let block_row = |r: u32| (r / (2 * s)) as usize;
+            let row: &Row = if !bilinear {
+                &rows[block_row(y)]
             } else {
-                *b |= texels[y * w + x];
-            }
-        }
-    }
-    let mut m = Mask::new(2 * w, 2 * h, false);
-    let mut row = vec![0u8; 2 * w];
-    for ty in 0..h {
-        let by = ty >> level;
-        for (x, c) in row.iter_mut().enumerate() {
-            *c = blocks[by * bw + ((x / 2) >> level)] as u8;
-        }
-        m.cells[2 * ty * 2 * w..(2 * ty + 1) * 2 * w].copy_from_slice(&row);
-        m.cells[(2 * ty + 1) * 2 * w..(2 * ty + 2) * 2 * w].copy_from_slice(&row);
-    }
-    m
-}
-
-/// A separable square min (`erode`) or max filter of radius `k` cells, with
-/// clamp-to-edge or repeat addressing per axis. Each line is extended by its
-/// addressing, then every cell takes the AND (erode) or OR (dilate) of its
-/// window: for a small `k` offset by offset over whole lines (which the
-/// compiler vectorizes), for a large one with a running count, so the cost
-/// does not grow with `k`.
-fn window_filter(m: Mask, k: usize, wrap: Wrap, erode: bool) -> Mask {
-    let (w, h) = (m.width, m.height);
-    let win = 2 * k + 1;
-    // `out` (n cells) gets the window of every cell of `ext` (n + 2k cells)
-    let filter = |ext: &[u8], out: &mut [u8]| {
-        let n = out.len();
-        if k <= SMALL_RADIUS {
-            out.copy_from_slice(&ext[..n]);
-            for j in 1..win {
-                let src = &ext[j..j + n];
-                if erode {
-                    out.iter_mut().zip(src).for_each(|(o, &v)| *o &= v);
+                let [(a0, b0), (a1, b1)] = runs::window_rows(y, s, ch, settings.wrap.y());
+                let key = if a1 <= b1 {
+                    [block_row(a0), block_row(b0), block_row(a1), block_row(b1)]
                 } else {
-                    out.iter_mut().zip(src).for_each(|(o, &v)| *o |= v);
-                }
-            }
-        } else {
-            let mut count: usize = ext[..win - 1].iter().map(|&v| v as usize).sum();
-            for x in 0..n {
-                count += ext[x + win - 1] as usize;
-                out[x] = if erode {
-                    (count == win) as u8
-                } else {
-                    (count > 0) as u8
+                    [block_row(a0), block_row(b0), 1, 0]
                 };
-                count -= ext[x] as usize;
-            }
-        }
-    };
-    let index = |i: i64, n: usize, repeat: bool| -> usize {
-        let n = n as i64;
-        (if repeat {
-            i.rem_euclid(n)
-        } else {
-            i.clamp(0, n - 1)
-        }) as usize
-    };
-    // horizontal pass
-    let mut horiz = Mask::new(w, h, false);
-    let mut ext = vec![0u8; w + 2 * k];
-    for y in 0..h {
-        let row = &m.cells[y * w..(y + 1) * w];
-        ext[k..k + w].copy_from_slice(row);
-        for i in 0..k {
-            ext[i] = row[index(i as i64 - k as i64, w, wrap.x())];
-            ext[k + w + i] = row[index((w + i) as i64, w, wrap.x())];
-        }
-        filter(&ext, &mut horiz.cells[y * w..(y + 1) * w]);
-    }
-    // vertical pass: each output row combines the rows of its window, for
-    // a small radius row by row, else with a running count per column
-    // the input is no longer read: its cells take the output
-    let row_of = |i: i64| index(i, h, wrap.y());
-    let mut out = m;
-    if k <= SMALL_RADIUS {
-        for y in 0..h {
-            let o = &mut out.cells[y * w..(y + 1) * w];
-            let first = row_of(y as i64 - k as i64);
-            o.copy_from_slice(&horiz.cells[first * w..(first + 1) * w]);
-            for j in 1..win {
-                let r = row_of(y as i64 - k as i64 + j as i64);
-                let src = &horiz.cells[r * w..(r + 1) * w];
-                if erode {
-                    o.iter_mut().zip(src).for_each(|(o, &v)| *o &= v);
-                } else {
-                    o.iter_mut().zip(src).for_each(|(o, &v)| *o |= v);
+                let (last, combined) = &mut cache[level];
+                if *last != key {
+                    *last = key;
+                    combined.clone_from(&rows[key[0]]);
+                    let more = (key[0] + 1..=key[1]).chain(key[2]..=key[3]);
+                    for b in more {
+                        runs::combine(combined, &rows[b], all, &mut scratch);
+                    }
                 }
+                &cache[level].1
+            };
+            if level == 0 {
+                acc.clone_from(row);
+            } else {
+                runs::combine(&mut acc, row, all, &mut scratch);
             }
         }
-        return out;
-    }
-    let src = &horiz.cells;
-    let mut count = vec![0u32; w];
-    for i in -(k as i64)..k as i64 {
-        let r = row_of(i);
-        for (c, &v) in count.iter_mut().zip(&src[r * w..(r + 1) * w]) {
-            *c += v as u32;
+        let cells = &mut mask.cells[y as usize * cw as usize..(y as usize + 1) * cw as usize];
+        for &[x0, x1] in &acc {
+            cells[x0 as usize..x1 as usize].fill(1);
+            set += (x1 - x0) as u64;
         }
     }
-    for y in 0..h {
-        let add = row_of(y as i64 + k as i64);
-        for (c, &v) in count.iter_mut().zip(&src[add * w..(add + 1) * w]) {
-            *c += v as u32;
-        }
-        for (o, &c) in out.cells[y * w..(y + 1) * w].iter_mut().zip(&count) {
-            *o = if erode {
-                (c == win as u32) as u8
-            } else {
-                (c > 0) as u8
-            };
-        }
-        let sub = row_of(y as i64 - k as i64);
-        for (c, &v) in count.iter_mut().zip(&src[sub * w..(sub + 1) * w]) {
-            *c -= v as u32;
-        }
-    }
-    out
+    (mask, set)
 }
-
-/// Radius up to which [`window_filter`] combines the window offset by
-/// offset rather than with a running count.
-const SMALL_RADIUS: usize = 8;
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::check::regions_for_check;
-    use crate::settings::Filter;
+    use crate::settings::{Filter, Wrap};
 
     /// The builder's separable filters give exactly the regions that the
     /// independent checker derives from the definitions, cell by cell.
@@ -351,6 +289,73 @@ mod tests {
                     ours.cover.cells[i] != 0,
                     "case {case}: cover cell {i} differs ({settings:?})"
                 );
+            }
+        }
+    }
+
+    /// The run-based analysis gives exactly the cell-by-cell transcription
+    /// of the definition ([`reference`]) on random layers, shapes from 1 x 1
+    /// to ones narrower than their mip blocks, every filter, up to five mip
+    /// levels, every addressing mode, and reports the set cells it built.
+    #[test]
+    fn runs_match_the_cell_by_cell_reference() {
+        let mut seed = 2024u64;
+        let mut rnd = move || {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (seed >> 33) as u32
+        };
+        for case in 0..600 {
+            let (w, h) = match case % 5 {
+                0 => (1, 1 + rnd() % 40),
+                1 => (1 + rnd() % 40, 1),
+                _ => (1 + rnd() % 37, 1 + rnd() % 29),
+            };
+            let density = rnd() % 100;
+            let blobs = case % 3 == 0;
+            let alpha: Vec<u8> = (0..w * h)
+                .map(|i| {
+                    if blobs {
+                        // large shapes: long runs and repeated rows
+                        let (x, y) = (i % w, i / w);
+                        if (x / 5 + y / 4) % 3 == 0 {
+                            0
+                        } else {
+                            255
+                        }
+                    } else {
+                        match rnd() % 100 {
+                            r if r < density => 255,
+                            r if r < density + 10 => (rnd() % 255) as u8,
+                            _ => 0,
+                        }
+                    }
+                })
+                .collect();
+            let map = AlphaMap::from_raw(w, h, alpha);
+            let settings = CutSettings {
+                budget: 64,
+                filter: Filter {
+                    mode: if case % 2 == 0 {
+                        FilterMode::Bilinear
+                    } else {
+                        FilterMode::Nearest
+                    },
+                    mip_levels: rnd() % 6,
+                },
+                alpha: AlphaThresholds {
+                    opaque_min: 200 + (rnd() % 56) as u8,
+                    visible_min: 1 + (rnd() % 100) as u8,
+                },
+                wrap: [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy][(rnd() % 4) as usize],
+            };
+            let t = settings.alpha;
+            for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
+                let (ours, set) = region(&map, &settings, min, all);
+                let theirs = reference::region(&map, &settings, min, all);
+                assert_eq!(ours, theirs, "case {case}: {w}x{h} all={all} {settings:?}");
+                assert_eq!(set, theirs.count() as u64);
             }
         }
     }
