@@ -13,13 +13,8 @@ pub fn open_holes(mask: &mut Mask) {
     if w == 0 || h == 0 {
         return;
     }
-    let complement = Mask {
-        width: w,
-        height: h,
-        cells: mask.cells.iter().map(|&c| (c == 0) as u8).collect(),
-    };
-    let labels = complement.run_labels();
-    drop(complement);
+    // the complement's components, from the mask's runs
+    let labels = mask.row_runs().complement().labels();
     let n = labels.count() as usize;
     if n == 0 {
         return;
