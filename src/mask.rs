@@ -418,7 +418,11 @@ mod tests {
             };
             let gaps = runs.complement();
             for y in 0..h {
-                assert_eq!(gaps.row(y), inverted.row_runs().row(y), "case {case} row {y}");
+                assert_eq!(
+                    gaps.row(y),
+                    inverted.row_runs().row(y),
+                    "case {case} row {y}"
+                );
                 for x0 in -2..w as i64 + 2 {
                     for x1 in x0..w as i64 + 3 {
                         let n = (x0.max(0)..x1.min(w as i64))
