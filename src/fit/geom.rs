@@ -60,46 +60,79 @@ pub fn twice_area(poly: &[Point]) -> i64 {
     crate::outline::twice_area(poly)
 }
 
-fn floor_div(n: i64, d: i64) -> i64 {
-    n.div_euclid(d)
-}
-fn ceil_div(n: i64, d: i64) -> i64 {
-    -((-n).div_euclid(d))
-}
-
-/// For each grid row a convex polygon overlaps with positive area, the
-/// half-open span of cells `x0..x1` it overlaps with positive area; exact.
-pub fn convex_row_spans(poly: &[Point], mut f: impl FnMut(i64, i64, i64) -> bool) -> bool {
-    let ymin = poly.iter().map(|p| p[1]).min().unwrap();
-    let ymax = poly.iter().map(|p| p[1]).max().unwrap();
-    let n = poly.len();
-    for y in ymin..ymax {
-        // x-extent of poly ∩ [y, y+1] as rationals, tracked by floor(min) / ceil(max)
-        let mut lo = i64::MAX;
-        let mut hi = i64::MIN;
-        for i in 0..n {
-            let a = poly[i];
-            let b = poly[(i + 1) % n];
-            if a[1] >= y && a[1] <= y + 1 {
-                lo = lo.min(a[0]);
-                hi = hi.max(a[0]);
+/// For each grid row triangle `tri` overlaps with positive area, in order,
+/// the half-open span of cells `x0..x1` it overlaps with positive area;
+/// exact; stops when `f` is false and then returns false.
+///
+/// Over row `y` (the strip between lattice lines `y` and `y + 1`) the
+/// triangle's extent is reached on those two lines: at a vertex on one, or
+/// where an edge crosses one. Each line is visited once; an edge's crossing
+/// `x` is stepped from line to line as a quotient and remainder (no
+/// division per line), rounded down for the span's left end and up for its
+/// right end.
+pub fn triangle_row_spans(tri: &[Point; 3], mut f: impl FnMut(i64, i64, i64) -> bool) -> bool {
+    struct Step {
+        y0: i64,
+        y1: i64,
+        q: i64,
+        r: i64,
+        dq: i64,
+        dr: i64,
+        den: i64,
+    }
+    let mut edges: [Option<Step>; 3] = [None, None, None];
+    for (i, e) in edges.iter_mut().enumerate() {
+        let (a, b) = (tri[i], tri[(i + 1) % 3]);
+        if a[1] == b[1] {
+            continue;
+        }
+        let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
+        let (den, dx) = (q[1] - p[1], q[0] - p[0]);
+        // the crossing of line p.y + 1: x = (p.x * den + dx) / den
+        let num = p[0] * den + dx;
+        *e = Some(Step {
+            y0: p[1],
+            y1: q[1],
+            q: num.div_euclid(den),
+            r: num.rem_euclid(den),
+            dq: dx.div_euclid(den),
+            dr: dx.rem_euclid(den),
+            den,
+        });
+    }
+    let ymin = tri.iter().map(|p| p[1]).min().expect("three points");
+    let ymax = tri.iter().map(|p| p[1]).max().expect("three points");
+    // the extent on line `yl`: vertices on it and edges crossing it
+    let mut line = |yl: i64| -> (i64, i64) {
+        let (mut lo, mut hi) = (i64::MAX, i64::MIN);
+        for p in tri {
+            if p[1] == yl {
+                lo = lo.min(p[0]);
+                hi = hi.max(p[0]);
             }
-            if a[1] == b[1] {
-                continue;
-            }
-            for yl in [y, y + 1] {
-                if (yl > a[1].min(b[1])) && (yl < a[1].max(b[1])) {
-                    let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
-                    let num = p[0] * (q[1] - p[1]) + (yl - p[1]) * (q[0] - p[0]);
-                    let den = q[1] - p[1];
-                    lo = lo.min(floor_div(num, den));
-                    hi = hi.max(ceil_div(num, den));
+        }
+        for s in edges.iter_mut().flatten() {
+            if s.y0 < yl && yl < s.y1 {
+                lo = lo.min(s.q);
+                hi = hi.max(s.q + (s.r != 0) as i64);
+                s.q += s.dq;
+                s.r += s.dr;
+                if s.r >= s.den {
+                    s.r -= s.den;
+                    s.q += 1;
                 }
             }
         }
+        (lo, hi)
+    };
+    let mut above = line(ymin);
+    for y in ymin..ymax {
+        let below = line(y + 1);
+        let (lo, hi) = (above.0.min(below.0), above.1.max(below.1));
         if lo < hi && !f(y, lo, hi) {
             return false;
         }
+        above = below;
     }
     true
 }
@@ -108,10 +141,55 @@ pub fn convex_row_spans(poly: &[Point], mut f: impl FnMut(i64, i64, i64) -> bool
 mod tests {
     use super::*;
 
+    fn floor_div(n: i64, d: i64) -> i64 {
+        n.div_euclid(d)
+    }
+    fn ceil_div(n: i64, d: i64) -> i64 {
+        -((-n).div_euclid(d))
+    }
+
+    /// The definition, line by line with divisions: for each grid row a
+    /// convex polygon overlaps with positive area, the
+    /// half-open span of cells `x0..x1` it overlaps with positive area; exact.
+    fn convex_row_spans(poly: &[Point], mut f: impl FnMut(i64, i64, i64) -> bool) -> bool {
+        let ymin = poly.iter().map(|p| p[1]).min().unwrap();
+        let ymax = poly.iter().map(|p| p[1]).max().unwrap();
+        let n = poly.len();
+        for y in ymin..ymax {
+            // x-extent of poly ∩ [y, y+1] as rationals, tracked by floor(min) / ceil(max)
+            let mut lo = i64::MAX;
+            let mut hi = i64::MIN;
+            for i in 0..n {
+                let a = poly[i];
+                let b = poly[(i + 1) % n];
+                if a[1] >= y && a[1] <= y + 1 {
+                    lo = lo.min(a[0]);
+                    hi = hi.max(a[0]);
+                }
+                if a[1] == b[1] {
+                    continue;
+                }
+                for yl in [y, y + 1] {
+                    if (yl > a[1].min(b[1])) && (yl < a[1].max(b[1])) {
+                        let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
+                        let num = p[0] * (q[1] - p[1]) + (yl - p[1]) * (q[0] - p[0]);
+                        let den = q[1] - p[1];
+                        lo = lo.min(floor_div(num, den));
+                        hi = hi.max(ceil_div(num, den));
+                    }
+                }
+            }
+            if lo < hi && !f(y, lo, hi) {
+                return false;
+            }
+        }
+        true
+    }
+
     #[test]
     fn row_spans_of_right_triangle() {
         let mut rows = Vec::new();
-        convex_row_spans(&[[0, 0], [4, 0], [0, 4]], |y, a, b| {
+        triangle_row_spans(&[[0, 0], [4, 0], [0, 4]], |y, a, b| {
             rows.push((y, a, b));
             true
         });
@@ -126,5 +204,38 @@ mod tests {
         assert!(in_closed_polygon([1, 1], &[[0, 0], [4, 0], [0, 4]]));
         assert!(in_closed_polygon([2, 2], &[[0, 0], [4, 0], [0, 4]]));
         assert!(!in_closed_polygon([3, 3], &[[0, 0], [4, 0], [0, 4]]));
+    }
+
+    /// Stepping the edges gives exactly the spans of the line-by-line
+    /// definition, on random triangles of every shape and orientation,
+    /// degenerate ones included, and stops where `f` says so.
+    #[test]
+    fn stepped_spans_match_the_definition() {
+        let mut seed = 808u64;
+        let mut rnd = move |n: i64| {
+            seed = seed
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            ((seed >> 33) % n as u64) as i64 - n / 2
+        };
+        for case in 0..20000 {
+            let span = [4, 30, 500][case % 3];
+            let tri = [
+                [rnd(span), rnd(span)],
+                [rnd(span), rnd(span)],
+                [rnd(span), rnd(span)],
+            ];
+            let (mut ours, mut theirs) = (Vec::new(), Vec::new());
+            let stop = (case % 7 == 0).then(|| rnd(span));
+            let a = triangle_row_spans(&tri, |y, x0, x1| {
+                ours.push((y, x0, x1));
+                stop != Some(y)
+            });
+            let b = convex_row_spans(&tri, |y, x0, x1| {
+                theirs.push((y, x0, x1));
+                stop != Some(y)
+            });
+            assert_eq!((a, &ours), (b, &theirs), "case {case}: {tri:?}");
+        }
     }
 }

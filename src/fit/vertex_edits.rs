@@ -1,7 +1,7 @@
 //! Edits of one ring at a time: removing a vertex, collapsing an edge; the
 //! topology and containment tests that make them safe.
 
-use super::geom::{convex_row_spans, in_closed_polygon, segments_touch};
+use super::geom::{in_closed_polygon, segments_touch, triangle_row_spans};
 use super::*;
 
 impl Fitter<'_> {
@@ -85,14 +85,14 @@ impl Fitter<'_> {
     /// (opaque) and region loss must avoid the must-cover region (cover).
     pub(super) fn triangle_allowed(&self, class: Class, tri: &[Point; 3], delta: i64) -> bool {
         match (class, delta.signum()) {
-            (Class::Opaque, 1) => convex_row_spans(tri, |y, x0, x1| {
+            (Class::Opaque, 1) => triangle_row_spans(tri, |y, x0, x1| {
                 y >= 0
                     && y < self.size[1]
                     && x0 >= 0
                     && x1 <= self.size[0]
                     && (x1 <= x0 || self.safe.all_set(y as usize, x0 as usize, x1 as usize))
             }),
-            (Class::Cover, -1) => convex_row_spans(tri, |y, x0, x1| {
+            (Class::Cover, -1) => triangle_row_spans(tri, |y, x0, x1| {
                 y < 0 || y >= self.size[1] || self.cover.none_set(y as usize, x0, x1)
             }),
             _ => true,
