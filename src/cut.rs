@@ -6,7 +6,7 @@
 //! of the fast path fails that check, the cut falls back to a plainer mesh
 //! that passes it, and says so in [`CutOutcome::notes`].
 
-use crate::alpha::{AlphaMap, RegionStats, Regions};
+use crate::alpha::{must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
 use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
 use crate::mask::Mask;
@@ -36,25 +36,28 @@ pub struct Outlines {
 /// Analyzes, traces and fits a layer's outlines to `settings.budget`.
 pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     let regions = Regions::analyze(map, settings);
-    let fit = fit_regions(regions.safe.clone(), regions.cover.clone(), settings.budget);
+    let cover = prepare_cover(regions.cover.clone());
+    let fit = fit_safe(regions.safe.clone(), &cover, settings.budget);
     Outlines { regions, fit }
 }
 
-/// Fits the safe and must-cover regions (`safe`, `cover`, consumed: they
-/// are edited in place and freed as soon as they are traced) to `budget`.
-fn fit_regions(mut safe: Mask, mut cover_mask: Mask, budget: usize) -> Fit {
+/// The must-cover region (consumed: its pinches are filled in place),
+/// prepared for fitting.
+fn prepare_cover(mut cover: Mask) -> Prepared {
+    cover.fill_pinches();
+    Prepared::new(&cover, false)
+}
+
+/// Fits the safe region (`safe`, consumed: edited in place and freed once
+/// traced) against the prepared must-cover region to `budget`.
+fn fit_safe(mut safe: Mask, cover: &Prepared, budget: usize) -> Fit {
     safe.remove_pinches();
-    cover_mask.fill_pinches();
-    let (cover, plain) = rayon::join(
-        || Prepared::new(&cover_mask, false),
-        || Prepared::new(&safe, true),
-    );
+    let plain = Prepared::new(&safe, true);
     // An island with more holes than the budget can keep may do better as
     // one ring with notches: then also try the safe region with its holes
     // opened. Each region is fitted with both rankings of large edits; the
-    // best result (opaque area minus covering area) wins. The masks are
-    // not needed once prepared: the opened one is made in place.
-    drop(cover_mask);
+    // best result (opaque area minus covering area) wins. The mask is not
+    // needed once prepared: the opened one is made in place.
     let opened = plain.has_holes().then(|| {
         let mut m = safe;
         open_holes(&mut m);
@@ -69,7 +72,7 @@ fn fit_regions(mut safe: Mask, mut cover_mask: Mask, budget: usize) -> Fit {
     let results: Vec<(i64, Fit)> = variants
         .par_iter()
         .map(|&(safe, cap)| {
-            let mut fitter = Fitter::new(safe, &cover);
+            let mut fitter = Fitter::new(safe, cover);
             fitter.set_cap_savings(cap);
             fitter.fit(budget);
             (fitter.objective(), fitter.result())
@@ -96,11 +99,14 @@ fn fit_regions(mut safe: Mask, mut cover_mask: Mask, budget: usize) -> Fit {
 /// assert_eq!(out.mesh.blended.triangle_count(), 0);
 /// ```
 pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
-    // only the areas are needed once the regions are fitted: their masks
-    // are consumed by the fit and freed before the check
-    let Regions { safe, cover, stats } = Regions::analyze(map, settings);
-    let fit = fit_regions(safe, cover, settings.budget);
-    let regions = stats;
+    // one region's mask at a time: the must-cover one is prepared and freed
+    // before the safe one is built, and that is freed once fitted
+    let (cover_mask, cover_area) = must_cover(map, settings);
+    let cover = prepare_cover(cover_mask);
+    let (safe, safe_area) = safe_opaque(map, settings);
+    let fit = fit_safe(safe, &cover, settings.budget);
+    drop(cover);
+    let regions = RegionStats::new(map, settings.alpha, safe_area, cover_area);
     let mut notes = Vec::new();
     if fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());

@@ -123,22 +123,45 @@ impl Regions {
     /// (a min filter) or dilated (a max filter) by 2^(l-1) texels, i.e.
     /// 2^l half cells, with clamp or repeat addressing beyond the edges.
     pub fn analyze(map: &AlphaMap, settings: &CutSettings) -> Regions {
-        let t = settings.alpha;
         // the two regions are independent: build them side by side
-        let ((safe, safe_cells), (cover, cover_cells)) = rayon::join(
-            || region(map, settings, t.opaque_min, true),
-            || region(map, settings, t.visible_min, false),
-        );
+        let ((safe, safe_area), (cover, cover_area)) =
+            rayon::join(|| safe_opaque(map, settings), || must_cover(map, settings));
+        let stats = RegionStats::new(map, settings.alpha, safe_area, cover_area);
+        Regions { safe, cover, stats }
+    }
+}
+
+impl RegionStats {
+    /// The texel classes of `map` under `t`, with the regions' areas.
+    pub fn new(
+        map: &AlphaMap,
+        t: AlphaThresholds,
+        safe_opaque_area: f64,
+        must_cover_area: f64,
+    ) -> Self {
         let (opaque_texels, partial_texels, transparent_texels) = map.class_counts(t);
-        let stats = RegionStats {
+        RegionStats {
             opaque_texels,
             partial_texels,
             transparent_texels,
-            safe_opaque_area: safe_cells as f64 * 0.25,
-            must_cover_area: cover_cells as f64 * 0.25,
-        };
-        Regions { safe, cover, stats }
+            safe_opaque_area,
+            must_cover_area,
+        }
     }
+}
+
+/// The safe-opaque region alone (as [`Regions::analyze`] builds it) and its
+/// area in texels, for a caller that holds one region at a time.
+pub fn safe_opaque(map: &AlphaMap, settings: &CutSettings) -> (Mask, f64) {
+    let (m, cells) = region(map, settings, settings.alpha.opaque_min, true);
+    (m, cells as f64 * 0.25)
+}
+
+/// The must-cover region alone (as [`Regions::analyze`] builds it) and its
+/// area in texels.
+pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (Mask, f64) {
+    let (m, cells) = region(map, settings, settings.alpha.visible_min, false);
+    (m, cells as f64 * 0.25)
 }
 
 /// The safe-opaque region (`all`: every texel of a block at least `min`)
