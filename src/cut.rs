@@ -9,7 +9,7 @@
 use crate::alpha::{must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
 use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
-use crate::mask::Mask;
+use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
@@ -36,30 +36,30 @@ pub struct Outlines {
 /// Analyzes, traces and fits a layer's outlines to `settings.budget`.
 pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     let regions = Regions::analyze(map, settings);
-    let cover = prepare_cover(regions.cover.clone());
-    let fit = fit_safe(regions.safe.clone(), &cover, settings.budget);
+    let cover = prepare_cover(regions.cover.row_runs());
+    let fit = fit_safe(regions.safe.row_runs(), &cover, settings.budget);
     Outlines { regions, fit }
 }
 
-/// The must-cover region (consumed: its pinches are filled in place),
-/// prepared for fitting.
-fn prepare_cover(mut cover: Mask) -> Prepared {
+/// The must-cover region's runs (consumed: its pinches are filled in
+/// place), prepared for fitting.
+fn prepare_cover(mut cover: RowRuns) -> Prepared {
     cover.fill_pinches();
-    Prepared::new(&cover, false)
+    Prepared::from_runs(cover, false)
 }
 
-/// Fits the safe region (`safe`, consumed: edited in place and freed once
-/// traced) against the prepared must-cover region to `budget`.
-fn fit_safe(mut safe: Mask, cover: &Prepared, budget: usize) -> Fit {
+/// Fits the safe region's runs (consumed) against the prepared must-cover
+/// region to `budget`.
+fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     safe.remove_pinches();
-    let plain = Prepared::new(&safe, true);
+    let plain = Prepared::from_runs(safe, true);
     // An island with more holes than the budget can keep may do better as
     // one ring with notches: then also try the safe region with its holes
-    // opened. Each region is fitted with both rankings of large edits; the
-    // best result (opaque area minus covering area) wins. The mask is not
-    // needed once prepared: the opened one is made in place.
+    // opened (on a mask, made for it and freed once traced). Each region
+    // is fitted with both rankings of large edits; the best result (opaque
+    // area minus covering area) wins.
     let opened = plain.has_holes().then(|| {
-        let mut m = safe;
+        let mut m = plain.runs().to_mask();
         open_holes(&mut m);
         m.remove_pinches();
         Prepared::new(&m, true)
@@ -99,8 +99,8 @@ fn fit_safe(mut safe: Mask, cover: &Prepared, budget: usize) -> Fit {
 /// assert_eq!(out.mesh.blended.triangle_count(), 0);
 /// ```
 pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
-    // one region's mask at a time: the must-cover one is prepared and freed
-    // before the safe one is built, and that is freed once fitted
+    // one region at a time, as runs: the must-cover one is prepared before
+    // the safe one is built
     let (cover_mask, cover_area) = must_cover(map, settings);
     let cover = prepare_cover(cover_mask);
     let (safe, safe_area) = safe_opaque(map, settings);

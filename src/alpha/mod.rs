@@ -11,7 +11,7 @@
 //! Invariants: `safe` ⊂ opaque texels ⊂ visible texels ⊂ `cover` (as long as
 //! `visible_min <= opaque_min`); `cover` lies inside the image rectangle.
 
-use crate::mask::Mask;
+use crate::mask::{Mask, RowRuns};
 use crate::settings::{AlphaThresholds, CutSettings, FilterMode};
 use runs::Row;
 
@@ -127,7 +127,11 @@ impl Regions {
         let ((safe, safe_area), (cover, cover_area)) =
             rayon::join(|| safe_opaque(map, settings), || must_cover(map, settings));
         let stats = RegionStats::new(map, settings.alpha, safe_area, cover_area);
-        Regions { safe, cover, stats }
+        Regions {
+            safe: safe.to_mask(),
+            cover: cover.to_mask(),
+            stats,
+        }
     }
 }
 
@@ -152,26 +156,32 @@ impl RegionStats {
 
 /// The safe-opaque region alone (as [`Regions::analyze`] builds it) and its
 /// area in texels, for a caller that holds one region at a time.
-pub fn safe_opaque(map: &AlphaMap, settings: &CutSettings) -> (Mask, f64) {
-    let (m, cells) = region(map, settings, settings.alpha.opaque_min, true);
-    (m, cells as f64 * 0.25)
+pub fn safe_opaque(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
+    let runs = region(map, settings, settings.alpha.opaque_min, true);
+    let area = runs.cells_set() as f64 * 0.25;
+    (runs, area)
 }
 
 /// The must-cover region alone (as [`Regions::analyze`] builds it) and its
 /// area in texels.
-pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (Mask, f64) {
-    let (m, cells) = region(map, settings, settings.alpha.visible_min, false);
-    (m, cells as f64 * 0.25)
+pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
+    let runs = region(map, settings, settings.alpha.visible_min, false);
+    let area = runs.cells_set() as f64 * 0.25;
+    (runs, area)
 }
 
 /// The safe-opaque region (`all`: every texel of a block at least `min`)
 /// or the must-cover region (`!all`: any texel), and its set cells, built
 /// row by row as runs ([`runs`]).
-fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> (Mask, u64) {
+fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns {
     let (w, h) = (map.width as usize, map.height as usize);
     let (cw, ch) = (2 * map.width, 2 * map.height);
+    let mut out = RowRuns::new(cw as usize);
     if w == 0 || h == 0 {
-        return (Mask::new(cw as usize, ch as usize, false), 0);
+        for _ in 0..ch {
+            out.push_row(&[]);
+        }
+        return out;
     }
     let bilinear = settings.filter.mode == FilterMode::Bilinear;
     let mut scratch = Row::new();
@@ -209,8 +219,6 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> (Mask, 
         })
         .collect();
     drop(texel_rows);
-    let mut mask = Mask::new(cw as usize, ch as usize, false);
-    let mut set = 0u64;
     // per level, the last window's block rows and their combination
     let mut cache: Vec<([usize; 4], Row)> = vec![([usize::MAX; 4], Row::new()); levels.len()];
     let mut acc = Row::new();
@@ -244,13 +252,9 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> (Mask, 
                 runs::combine(&mut acc, row, all, &mut scratch);
             }
         }
-        let cells = &mut mask.cells[y as usize * cw as usize..(y as usize + 1) * cw as usize];
-        for &[x0, x1] in &acc {
-            cells[x0 as usize..x1 as usize].fill(1);
-            set += (x1 - x0) as u64;
-        }
+        out.push_row(&acc);
     }
-    (mask, set)
+    out
 }
 
 #[cfg(test)]
@@ -375,10 +379,14 @@ mod tests {
             };
             let t = settings.alpha;
             for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
-                let (ours, set) = region(&map, &settings, min, all);
+                let ours = region(&map, &settings, min, all);
                 let theirs = reference::region(&map, &settings, min, all);
-                assert_eq!(ours, theirs, "case {case}: {w}x{h} all={all} {settings:?}");
-                assert_eq!(set, theirs.count() as u64);
+                assert_eq!(
+                    ours.to_mask(),
+                    theirs,
+                    "case {case}: {w}x{h} all={all} {settings:?}"
+                );
+                assert_eq!(ours.cells_set(), theirs.count() as u64);
             }
         }
     }

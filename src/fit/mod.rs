@@ -132,7 +132,13 @@ impl Prepared {
     /// Traces `mask` (which must have no pinches); `with_rects` also finds
     /// the islands' largest rectangles (wanted for the safe region).
     pub fn new(mask: &Mask, with_rects: bool) -> Prepared {
-        let labels = mask.run_labels();
+        Prepared::from_runs(mask.row_runs(), with_rects)
+    }
+    /// [`Prepared::new`] from the region's runs (which must have no
+    /// pinches), consumed.
+    pub fn from_runs(runs: RowRuns, with_rects: bool) -> Prepared {
+        let size = [runs.width as i64, runs.height as i64];
+        let labels = runs.labels();
         Prepared {
             rings: crate::outline::trace_runs(&labels),
             rects: if with_rects {
@@ -140,9 +146,13 @@ impl Prepared {
             } else {
                 HashMap::new()
             },
-            size: [mask.width as i64, mask.height as i64],
+            size,
             runs: labels.runs,
         }
+    }
+    /// The region's runs.
+    pub fn runs(&self) -> &RowRuns {
+        &self.runs
     }
     /// Whether the region has a hole.
     pub fn has_holes(&self) -> bool {

@@ -6,6 +6,8 @@
 //! texel, so each such region is exactly a union of half-grid cells.
 //! Lattice coordinates ("half units") are integers: texel x = half / 2.
 
+mod pinches;
+
 /// A binary mask, row-major, one byte a cell (0 or 1).
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct Mask {
@@ -70,81 +72,6 @@ impl Mask {
         }
     }
 
-    /// Removes "pinch" configurations (two cells that touch only at a corner,
-    /// the other two of their 2x2 block empty) by clearing one of them, so
-    /// every lattice point has at most two boundary edges. Only shrinks.
-    pub fn remove_pinches(&mut self) {
-        self.fix_pinches(false)
-    }
-    /// Removes pinches by setting one of the empty cells. Only grows.
-    pub fn fill_pinches(&mut self) {
-        self.fix_pinches(true)
-    }
-    fn fix_pinches(&mut self, grow: bool) {
-        let (w, h) = (self.width, self.height);
-        if w < 2 || h < 2 {
-            return;
-        }
-        // Row-major passes over 2x2 blocks until none changes, as the
-        // definition reads; a pinch needs a change of value between columns
-        // x and x + 1 of row y, so runs of 8 columns without one are skipped
-        // (an edit only changes columns x and x + 1, so a skip decided
-        // before it is never stale). An edit changes only the top row of
-        // its pair, and a pair is processed on rows no edit of the pass has
-        // touched yet; so a pair with no edit in a pass has none in the next
-        // unless one of its rows was edited: after the first pass, only the
-        // pairs next to an edited row are visited (in order, as a full pass
-        // would).
-        let chunk = |row: &[u8], x: usize| -> u64 {
-            u64::from_ne_bytes(row[x..x + 8].try_into().expect("8 bytes"))
-        };
-        let mut pairs: Vec<usize> = (0..h - 1).collect();
-        let mut edited: Vec<usize> = Vec::new();
-        while !pairs.is_empty() {
-            edited.clear();
-            for &y in &pairs {
-                let (top, bottom) = self.cells[y * w..(y + 2) * w].split_at_mut(w);
-                let mut changed = false;
-                let mut x = 0;
-                while x < w - 1 {
-                    if x + 9 <= w && chunk(top, x) == chunk(top, x + 1) {
-                        x += 8;
-                        continue;
-                    }
-                    let (a, b, c, d) = (top[x], top[x + 1], bottom[x], bottom[x + 1]);
-                    if a == d && b == c && a != b {
-                        // diagonal pair
-                        if grow {
-                            if a != 0 {
-                                top[x + 1] = 1;
-                            } else {
-                                top[x] = 1;
-                            }
-                        } else if a != 0 {
-                            top[x] = 0;
-                        } else {
-                            top[x + 1] = 0;
-                        }
-                        changed = true;
-                    }
-                    x += 1;
-                }
-                if changed {
-                    edited.push(y);
-                }
-            }
-            // the pairs holding an edited row (y - 1, y), in order
-            pairs.clear();
-            for &y in &edited {
-                for p in [y.wrapping_sub(1), y] {
-                    if p < h - 1 && pairs.last().is_none_or(|&l| l < p) {
-                        pairs.push(p);
-                    }
-                }
-            }
-        }
-    }
-
     /// The mask's runs of set cells, row by row.
     pub fn row_runs(&self) -> RowRuns {
         let w = self.width;
@@ -203,6 +130,42 @@ pub struct RowRuns {
 }
 
 impl RowRuns {
+    /// No rows yet, `width` cells wide; rows are added with
+    /// [`RowRuns::push_row`].
+    pub fn new(width: usize) -> RowRuns {
+        RowRuns {
+            width,
+            height: 0,
+            starts: vec![0],
+            runs: Vec::new(),
+        }
+    }
+    /// Adds a row below the others: its runs, sorted, maximal, within the
+    /// width.
+    pub fn push_row(&mut self, row: &[[u32; 2]]) {
+        debug_assert!(row.windows(2).all(|p| p[0][1] < p[1][0]));
+        debug_assert!(row
+            .iter()
+            .all(|r| r[0] < r[1] && r[1] as usize <= self.width));
+        self.runs.extend_from_slice(row);
+        self.starts.push(self.runs.len());
+        self.height += 1;
+    }
+    /// Set cells in all rows.
+    pub fn cells_set(&self) -> u64 {
+        self.runs.iter().map(|r| (r[1] - r[0]) as u64).sum()
+    }
+    /// The mask these runs describe.
+    pub fn to_mask(&self) -> Mask {
+        let mut m = Mask::new(self.width, self.height, false);
+        for y in 0..self.height {
+            let row = &mut m.cells[y * self.width..(y + 1) * self.width];
+            for &[x0, x1] in self.row(y) {
+                row[x0 as usize..x1 as usize].fill(1);
+            }
+        }
+        m
+    }
     /// Row `y`'s runs `[x0, x1)` (half-open), left to right.
     #[inline]
     pub fn row(&self, y: usize) -> &[[u32; 2]] {
@@ -473,63 +436,6 @@ mod tests {
                     *a,
                     "case {case}: two of our components are one of theirs"
                 );
-            }
-        }
-    }
-
-    /// Full row-major passes over every 2x2 block until none changes, cell
-    /// by cell: the definition [`Mask::fix_pinches`] shortens.
-    fn fix_pinches_by_full_passes(m: &mut Mask, grow: bool) {
-        let (w, h) = (m.width, m.height);
-        loop {
-            let mut changed = false;
-            for y in 0..h.saturating_sub(1) {
-                for x in 0..w.saturating_sub(1) {
-                    let (a, b) = (m.get(x, y), m.get(x + 1, y));
-                    let (c, d) = (m.get(x, y + 1), m.get(x + 1, y + 1));
-                    if a == d && b == c && a != b {
-                        match (grow, a) {
-                            (true, true) => m.set(x + 1, y, true),
-                            (true, false) => m.set(x, y, true),
-                            (false, true) => m.set(x, y, false),
-                            (false, false) => m.set(x + 1, y, false),
-                        }
-                        changed = true;
-                    }
-                }
-            }
-            if !changed {
-                return;
-            }
-        }
-    }
-
-    /// Pinch removal and filling leave exactly what full passes leave, on
-    /// random masks dense with diagonal pairs, and no pinch behind.
-    #[test]
-    fn pinch_fixes_match_full_passes() {
-        let mut seed = 31337u64;
-        for case in 0..400 {
-            let (w, h) = (1 + case % 23, 1 + case % 9 * 3);
-            let mut m = Mask::new(w, h, false);
-            for (i, c) in m.cells.iter_mut().enumerate() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                // checkerboard-like patches make chains of pinches
-                let checker = ((i % w) + (i / w)) % 2 == 0;
-                *c = if case % 3 == 0 {
-                    checker as u8
-                } else {
-                    ((seed >> 33) % 100 < 50) as u8
-                };
-            }
-            for grow in [false, true] {
-                let mut ours = m.clone();
-                ours.fix_pinches(grow);
-                let mut theirs = m.clone();
-                fix_pinches_by_full_passes(&mut theirs, grow);
-                assert_eq!(ours, theirs, "case {case} grow {grow}: {m:?}");
             }
         }
     }
