@@ -1,10 +1,12 @@
 //! One generated layer through the cut, stage by stage, on one thread.
 //!
-//! The trace/fit split replicates `underdraw::cut::fit_layer` with public
-//! items only: the regions' pinches removed (safe) and filled (cover), both
-//! traced and indexed ([`Prepared::new`]), the safe region also with its
-//! holes opened when it has any; then every variant fitted ([`Fitter`])
-//! with both rankings of large edits and the first of the best kept.
+//! The analysis/trace/fit split replicates `underdraw::cut::cut_layer`'s
+//! path with public items only: each region built as row runs
+//! (`must_cover`, `safe_opaque`), its pinches removed (safe) or filled
+//! (cover) on the runs, traced and indexed ([`Prepared::from_runs`]), the
+//! safe region also with its holes opened when it has any; then every
+//! variant fitted ([`Fitter`]) with both rankings of large edits and the
+//! first of the best kept.
 //!
 //! Invariants: the stages run in pipeline order on the previous stage's
 //! result; before `cut_layer` is measured, nothing but the PNG bytes and
@@ -18,7 +20,8 @@ use super::{heap, measure, Timed};
 use rayon::ThreadPool;
 use std::path::Path;
 use std::time::Instant;
-use underdraw::alpha::Regions;
+use underdraw::alpha::{must_cover, safe_opaque, AlphaMap};
+use underdraw::mask::RowRuns;
 use underdraw::check::check_mesh;
 use underdraw::cut::{cut_layer, fit_layer};
 use underdraw::fit::{open_holes, Class, Fit, Fitter, Prepared};
@@ -83,9 +86,9 @@ pub const PLAIN: &str = "png decode (image crate, reference)";
 /// underdraw's decode.
 pub const DECODE: &str = "decode_layer (decode + alpha)";
 /// Alpha analysis.
-pub const ANALYSIS: &str = "alpha analysis (Regions::analyze)";
+pub const ANALYSIS: &str = "alpha analysis (must_cover + safe_opaque)";
 /// Tracing and indexing.
-pub const TRACE: &str = "pinches + trace + index (Prepared)";
+pub const TRACE: &str = "pinches + trace + index (Prepared::from_runs)";
 /// Fitting.
 pub const FIT: &str = "fit (Fitter::fit, all variants)";
 /// fit_layer whole (below 64 MP).
@@ -103,15 +106,28 @@ struct Traced {
     opened: Option<Prepared>,
 }
 
-fn trace(regions: &Regions) -> Traced {
-    let mut safe = regions.safe.clone();
-    safe.remove_pinches();
+/// The two regions as the cut builds them: runs, one region at a time.
+struct Analyzed {
+    safe: RowRuns,
+    cover: RowRuns,
+}
+
+fn analyze(map: &AlphaMap, settings: &CutSettings) -> Analyzed {
+    Analyzed {
+        cover: must_cover(map, settings).0,
+        safe: safe_opaque(map, settings).0,
+    }
+}
+
+fn trace(regions: &Analyzed) -> Traced {
     let mut cover = regions.cover.clone();
     cover.fill_pinches();
-    let cover = Prepared::new(&cover, false);
-    let plain = Prepared::new(&safe, true);
+    let cover = Prepared::from_runs(cover, false);
+    let mut safe = regions.safe.clone();
+    safe.remove_pinches();
+    let plain = Prepared::from_runs(safe, true);
     let opened = plain.has_holes().then(|| {
-        let mut m = safe.clone();
+        let mut m = plain.runs().to_mask();
         open_holes(&mut m);
         m.remove_pinches();
         Prepared::new(&m, true)
@@ -188,7 +204,7 @@ pub fn bench_layer(
         });
         stages.push((DECODE, decode));
         let map = layer.alpha;
-        let (analysis, regions) = measure(runs, || Regions::analyze(&map, &settings));
+        let (analysis, regions) = measure(runs, || analyze(&map, &settings));
         let (traced_t, traced) = measure(runs, || trace(&regions));
         let (fit_t, (objective, fitted)) = measure(runs, || fit(&traced, settings.budget));
         drop(traced);
