@@ -1,10 +1,12 @@
 //! Convex-polygon geometry for the checker: Sutherland–Hodgman clipping
 //! (the textbook algorithm, from memory), shoelace areas, and areas of a
-//! polygon inside / outside a half-grid mask given as x-runs per row.
+//! polygon inside / outside a half-grid region given as cell runs per row.
 //!
 //! Polygons here are positively oriented (shoelace area > 0 with the
 //! formula A = 1/2 sum(x_i*y_{i+1} - x_{i+1}*y_i)); an edge p -> q then has
 //! the interior where (q - p) x (r - p) >= 0.
+
+use super::runs::Run;
 
 pub(crate) type Pt = [f64; 2];
 
@@ -148,13 +150,27 @@ pub(crate) fn for_rows(poly: &[Pt], rows: usize, mut f: impl FnMut(usize, &[Pt],
     }
 }
 
-/// Area of `piece` (of area `piece_area`) inside the x-runs `runs` (sorted, disjoint).
-pub(crate) fn area_in_runs(piece: &[Pt], piece_area: f64, runs: &[(f64, f64)]) -> f64 {
+/// The x-extent in texels of a run of half-grid cells `[start, end)`.
+pub(crate) fn run_extent(r: Run) -> (f64, f64) {
+    (r[0] as f64 * 0.5, r[1] as f64 * 0.5)
+}
+
+/// The width in texels of a run of half-grid cells, times the row height
+/// (0.5 texel): the run's area. Exact (a multiple of 0.25).
+pub(crate) fn run_width(r: Run) -> f64 {
+    let (x0, x1) = run_extent(r);
+    (x1 - x0) * 0.5
+}
+
+/// Area of `piece` (of area `piece_area`) inside the cell runs `runs` of its
+/// row (sorted, disjoint, in half-grid cells).
+pub(crate) fn area_in_runs(piece: &[Pt], piece_area: f64, runs: &[Run]) -> f64 {
     let b = bbox(piece);
     let (xmin, xmax) = (b[0], b[2]);
-    let first = runs.partition_point(|r| r.1 <= xmin);
+    let first = runs.partition_point(|&r| run_extent(r).1 <= xmin);
     let mut sum = 0.0;
-    for &(x0, x1) in &runs[first..] {
+    for &r in &runs[first..] {
+        let (x0, x1) = run_extent(r);
         if x0 >= xmax {
             break;
         }
@@ -171,29 +187,4 @@ pub(crate) fn area_in_runs(piece: &[Pt], piece_area: f64, runs: &[(f64, f64)]) -
         sum += area(&p);
     }
     sum
-}
-
-/// Each mask row as sorted, maximal x-runs of cells in the mask, in texels.
-pub(crate) fn row_runs(mask: &[bool], gw: usize) -> Vec<Vec<(f64, f64)>> {
-    if gw == 0 {
-        return Vec::new();
-    }
-    mask.chunks(gw)
-        .map(|row| {
-            let mut runs = Vec::new();
-            let mut a = 0;
-            while a < gw {
-                if row[a] {
-                    let start = a;
-                    while a < gw && row[a] {
-                        a += 1;
-                    }
-                    runs.push((start as f64 * 0.5, a as f64 * 0.5));
-                } else {
-                    a += 1;
-                }
-            }
-            runs
-        })
-        .collect()
 }

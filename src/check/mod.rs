@@ -29,6 +29,7 @@
 
 mod geom;
 mod regions;
+mod runs;
 #[cfg(test)]
 mod tests;
 
@@ -358,15 +359,12 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
         }
     }
 
-    // Regions.
-    let (safe, cover, gw, _gh) = regions_for_check(alpha, mesh.filter, mesh.alpha, mesh.wrap);
-    rep.safe_area = safe.iter().filter(|&&s| s).count() as f64 * 0.25;
-    rep.must_cover_area = cover.iter().filter(|&&c| c).count() as f64 * 0.25;
-    let safe_runs = geom::row_runs(&safe, gw);
-    let cover_runs = geom::row_runs(&cover, gw);
-    drop((safe, cover));
+    // Regions, as runs of half-grid cells.
+    let (safe, cover) = regions::region_runs(alpha, mesh.filter, mesh.alpha, mesh.wrap);
+    rep.safe_area = safe.cell_count() as f64 * 0.25;
+    rep.must_cover_area = cover.cell_count() as f64 * 0.25;
     // Mask rows (none for an empty image, even when the grid height is not 0).
-    let rows = safe_runs.len();
+    let rows = safe.height();
     let mut covered_in_row = vec![0.0f64; rows];
     // Opaque area above / below the mask rows is outside S.
     let mask_h = rows as f64 * 0.5;
@@ -400,18 +398,21 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
             geom::for_rows(piece, rows, |row, strip, strip_area| {
                 if t.opaque {
                     rep.opaque_outside_safe +=
-                        strip_area - geom::area_in_runs(strip, strip_area, &safe_runs[row]);
+                        strip_area - geom::area_in_runs(strip, strip_area, safe.row(row));
                 }
-                covered_in_row[row] += geom::area_in_runs(strip, strip_area, &cover_runs[row]);
+                covered_in_row[row] += geom::area_in_runs(strip, strip_area, cover.row(row));
             });
         }
     }
     // Per row, C's area is exact (a multiple of 0.25), so the difference only
     // carries the row's rounding, not the whole image's.
-    let uncovered: f64 = cover_runs
+    let uncovered: f64 = covered_in_row
         .iter()
-        .zip(&covered_in_row)
-        .map(|(runs, covered)| runs.iter().map(|r| (r.1 - r.0) * 0.5).sum::<f64>() - covered)
+        .enumerate()
+        .map(|(row, covered)| {
+            let runs = cover.row(row);
+            runs.iter().map(|r| geom::run_width(*r)).sum::<f64>() - covered
+        })
         .sum();
     rep.uncovered = uncovered.max(0.0);
     rep.opaque_outside_safe = rep.opaque_outside_safe.max(0.0);

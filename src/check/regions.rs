@@ -14,44 +14,23 @@
 //! and the run is widened to whole level-`l` blocks. A level-`l` block is
 //! opaque iff all its texels are, visible iff any is, so "all touched blocks
 //! opaque" is "no non-opaque texel in the widened texel rectangle", and "any
-//! touched block visible" is "some visible texel in it", both answered by a
-//! summed-area table of texel counts.
+//! touched block visible" is "some visible texel in it".
+//!
+//! Both are answered without any per-texel or per-cell table: the grid
+//! rows fall into y-runs that reach the same texel rows; for each y-run,
+//! per-column flags ("a non-opaque texel in these rows", "a visible one")
+//! are OR-ed from those rows, then prefix counts over the flags answer
+//! every x-run of cells. So the work is a few rows per y-run and the
+//! scratch memory is O(width); the result is stored as [`CellRuns`], whose
+//! size follows its runs, not the area. Levels combine row by row: S is the
+//! intersection over levels, C the union.
 //!
 //! Images are assumed to have fewer than 2^32 texels (counts are u32).
 
+use super::runs::{intersect_into, push_merged, union_into, CellRuns, Run};
 use crate::alpha::AlphaMap;
 use crate::settings::{AlphaThresholds, Filter, FilterMode, Wrap};
 use rayon::prelude::*;
-
-/// Summed-area table of one texel predicate.
-struct Counts {
-    w: usize,
-    sums: Vec<u32>,
-}
-
-impl Counts {
-    fn new(alpha: &AlphaMap, pred: impl Fn(u8) -> bool) -> Counts {
-        let (w, h) = (alpha.width as usize, alpha.height as usize);
-        let mut sums = vec![0u32; (w + 1) * (h + 1)];
-        for y in 0..h {
-            let mut row = 0u32;
-            for x in 0..w {
-                row += pred(alpha.alpha[y * w + x]) as u32;
-                sums[(y + 1) * (w + 1) + x + 1] = sums[y * (w + 1) + x + 1].wrapping_add(row);
-            }
-        }
-        Counts { w, sums }
-    }
-
-    /// Texels in the inclusive rectangle `xs` x `ys` for which the predicate holds.
-    fn rect(&self, xs: (usize, usize), ys: (usize, usize)) -> u32 {
-        let s = |x: usize, y: usize| self.sums[y * (self.w + 1) + x];
-        s(xs.1 + 1, ys.1 + 1)
-            .wrapping_sub(s(xs.0, ys.1 + 1))
-            .wrapping_sub(s(xs.1 + 1, ys.0))
-            .wrapping_add(s(xs.0, ys.0))
-    }
-}
 
 /// Image texels (inclusive ranges, at most two) reached on one axis.
 #[derive(Clone, Copy, PartialEq, Eq, Debug)]
@@ -129,21 +108,100 @@ fn axis(n: usize, level: u32, reach: i64, wrap: bool) -> Axis {
     }
 }
 
-/// The safe-opaque region S and the must-cover region C as half-grid masks
-/// (row-major, `grid w = 2W` by `grid h = 2H`, both clipped to the image).
-pub fn regions_for_check(
+/// Per-thread scratch for one y-run: column flags and their prefix counts.
+struct Columns {
+    bad: Vec<u8>,
+    vis: Vec<u8>,
+    bad_sum: Vec<u32>,
+    vis_sum: Vec<u32>,
+}
+
+impl Columns {
+    fn new(w: usize) -> Columns {
+        Columns {
+            bad: vec![0; w],
+            vis: vec![0; w],
+            bad_sum: vec![0; w + 1],
+            vis_sum: vec![0; w + 1],
+        }
+    }
+
+    /// One y-run's row of S_l and of C_l (as maximal cell runs), from the
+    /// texel rows `sy` reaches and the x-axis runs `ax`.
+    fn row(&mut self, alpha: &AlphaMap, t: AlphaThresholds, sy: &Span, ax: &Axis) -> [Vec<Run>; 2] {
+        let w = alpha.width as usize;
+        self.bad.fill(0);
+        self.vis.fill(0);
+        for &(y0, y1) in sy.ranges() {
+            for texels in alpha.alpha[y0 * w..(y1 + 1) * w].chunks_exact(w) {
+                for ((b, v), &a) in self.bad.iter_mut().zip(&mut self.vis).zip(texels) {
+                    *b |= (a < t.opaque_min) as u8;
+                    *v |= (a >= t.visible_min) as u8;
+                }
+            }
+        }
+        for x in 0..w {
+            self.bad_sum[x + 1] = self.bad_sum[x] + self.bad[x] as u32;
+            self.vis_sum[x + 1] = self.vis_sum[x] + self.vis[x] as u32;
+        }
+        let count = |sum: &[u32], sx: &Span| {
+            sx.ranges()
+                .iter()
+                .map(|&(p, q)| sum[q + 1] - sum[p])
+                .sum::<u32>()
+        };
+        let (mut safe, mut cover) = (Vec::new(), Vec::new());
+        for (k, sx) in ax.runs.iter().enumerate() {
+            let (s, e) = (ax.starts[k] as u32, ax.starts[k + 1] as u32);
+            if count(&self.bad_sum, sx) == 0 {
+                push_merged(&mut safe, s, e);
+            }
+            if count(&self.vis_sum, sx) != 0 {
+                push_merged(&mut cover, s, e);
+            }
+        }
+        [safe, cover]
+    }
+}
+
+/// Combines `acc` (one row per grid row, or none yet) with a level's
+/// regions `lvl` (one row per y-run of `ay`), by `op`, row by row.
+fn combine(
+    acc: Option<CellRuns>,
+    lvl: &CellRuns,
+    ay: &Axis,
+    op: fn(&[Run], &[Run], &mut Vec<Run>),
+) -> CellRuns {
+    let mut out = CellRuns::new(lvl.width());
+    let mut tmp = Vec::new();
+    for (b, &k) in ay.cell_run.iter().enumerate() {
+        let same_level_row = b > 0 && ay.cell_run[b - 1] == k;
+        match &acc {
+            None if same_level_row => out.repeat_last(),
+            None => out.push_row(lvl.row(k as usize)),
+            Some(a) if same_level_row && a.shares_previous(b) => out.repeat_last(),
+            Some(a) => {
+                op(a.row(b), lvl.row(k as usize), &mut tmp);
+                out.push_row(&tmp);
+            }
+        }
+    }
+    out
+}
+
+/// The safe-opaque region S and the must-cover region C as runs on the
+/// half grid (`2W` cells a row, `2H` rows; both clipped to the image). An
+/// image with no texels gives regions with no rows.
+pub(crate) fn region_runs(
     alpha: &AlphaMap,
     filter: Filter,
     t: AlphaThresholds,
     wrap: Wrap,
-) -> (Vec<bool>, Vec<bool>, usize, usize) {
+) -> (CellRuns, CellRuns) {
     let (w, h) = (alpha.width as usize, alpha.height as usize);
-    let (gw, gh) = (2 * w, 2 * h);
     if w == 0 || h == 0 {
-        return (Vec::new(), Vec::new(), gw, gh);
+        return (CellRuns::new(2 * w), CellRuns::new(2 * w));
     }
-    let not_opaque = Counts::new(alpha, |a| a < t.opaque_min);
-    let visible = Counts::new(alpha, |a| a >= t.visible_min);
     // From the first level whose single block is the whole image on, every
     // level gives the same regions (all or nothing, whatever r), so stop there.
     let mut top = 0u32;
@@ -151,8 +209,7 @@ pub fn regions_for_check(
         top += 1;
     }
     let last = filter.mip_levels.min(top);
-    let mut safe = vec![true; gw * gh];
-    let mut cover = vec![false; gw * gh];
+    let (mut safe, mut cover): (Option<CellRuns>, Option<CellRuns>) = (None, None);
     for level in 0..=last {
         // r = 2^(l-1) texels = 2^l half-texels under bilinear; 0 under nearest.
         let reach = match filter.mode {
@@ -161,40 +218,33 @@ pub fn regions_for_check(
         };
         let ax = axis(w, level, reach, wrap.x());
         let ay = axis(h, level, reach, wrap.y());
-        let nx = ax.runs.len();
-        let (not_opaque, visible, ax_runs) = (&not_opaque, &visible, &ax.runs);
-        let table: Vec<(bool, bool)> = ay
+        let rows: Vec<[Vec<Run>; 2]> = ay
             .runs
             .par_iter()
-            .flat_map_iter(|sy| {
-                ax_runs.iter().map(move |sx| {
-                    let mut bad = 0u32;
-                    let mut vis = 0u32;
-                    for &xs in sx.ranges() {
-                        for &ys in sy.ranges() {
-                            bad |= not_opaque.rect(xs, ys);
-                            vis |= visible.rect(xs, ys);
-                        }
-                    }
-                    (bad == 0, vis != 0)
-                })
-            })
+            .map_init(|| Columns::new(w), |cols, sy| cols.row(alpha, t, sy, &ax))
             .collect();
-        safe.par_chunks_mut(gw)
-            .zip(cover.par_chunks_mut(gw))
-            .enumerate()
-            .for_each(|(b, (srow, crow))| {
-                let row = &table[ay.cell_run[b] as usize * nx..][..nx];
-                for (k, &(s, c)) in row.iter().enumerate() {
-                    let cells = ax.starts[k]..ax.starts[k + 1];
-                    if !s {
-                        srow[cells.clone()].fill(false);
-                    }
-                    if c {
-                        crow[cells].fill(true);
-                    }
-                }
-            });
+        let (mut lvl_safe, mut lvl_cover) = (CellRuns::new(2 * w), CellRuns::new(2 * w));
+        for [s, c] in &rows {
+            lvl_safe.push_row(s);
+            lvl_cover.push_row(c);
+        }
+        drop(rows);
+        safe = Some(combine(safe, &lvl_safe, &ay, intersect_into));
+        cover = Some(combine(cover, &lvl_cover, &ay, union_into));
     }
-    (safe, cover, gw, gh)
+    (safe.expect("level 0"), cover.expect("level 0"))
+}
+
+/// The safe-opaque region S and the must-cover region C as half-grid masks
+/// (row-major, `grid w = 2W` by `grid h = 2H`, both clipped to the image),
+/// expanded from [`region_runs`]; for tests and tools that want cells.
+pub fn regions_for_check(
+    alpha: &AlphaMap,
+    filter: Filter,
+    t: AlphaThresholds,
+    wrap: Wrap,
+) -> (Vec<bool>, Vec<bool>, usize, usize) {
+    let (w, h) = (alpha.width as usize, alpha.height as usize);
+    let (safe, cover) = region_runs(alpha, filter, t, wrap);
+    (safe.to_mask(), cover.to_mask(), 2 * w, 2 * h)
 }
