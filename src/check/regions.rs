@@ -25,7 +25,8 @@
 //! size follows its runs, not the area. Levels combine row by row: S is the
 //! intersection over levels, C the union.
 //!
-//! Images are assumed to have fewer than 2^32 texels (counts are u32).
+//! Images are assumed to be narrower than 2^31 texels (column counts and
+//! cell indices are u32).
 
 use super::runs::{intersect_into, push_merged, union_into, CellRuns, Run};
 use crate::alpha::AlphaMap;

@@ -7,6 +7,8 @@
 //!   touch or overlap (`end` of one `<` `start` of the next);
 //! * row `b`'s runs are `runs[rows[b][0]..rows[b][1]]`; a row equal to the
 //!   row before it shares that row's range instead of storing its runs again.
+//!
+//! Memory: 8 bytes a row plus 8 bytes a stored run.
 
 /// One half-open run of cells `[start, end)`.
 pub(crate) type Run = [u32; 2];

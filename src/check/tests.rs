@@ -500,6 +500,50 @@ fn regions_match_pointwise_definition() {
     }
 }
 
+/// Random alpha for a `w x h` layer: a mix of transparent, translucent and
+/// opaque texels, denser in opaque ones as `density` grows (0..4).
+fn random_layer(rng: &mut Lcg, w: u32, h: u32, density: u64) -> AlphaMap {
+    let alpha = (0..w * h)
+        .map(|_| [0, 100, 255, 255][(rng.below(4) + density).min(3) as usize])
+        .collect();
+    AlphaMap::from_raw(w, h, alpha)
+}
+
+/// The cases run code is most likely to get wrong, against the same
+/// point-wise definition: one-texel-wide strips (1xN, Nx1), mip levels up
+/// to two beyond the one whose single block covers the image (so blocks
+/// larger than the image, which the checker stops at), with and without
+/// wrap on each axis.
+#[test]
+fn regions_match_pointwise_definition_at_the_edges() {
+    let mut rng = Lcg(31);
+    let mut shapes: Vec<(u32, u32)> = (1..=12).flat_map(|n| [(1, n), (n, 1)]).collect();
+    shapes.extend([(2, 3), (3, 2), (3, 5), (4, 4), (5, 3)]);
+    let mut cases = 0;
+    for &(w, h) in &shapes {
+        // Smallest level whose block covers the image.
+        let top = (0..).find(|&l| (1u32 << l) >= w.max(h)).unwrap();
+        for density in 0..4 {
+            let alpha = random_layer(&mut rng, w, h, density);
+            for mode in [FilterMode::Nearest, FilterMode::Bilinear] {
+                for wrap in [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy] {
+                    let below_top = rng.below(top as u64 + 1) as u32;
+                    for levels in [below_top, top + 1, top + 2] {
+                        let f = filter(mode, levels);
+                        let (s, c, _, _) =
+                            regions_for_check(&alpha, f, AlphaThresholds::default(), wrap);
+                        let (bs, bc) = brute_regions(&alpha, f, wrap);
+                        assert_eq!(s, bs, "safe: {w}x{h} {f:?} {wrap:?} {:?}", alpha.alpha);
+                        assert_eq!(c, bc, "cover: {w}x{h} {f:?} {wrap:?} {:?}", alpha.alpha);
+                        cases += 1;
+                    }
+                }
+            }
+        }
+    }
+    assert_eq!(cases, shapes.len() * 4 * 2 * 4 * 3);
+}
+
 mod reference {
     //! geo crate, reference implementation (geo 0.29 BooleanOps / Area,
     //! polygon boolean operations via i_overlay).
