@@ -238,7 +238,8 @@ pub(crate) fn region_runs(
 
 /// The safe-opaque region S and the must-cover region C as half-grid masks
 /// (row-major, `grid w = 2W` by `grid h = 2H`, both clipped to the image),
-/// expanded from [`region_runs`]; for tests and tools that want cells.
+/// expanded from the run form the checker uses; for tests and tools that
+/// want cells.
 pub fn regions_for_check(
     alpha: &AlphaMap,
     filter: Filter,

@@ -175,7 +175,7 @@ mod tests {
             seed = seed
                 .wrapping_mul(6364136223846793005)
                 .wrapping_add(1442695040888963407);
-            (seed >> 40) % 3 == 0
+            (seed >> 40).is_multiple_of(3)
         };
         let mut out = Vec::new();
         for n in 0..40usize {
