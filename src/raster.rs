@@ -27,7 +27,9 @@
 //! are linear in x, so each bounds the covered x to a half-line found by one
 //! exact floor division; the covered pixels of a row are the intersection,
 //! clipped to the viewport ([`Triangle::span`]). Cost per triangle is one
-//! setup plus three divisions a row, whatever its width.
+//! setup plus three divisions a row, whatever its width; walking the rows
+//! in order ([`Triangle::row_spans`]) steps each bound with additions
+//! instead, with the same result.
 //!
 //! **Quads.** GPUs shade fragments in aligned 2x2 quads, one quad per
 //! triangle (common practice, no source): [`QuadTracker`] counts the
@@ -116,6 +118,112 @@ impl Edge {
     }
 }
 
+/// An edge stepped row by row: the bound it puts on the covered x of a row
+/// is `floor(n / d)` (see [`Edge::stepper`]), kept as quotient `q` and
+/// remainder `r` in [0, d) of `n`, which grows by a constant each row.
+#[derive(Clone, Copy, Debug)]
+struct EdgeStep {
+    /// dy of the edge: > 0 bounds x from above, < 0 from below, 0 all or none.
+    dy: i128,
+    /// floor(n / d), or for a horizontal edge the integer k itself.
+    q: i128,
+    /// n - q d, in [0, d); unused when dy = 0.
+    r: i128,
+    /// d = ONE |dy| (1 for a horizontal edge).
+    d: i128,
+    /// Per row, q grows by dq and r by dr (dr in [0, d)), with a carry.
+    dq: i128,
+    dr: i128,
+}
+
+impl Edge {
+    /// The stepper of this edge from row `y`. For dy != 0, `clip`'s two
+    /// nested divisions fold into one (nested floor divisions by positive
+    /// integers compose: floor(floor(a / b) / c) = floor(a / (b c))): with
+    /// n = k - HALF dy and d = ONE |dy|, the first pixel past the edge is
+    /// floor(n / d) + 1 (dy > 0, an upper bound on x) and the first pixel
+    /// inside is -floor(n / d) (dy < 0, a lower bound). One row further
+    /// adds ONE dx to k, hence to n.
+    fn stepper(&self, y: i128) -> EdgeStep {
+        let py = ONE * y + HALF;
+        let k = self.dx * (py - self.ay) + self.dy * self.ax + self.bias;
+        let step = ONE * self.dx;
+        if self.dy == 0 {
+            return EdgeStep {
+                dy: 0,
+                q: k,
+                r: 0,
+                d: 1,
+                dq: step,
+                dr: 0,
+            };
+        }
+        let n = k - HALF * self.dy;
+        let d = ONE * self.dy.abs();
+        EdgeStep {
+            dy: self.dy,
+            q: floor_div(n, d),
+            r: n.rem_euclid(d),
+            d,
+            dq: floor_div(step, d),
+            dr: step.rem_euclid(d),
+        }
+    }
+}
+
+impl EdgeStep {
+    /// Narrows [lo, hi) to this edge's bound on the current row.
+    fn clip(&self, lo: &mut i128, hi: &mut i128) {
+        if self.dy == 0 {
+            if self.q < 0 {
+                *hi = *lo;
+            }
+        } else if self.dy > 0 {
+            *hi = (*hi).min(self.q + 1);
+        } else {
+            *lo = (*lo).max(-self.q);
+        }
+    }
+
+    /// Moves to the next row: additions and one compare, no division.
+    fn advance(&mut self) {
+        self.q += self.dq;
+        self.r += self.dr;
+        if self.r >= self.d {
+            self.r -= self.d;
+            self.q += 1;
+        }
+    }
+}
+
+/// The spans of a triangle row by row, from [`Triangle::row_spans`].
+#[derive(Clone, Debug)]
+pub struct RowSpans {
+    steps: [EdgeStep; 3],
+    rows: Range<u32>,
+    width: i128,
+}
+
+impl Iterator for RowSpans {
+    type Item = (u32, Range<u32>);
+
+    fn next(&mut self) -> Option<(u32, Range<u32>)> {
+        let y = self.rows.next()?;
+        let (mut lo, mut hi) = (0i128, self.width);
+        for s in &mut self.steps {
+            s.clip(&mut lo, &mut hi);
+            s.advance();
+        }
+        Some((y, if lo < hi { lo as u32..hi as u32 } else { 0..0 }))
+    }
+
+    fn size_hint(&self) -> (usize, Option<usize>) {
+        self.rows.size_hint()
+    }
+}
+
+impl ExactSizeIterator for RowSpans {}
+
 /// A triangle set up for rasterization in a viewport.
 #[derive(Clone, Debug)]
 pub struct Triangle {
@@ -169,6 +277,19 @@ impl Triangle {
             }
         }
         lo as u32..hi as u32
+    }
+
+    /// Every row of [`Triangle::rows`] with its span, in increasing y:
+    /// exactly `(y, self.span(y))`, but each edge's bound is stepped from
+    /// row to row with integer additions (one division per edge to set up,
+    /// none per row).
+    pub fn row_spans(&self) -> RowSpans {
+        let y = self.rows.start as i128;
+        RowSpans {
+            steps: self.edges.map(|e| e.stepper(y)),
+            rows: self.rows.clone(),
+            width: self.width as i128,
+        }
     }
 }
 
@@ -260,6 +381,50 @@ mod tests {
         assert!(Triangle::new([0.0, 0.0], [4.0, 4.0001], [8.0, 8.0], [10, 10]).is_none());
         assert!(Triangle::new([0.0, 20.0], [4.0, 20.0], [0.0, 30.0], [10, 10]).is_none());
         assert!(Triangle::new([0.0, 0.0], [4.0, 0.0], [0.0, 4.0], [0, 10]).is_none());
+    }
+
+    /// A coordinate in pixels, on the 1/256 grid so snapping keeps it:
+    /// mostly pixel corners and centres (where the top-left rule decides
+    /// ties), some anywhere, some far off screen.
+    fn coord() -> impl proptest::strategy::Strategy<Value = f32> {
+        use proptest::prelude::*;
+        prop_oneof![
+            (-4i32..28).prop_map(|v| v as f32),
+            (-4i32..28).prop_map(|v| v as f32 + 0.5),
+            (-1024i32..7168).prop_map(|v| v as f32 / 256.0),
+            (-3i32..4).prop_map(|v| v as f32 * 1e6),
+        ]
+    }
+
+    proptest::proptest! {
+        #![proptest_config(proptest::prelude::ProptestConfig::with_cases(4000))]
+        /// `row_spans` steps what `span` computes afresh each row: the two
+        /// must agree on every row, for either winding, on edges through
+        /// pixel centres (top-left ties), and for triangles reaching far
+        /// off screen. The viewport is small so rows are clipped often.
+        #[test]
+        fn row_spans_equal_span_on_every_row(
+            p in proptest::array::uniform6(coord()),
+            w in 1u32..24,
+            h in 1u32..24,
+        ) {
+            let Some(t) = Triangle::new([p[0], p[1]], [p[2], p[3]], [p[4], p[5]], [w, h]) else {
+                return Ok(());
+            };
+            let stepped: Vec<_> = t.row_spans().collect();
+            let direct: Vec<_> = t.rows().map(|y| (y, t.span(y))).collect();
+            proptest::prop_assert_eq!(stepped, direct);
+        }
+    }
+
+    #[test]
+    fn row_spans_follow_the_top_left_rule_at_centres() {
+        // Right triangle with its legs through pixel centres: top edge
+        // y = 1/2 and left edge x = 1/2 covered, the hypotenuse x + y = 4
+        // (a right edge, centres on it) not (Direct3D 11 rules, from memory).
+        let t = Triangle::new([0.5, 0.5], [3.5, 0.5], [0.5, 3.5], [6, 6]).unwrap();
+        let got: Vec<_> = t.row_spans().filter(|(_, s)| !s.is_empty()).collect();
+        assert_eq!(got, vec![(0, 0..3), (1, 0..2), (2, 0..1)]);
     }
 
     #[test]

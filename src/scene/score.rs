@@ -1,5 +1,8 @@
-//! Scoring a scene: every strategy at every camera sample rendered on the
-//! simulated GPU ([`crate::frame::render`]), summed per frame and per layer.
+//! Scoring a scene: every strategy at every camera sample drawn on the
+//! simulated GPU, summed per frame and per layer. Scores need only totals,
+//! so frames are measured by spans ([`crate::frame::measure`], exactly the
+//! totals of [`crate::frame::render`] without per-pixel buffers);
+//! [`render_frame`] keeps the per-pixel counts, for heatmaps.
 //!
 //! Overdraw is fragments shaded per viewport pixel. A strategy's **mean**
 //! overdraw is the mean over the camera samples of each frame's overdraw,
@@ -9,7 +12,7 @@
 
 use super::draws::{frame_draws, Strategy};
 use super::file::{LayerSpec, Scene};
-use crate::frame::{render, FrameResult};
+use crate::frame::{render, FrameResult, SpanBuffer};
 use crate::mesh::LayerMesh;
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
@@ -79,7 +82,7 @@ pub fn render_frame(
     )
 }
 
-/// Renders every strategy at every camera position, in parallel.
+/// Measures every strategy at every camera position, in parallel.
 pub fn score_frames(
     strategies: &[Strategy],
     specs: &[LayerSpec],
@@ -110,9 +113,9 @@ pub fn score_frames_with(
         .flat_map(|&s| (0..cameras.len()).map(move |k| (s, k)))
         .collect();
     jobs.par_iter()
-        .map(|&(strategy, sample)| {
+        .map_init(SpanBuffer::new, |buf, &(strategy, sample)| {
             let draws = frame_draws(strategy, specs, meshes, viewport, cameras[sample]);
-            let r = render(viewport, &draws);
+            let r = buf.measure(viewport, &draws);
             let mut per_layer = vec![Work::default(); specs.len()];
             for (d, st) in draws.iter().zip(&r.per_draw) {
                 per_layer[index[d.layer.as_str()]].add(&Work {
@@ -131,7 +134,7 @@ pub fn score_frames_with(
                 sample,
                 total,
                 per_layer,
-                max_pixel: r.counts.iter().copied().max().unwrap_or(0),
+                max_pixel: r.max_pixel,
             }
         })
         .collect()

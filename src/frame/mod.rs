@@ -26,6 +26,17 @@
 //! * **Blending** changes no count; `blend` is carried for the record.
 //!
 //! `counts` in the result holds, per pixel, the fragments shaded there.
+//!
+//! [`spans::measure`] computes the same numbers (every [`DrawStats`] and the
+//! most fragments at one pixel) without per-pixel buffers, from runs of
+//! equal depth and count per row; scoring uses it, images use [`render`].
+
+pub mod spans;
+
+#[cfg(test)]
+mod measure_props;
+
+pub use spans::{measure, FrameStats, SpanBuffer};
 
 use crate::raster::{QuadTracker, Triangle};
 use serde::{Deserialize, Serialize};
@@ -88,14 +99,14 @@ impl Draw {
         Ok(())
     }
 
-    fn vertex(&self, i: u32) -> [f32; 2] {
+    pub(crate) fn vertex(&self, i: u32) -> [f32; 2] {
         let i = i as usize * 2;
         [self.positions[i], self.positions[i + 1]]
     }
 
     /// Distinct indices referenced (vertex shader invocations with a perfect
     /// post-transform cache).
-    fn distinct_vertices(&self) -> u64 {
+    pub(crate) fn distinct_vertices(&self) -> u64 {
         let mut seen = vec![false; self.positions.len() / 2];
         let mut n = 0;
         for &i in &self.indices {
