@@ -250,8 +250,18 @@ fn update_row(
     let (a, b) = (span.start, span.end);
     // row[0].start = 0 <= a, so the stretch holding a exists
     let i = row.partition_point(|s| s.start <= a) - 1;
-    // stretches i..j meet the span; j, if any, starts at or after b
-    let j = i + row[i..].partition_point(|s| s.start < b);
+    // stretches i..j meet the span; j, if any, starts at or after b (a
+    // span meets few stretches: walk, don't search)
+    let mut j = i + 1;
+    let mut any = !d.test || d.depth < row[i].depth;
+    while j < row.len() && row[j].start < b {
+        any |= !d.test || d.depth < row[j].depth;
+        j += 1;
+    }
+    if !any {
+        // every pixel fails the depth test: nothing changes
+        return 0;
+    }
     // rewrite one more stretch on each side, so that equal neighbours merge
     let lo = i.saturating_sub(1);
     let hi = (j + 1).min(row.len());
