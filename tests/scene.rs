@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
 use underdraw::check::check_mesh;
-use underdraw::frame::render;
+use underdraw::frame::{measure, render};
 use underdraw::io::{load_alpha, load_mesh};
 use underdraw::scene::run::load_frame_dump;
 
@@ -203,6 +203,34 @@ fn dumped_counts_are_the_replayed_draws() {
     assert!(split[first_blended..]
         .iter()
         .all(|d| d.blend && d.depth_test && !d.depth_write));
+}
+
+#[test]
+fn measured_totals_are_the_rendered_ones_on_the_demo_frames() {
+    // Scoring measures frames by spans (frame::measure) while the heatmaps
+    // and dumps render them per pixel: on the demo's real meshes, at the
+    // dumped camera sample and shifted by fractions of a pixel (off the
+    // placements the scene produces), both must give the same totals.
+    let run = demo();
+    let dump = load_frame_dump(&run.out.join(format!("frame-{DUMPED}.json"))).unwrap();
+    for (name, frame) in &dump.strategies {
+        for shift in [[0.0f32, 0.0], [0.3, 0.0], [-17.5, 0.25], [0.125, -3.7]] {
+            let mut draws = frame.draws.clone();
+            for d in &mut draws {
+                for p in d.positions.chunks_exact_mut(2) {
+                    p[0] += shift[0];
+                    p[1] += shift[1];
+                }
+            }
+            let (m, r) = (
+                measure(dump.viewport, &draws),
+                render(dump.viewport, &draws),
+            );
+            assert_eq!(m.per_draw, r.per_draw, "{name} shifted by {shift:?}");
+            assert_eq!(m.max_pixel, r.counts.iter().copied().max().unwrap());
+            assert!(m.total.lanes > 0);
+        }
+    }
 }
 
 #[test]
