@@ -4,8 +4,9 @@
 //! * [`file`](mod@file): the scene file and its validation ([`file::load_scene`]).
 //! * [`prepare`]: each layer's mesh, cut on the fly or read from a file.
 //! * [`draws`]: the draws of a frame per [`draws::Strategy`] and camera position.
-//! * [`score`]: every strategy at every camera sample rendered with
-//!   [`crate::frame::render`], summarized per strategy and per layer.
+//! * [`score`]: every strategy at every camera sample measured with
+//!   [`crate::frame::measure`] (the totals of [`crate::frame::render`]
+//!   without per-pixel buffers), summarized per strategy and per layer.
 //! * [`budget`]: the budget per layer for a vertex total, by marginal gain.
 //! * [`report`], [`run`]: the `underdraw scene` command's report and outputs.
 //! * [`html`]: the report as a self-contained web page (`scene --report DIR`).
