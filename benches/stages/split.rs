@@ -21,11 +21,11 @@ use rayon::ThreadPool;
 use std::path::Path;
 use std::time::Instant;
 use underdraw::alpha::{must_cover, safe_opaque, AlphaMap};
-use underdraw::mask::RowRuns;
 use underdraw::check::check_mesh;
 use underdraw::cut::{cut_layer, fit_layer};
 use underdraw::fit::{open_holes, Class, Fit, Fitter, Prepared};
 use underdraw::io::{decode_layer, write_atomic, ImageLimits};
+use underdraw::mask::RowRuns;
 use underdraw::settings::CutSettings;
 use underdraw::triangulate::triangulate;
 
