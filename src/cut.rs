@@ -61,8 +61,10 @@ fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     let opened = plain.has_holes().then(|| {
         let mut m = plain.runs().to_mask();
         open_holes(&mut m);
-        m.remove_pinches();
-        Prepared::new(&m, true)
+        let mut runs = m.row_runs();
+        drop(m);
+        runs.remove_pinches();
+        Prepared::from_runs(runs, true)
     });
     let mut variants: Vec<(&Prepared, bool)> = vec![(&plain, true), (&plain, false)];
     if let Some(o) = &opened {

@@ -129,8 +129,10 @@ fn trace(regions: &Analyzed) -> Traced {
     let opened = plain.has_holes().then(|| {
         let mut m = plain.runs().to_mask();
         open_holes(&mut m);
-        m.remove_pinches();
-        Prepared::new(&m, true)
+        let mut runs = m.row_runs();
+        drop(m);
+        runs.remove_pinches();
+        Prepared::from_runs(runs, true)
     });
     Traced {
         cover,
