@@ -65,7 +65,7 @@ impl Fitter<'_> {
         }
     }
     pub(super) fn saved_by_removing(&self, ids: &[u32]) -> i64 {
-        let mut count: HashMap<Point, u32> = HashMap::new();
+        let mut count: PointMap<u32> = PointMap::default();
         for &v in ids {
             *count.entry(self.verts[v as usize].p).or_insert(0) += 1;
         }
@@ -95,7 +95,7 @@ impl Fitter<'_> {
 
     /// Distinct vertices saved by removing vertices `ids` and adding points `new`.
     pub(super) fn saved_by_swapping(&self, ids: &[u32], new: &[Point]) -> i64 {
-        let mut count: HashMap<Point, u32> = HashMap::new();
+        let mut count: PointMap<u32> = PointMap::default();
         for &v in ids {
             *count.entry(self.verts[v as usize].p).or_insert(0) += 1;
         }

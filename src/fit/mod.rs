@@ -43,6 +43,11 @@ use grid::BucketGrid;
 use queue::{Cand, Eval};
 use std::collections::{BinaryHeap, HashMap};
 
+/// A map keyed by lattice points with a fast, fixed-seed hasher (the
+/// fitter looks points up on every candidate it weighs; no result depends
+/// on a map's order).
+pub(crate) type PointMap<V> = HashMap<Point, V, foldhash::fast::FixedState>;
+
 /// Which region a ring bounds.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Class {
@@ -166,7 +171,7 @@ pub struct Fitter<'a> {
     rings: Vec<RingState>,
     comps: Vec<Comp>,
     grids: [BucketGrid; 2],
-    refs: HashMap<Point, u32>,
+    refs: PointMap<u32>,
     distinct: usize,
     safe: &'a RowRuns,
     cover: &'a RowRuns,
@@ -189,7 +194,7 @@ impl<'a> Fitter<'a> {
                 BucketGrid::new(size[0], size[1]),
                 BucketGrid::new(size[0], size[1]),
             ],
-            refs: HashMap::new(),
+            refs: PointMap::default(),
             distinct: 0,
             safe: &opaque.runs,
             cover: &cover.runs,
