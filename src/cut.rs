@@ -8,7 +8,7 @@
 
 use crate::alpha::{must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
-use crate::fit::{open_holes, Class, Fit, Fitter, Prepared};
+use crate::fit::{open_holes_in_runs, Class, Fit, Fitter, Prepared};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
@@ -55,14 +55,10 @@ fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     let plain = Prepared::from_runs(safe, true);
     // An island with more holes than the budget can keep may do better as
     // one ring with notches: then also try the safe region with its holes
-    // opened (on a mask, made for it and freed once traced). Each region
-    // is fitted with both rankings of large edits; the best result (opaque
-    // area minus covering area) wins.
+    // opened (on its runs). Each region is fitted with both rankings of
+    // large edits; the best result (opaque area minus covering area) wins.
     let opened = plain.has_holes().then(|| {
-        let mut m = plain.runs().to_mask();
-        open_holes(&mut m);
-        let mut runs = m.row_runs();
-        drop(m);
+        let mut runs = open_holes_in_runs(plain.runs());
         runs.remove_pinches();
         Prepared::from_runs(runs, true)
     });

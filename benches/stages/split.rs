@@ -23,7 +23,7 @@ use std::time::Instant;
 use underdraw::alpha::{must_cover, safe_opaque, AlphaMap};
 use underdraw::check::check_mesh;
 use underdraw::cut::{cut_layer, fit_layer};
-use underdraw::fit::{open_holes, Class, Fit, Fitter, Prepared};
+use underdraw::fit::{open_holes_in_runs, Class, Fit, Fitter, Prepared};
 use underdraw::io::{decode_layer, write_atomic, ImageLimits};
 use underdraw::mask::RowRuns;
 use underdraw::settings::CutSettings;
@@ -127,10 +127,7 @@ fn trace(regions: &Analyzed) -> Traced {
     safe.remove_pinches();
     let plain = Prepared::from_runs(safe, true);
     let opened = plain.has_holes().then(|| {
-        let mut m = plain.runs().to_mask();
-        open_holes(&mut m);
-        let mut runs = m.row_runs();
-        drop(m);
+        let mut runs = open_holes_in_runs(plain.runs());
         runs.remove_pinches();
         Prepared::from_runs(runs, true)
     });

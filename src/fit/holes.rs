@@ -5,20 +5,18 @@
 //! within the budget may then still keep most of its area as one ring with
 //! notches, instead of being dropped whole.
 
-use crate::mask::Mask;
+use crate::mask::{Mask, RowRuns};
 
-/// Opens every hole of `mask` (see the module docs).
-pub fn open_holes(mask: &mut Mask) {
-    let (w, h) = (mask.width, mask.height);
-    if w == 0 || h == 0 {
-        return;
-    }
-    // the complement's components, from the mask's runs
-    let labels = mask.row_runs().complement().labels();
+/// A hole's bounding box `(x0, y0, x1, y1)`, inclusive, in cells.
+type HoleBox = (usize, usize, usize, usize);
+
+/// The bounding boxes of the holes of the region `runs` describes (the
+/// components of its complement that touch no border), in the order of
+/// their first cells.
+fn hole_boxes(runs: &RowRuns) -> Vec<HoleBox> {
+    let (w, h) = (runs.width, runs.height);
+    let labels = runs.complement().labels();
     let n = labels.count() as usize;
-    if n == 0 {
-        return;
-    }
     // per label: bounding box and whether it touches the border
     let mut boxes = vec![(usize::MAX, usize::MAX, 0usize, 0usize, false); n + 1];
     for y in 0..h {
@@ -32,32 +30,176 @@ pub fn open_holes(mask: &mut Mask) {
             b.4 |= x0 == 0 || y == 0 || x1 == w || y == h - 1;
         }
     }
-    drop(labels);
-    for &(x0, y0, x1, y1, border) in boxes.iter().skip(1) {
-        if border || x0 == usize::MAX {
-            continue;
-        }
+    boxes
+        .into_iter()
+        .skip(1)
+        .filter(|&(x0, _, _, _, border)| !border && x0 != usize::MAX)
+        .map(|(x0, y0, x1, y1, _)| (x0, y0, x1, y1))
+        .collect()
+}
+
+/// What opening holes needs of a region's cells.
+trait Cells {
+    /// [`walk`] on these cells.
+    fn walk(&mut self, bx: HoleBox, dir: u8, limit: usize, apply: bool) -> usize;
+    /// Clears every cell of the box.
+    fn clear_box(&mut self, bx: HoleBox);
+}
+
+/// Opens the holes `boxes` of `cells`, one after the other.
+fn open_boxes(cells: &mut impl Cells, boxes: &[HoleBox]) {
+    for &bx in boxes {
         // cells to clear in each direction: walk out of the box until a
         // clear cell. Each line of the walk reads only its own cells, each
-        // before it clears it, so it can clear the mask it walks.
-        // the along-row walks first (they read contiguous cells), then the
-        // others stopped once they pass the best so far: a walk stopped
-        // past the best cannot be the least, so the choice is the least
-        // count, the first direction on a tie, as if all were walked out
-        let bx = (x0, y0, x1, y1);
+        // before it clears it, so it can clear the cells it walks.
+        // The along-row walks first (they are cheapest), then the others
+        // stopped once they pass the best so far: a walk stopped past the
+        // best cannot be the least, so the choice is the least count, the
+        // first direction on a tie, as if all were walked out
         let mut best: Option<(usize, u8)> = None;
         for d in [2u8, 3, 0, 1] {
             let limit = best.map_or(usize::MAX, |(c, _)| c);
-            let c = walk(mask, bx, d, limit, false);
+            let c = cells.walk(bx, d, limit, false);
             if best.is_none_or(|(bc, bd)| c < bc || (c == bc && d < bd)) {
                 best = Some((c, d));
             }
         }
         let (_, best) = best.expect("four directions");
-        walk(mask, bx, best, usize::MAX, true);
+        cells.walk(bx, best, usize::MAX, true);
         // the box itself: clear it so the channel meets the hole everywhere
+        cells.clear_box(bx);
+    }
+}
+
+/// Opens every hole of `mask` (see the module docs).
+pub fn open_holes(mask: &mut Mask) {
+    if mask.width == 0 || mask.height == 0 {
+        return;
+    }
+    let boxes = hole_boxes(&mask.row_runs());
+    open_boxes(mask, &boxes);
+}
+
+/// [`open_holes`] on a region's runs, with no mask: the same cells cleared.
+pub fn open_holes_in_runs(runs: &RowRuns) -> RowRuns {
+    let boxes = hole_boxes(runs);
+    let mut rows = RunRows {
+        rows: (0..runs.height).map(|y| runs.row(y).to_vec()).collect(),
+        width: runs.width,
+    };
+    open_boxes(&mut rows, &boxes);
+    let mut out = RowRuns::new(runs.width);
+    for r in &rows.rows {
+        out.push_row(r);
+    }
+    out
+}
+
+impl Cells for Mask {
+    fn walk(&mut self, bx: HoleBox, dir: u8, limit: usize, apply: bool) -> usize {
+        walk(self, bx, dir, limit, apply)
+    }
+    fn clear_box(&mut self, (x0, y0, x1, y1): HoleBox) {
+        let w = self.width;
         for y in y0..=y1 {
-            mask.cells[y * w + x0..=y * w + x1].fill(0);
+            self.cells[y * w + x0..=y * w + x1].fill(0);
+        }
+    }
+}
+
+/// A region as one editable list of runs a row.
+struct RunRows {
+    rows: Vec<Vec<[u32; 2]>>,
+    width: usize,
+}
+
+impl RunRows {
+    /// The run of row `y` holding cell `x`, if it is set.
+    fn run_at(&self, x: usize, y: usize) -> Option<[u32; 2]> {
+        let row = &self.rows[y];
+        let i = row.partition_point(|r| r[1] as usize <= x);
+        row.get(i).copied().filter(|r| r[0] as usize <= x)
+    }
+    /// Clears cells `a..b` of row `y`.
+    fn clear(&mut self, y: usize, a: u32, b: u32) {
+        let row = &mut self.rows[y];
+        let i = row.partition_point(|r| r[1] <= a);
+        let j = i + row[i..].iter().take_while(|r| r[0] < b).count();
+        if i == j {
+            return;
+        }
+        let (first, last) = (row[i], row[j - 1]);
+        let mut keep = Vec::with_capacity(2);
+        if first[0] < a {
+            keep.push([first[0], a]);
+        }
+        if last[1] > b {
+            keep.push([b, last[1]]);
+        }
+        row.splice(i..j, keep);
+    }
+}
+
+impl Cells for RunRows {
+    fn walk(&mut self, (x0, y0, x1, y1): HoleBox, dir: u8, limit: usize, apply: bool) -> usize {
+        let mut count = 0;
+        if dir >= 2 {
+            // along the rows: the run next to the box's side, read whole
+            for y in y0..=y1 {
+                let next = if dir == 2 {
+                    x0.checked_sub(1)
+                } else {
+                    Some(x1 + 1)
+                };
+                let Some(r) = next
+                    .filter(|&x| x < self.width)
+                    .and_then(|x| self.run_at(x, y))
+                else {
+                    continue;
+                };
+                let (a, b) = if dir == 2 {
+                    (r[0], x0 as u32)
+                } else {
+                    ((x1 + 1) as u32, r[1])
+                };
+                count += (b - a) as usize;
+                if count > limit {
+                    return count;
+                }
+                if apply {
+                    self.clear(y, a, b);
+                }
+            }
+            return count;
+        }
+        // down the columns, cell by cell
+        let h = self.rows.len();
+        for x in x0..=x1 {
+            let mut y = if dir == 0 {
+                y0.checked_sub(1)
+            } else {
+                Some(y1 + 1)
+            };
+            while let Some(yy) = y.filter(|&yy| yy < h && self.run_at(x, yy).is_some()) {
+                count += 1;
+                if count > limit {
+                    return count;
+                }
+                if apply {
+                    self.clear(yy, x as u32, x as u32 + 1);
+                }
+                y = if dir == 0 {
+                    yy.checked_sub(1)
+                } else {
+                    Some(yy + 1)
+                };
+            }
+        }
+        count
+    }
+    fn clear_box(&mut self, (x0, y0, x1, y1): HoleBox) {
+        for y in y0..=y1 {
+            self.clear(y, x0 as u32, x1 as u32 + 1);
         }
     }
 }
@@ -152,7 +294,7 @@ mod tests {
     }
 
     /// Stopping walks early and reading the holes off the runs opens
-    /// exactly the channels full walks open, on random masks full of holes
+    /// exactly the channels full walks open, on the mask and on its runs, on random masks full of holes
     /// and with ties between directions.
     #[test]
     fn bounded_walks_open_like_full_walks() {
@@ -171,6 +313,8 @@ mod tests {
             let mut theirs = m.clone();
             open_holes_by_full_walks(&mut theirs);
             assert_eq!(ours, theirs, "case {case}: {m:?}");
+            let on_runs = open_holes_in_runs(&m.row_runs());
+            assert_eq!(on_runs.to_mask(), theirs, "case {case}, on runs: {m:?}");
         }
     }
 }

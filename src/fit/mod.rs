@@ -33,7 +33,7 @@ mod queue;
 mod rects;
 mod vertex_edits;
 
-pub use holes::open_holes;
+pub use holes::{open_holes, open_holes_in_runs};
 
 pub use geom::orient;
 
