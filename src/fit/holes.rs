@@ -1,7 +1,11 @@
 //! Opening the holes of the safe region: each hole (a bounded part of the
-//! complement) is joined to the outside by a straight channel as wide as the
-//! hole, in whichever of the four directions clears the fewest safe cells.
-//! Only ever shrinks the mask. An island whose holes cannot all be kept
+//! complement), in the order of their first cells, gets a straight channel
+//! as wide as the hole, in whichever of the four directions clears the
+//! fewest safe cells, each line of it up to the first clear cell. That cell
+//! is the outside or another hole, whose own channel usually leads out; two
+//! holes whose channels lead into each other stay enclosed (rare; the
+//! opened region is only a candidate the fitter weighs, the contract does
+//! not depend on it). Only ever shrinks the mask. An island whose holes cannot all be kept
 //! within the budget may then still keep most of its area as one ring with
 //! notches, instead of being dropped whole.
 
@@ -71,7 +75,7 @@ fn open_boxes(cells: &mut impl Cells, boxes: &[HoleBox]) {
     }
 }
 
-/// Opens every hole of `mask` (see the module docs).
+/// Opens the holes of `mask` (see the module docs).
 pub fn open_holes(mask: &mut Mask) {
     if mask.width == 0 || mask.height == 0 {
         return;
