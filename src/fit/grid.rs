@@ -7,12 +7,33 @@ use crate::outline::Point;
 /// Side of a bucket, half-texel units.
 pub const CELL: i64 = 32;
 
-/// Vertex ids and edges (pairs of vertex ids) filed by bucket.
+/// Vertex ids and edges (pairs of vertex ids) filed by bucket, each with
+/// its position(s), so a query can pass over entries that cannot meet it
+/// without reading the vertices (a vertex's position never changes: an
+/// edit that moves a corner makes a new vertex).
 pub struct BucketGrid {
     cols: i64,
     rows: i64,
-    verts: Vec<Vec<u32>>,
-    edges: Vec<Vec<(u32, u32)>>,
+    verts: Vec<Vec<(u32, Point)>>,
+    edges: Vec<Vec<FiledEdge>>,
+}
+
+/// An edge as filed: its vertex ids and their positions.
+#[derive(Clone, Copy, PartialEq, Eq)]
+struct FiledEdge {
+    a: u32,
+    b: u32,
+    pa: Point,
+    pb: Point,
+}
+
+/// Whether the closed boxes spanned by segments pq and rs meet.
+#[inline]
+fn boxes_meet(p: Point, q: Point, r: Point, s: Point) -> bool {
+    p[0].max(q[0]) >= r[0].min(s[0])
+        && r[0].max(s[0]) >= p[0].min(q[0])
+        && p[1].max(q[1]) >= r[1].min(s[1])
+        && r[1].max(s[1]) >= p[1].min(q[1])
 }
 
 impl BucketGrid {
@@ -45,12 +66,12 @@ impl BucketGrid {
     /// Files vertex `id` at `p`.
     pub fn add_vertex(&mut self, id: u32, p: Point) {
         let c = self.cell(p[0], p[1]);
-        self.verts[c].push(id);
+        self.verts[c].push((id, p));
     }
     /// Takes vertex `id`, filed at `p`, out.
     pub fn remove_vertex(&mut self, id: u32, p: Point) {
         let c = self.cell(p[0], p[1]);
-        if let Some(i) = self.verts[c].iter().position(|&v| v == id) {
+        if let Some(i) = self.verts[c].iter().position(|&(v, _)| v == id) {
             self.verts[c].swap_remove(i);
         }
     }
@@ -92,8 +113,9 @@ impl BucketGrid {
     pub fn add_edge(&mut self, a: u32, b: u32, pa: Point, pb: Point) {
         let mut cells = Vec::new();
         self.segment_buckets(pa, pb, |c| cells.push(c));
+        let e = FiledEdge { a, b, pa, pb };
         for c in cells {
-            self.edges[c].push((a, b));
+            self.edges[c].push(e);
         }
     }
     /// Takes edge (a, b), filed with [`BucketGrid::add_edge`] at the same
@@ -103,7 +125,7 @@ impl BucketGrid {
         self.segment_buckets(pa, pb, |c| cells.push(c));
         for c in cells {
             let bucket = &mut self.edges[c];
-            if let Some(i) = bucket.iter().position(|&e| e == (a, b)) {
+            if let Some(i) = bucket.iter().position(|e| (e.a, e.b) == (a, b)) {
                 bucket.swap_remove(i);
             }
         }
@@ -113,7 +135,7 @@ impl BucketGrid {
         let (x0, x1, y0, y1) = self.range(lo, hi);
         for cy in y0..=y1 {
             for cx in x0..=x1 {
-                for &v in &self.verts[(cy * self.cols + cx) as usize] {
+                for &(v, _) in &self.verts[(cy * self.cols + cx) as usize] {
                     if !f(v) {
                         return false;
                     }
@@ -128,8 +150,8 @@ impl BucketGrid {
         let (x0, x1, y0, y1) = self.range(lo, hi);
         for cy in y0..=y1 {
             for cx in x0..=x1 {
-                for &(a, b) in &self.edges[(cy * self.cols + cx) as usize] {
-                    if !f(a, b) {
+                for e in &self.edges[(cy * self.cols + cx) as usize] {
+                    if !f(e.a, e.b) {
                         return false;
                     }
                 }
@@ -138,14 +160,21 @@ impl BucketGrid {
         true
     }
     /// Calls `f` on every vertex id in buckets that a point of the closed
-    /// polygon `poly` (any simple polygon, or a segment) falls in; stops
-    /// when `f` is false. Per bucket row, only the columns the polygon spans
-    /// over that row's band are visited (the extremes of a polygon over a
-    /// band lie on its boundary), so a long thin triangle costs its length,
-    /// not its bounding box's area.
+    /// polygon `poly` (any simple polygon, or a segment) falls in, whose
+    /// position lies in the polygon's bounding box (closed); stops when `f`
+    /// is false. Per bucket row, only the columns the polygon spans over
+    /// that row's band are visited (the extremes of a polygon over a band
+    /// lie on its boundary), so a long thin triangle costs its length, not
+    /// its bounding box's area.
     pub fn vertices_in_polygon(&self, poly: &[Point], mut f: impl FnMut(u32) -> bool) -> bool {
         let ymin = poly.iter().map(|p| p[1]).min().expect("a polygon");
         let ymax = poly.iter().map(|p| p[1]).max().expect("a polygon");
+        let bx = [
+            poly.iter().map(|p| p[0]).min().expect("a polygon"),
+            ymin,
+            poly.iter().map(|p| p[0]).max().expect("a polygon"),
+            ymax,
+        ];
         let (cy0, cy1) = (
             (ymin / CELL).clamp(0, self.rows - 1),
             (ymax / CELL).clamp(0, self.rows - 1),
@@ -178,8 +207,9 @@ impl BucketGrid {
             let cx0 = xlo.div_euclid(CELL).clamp(0, self.cols - 1);
             let cx1 = xhi.div_euclid(CELL).clamp(0, self.cols - 1);
             for cx in cx0..=cx1 {
-                for &v in &self.verts[(cy * self.cols + cx) as usize] {
-                    if !f(v) {
+                for &(v, p) in &self.verts[(cy * self.cols + cx) as usize] {
+                    let in_box = p[0] >= bx[0] && p[0] <= bx[2] && p[1] >= ymin && p[1] <= ymax;
+                    if in_box && !f(v) {
                         return false;
                     }
                 }
@@ -188,8 +218,9 @@ impl BucketGrid {
         true
     }
     /// Calls `f` on every (possibly stale) edge filed in a bucket that one
-    /// of the closed `segments` passes through, so every edge that touches
-    /// one of them (perhaps more than once); stops when `f` is false.
+    /// of the closed `segments` passes through and whose bounding box meets
+    /// one of theirs, so every edge that touches one of them (perhaps more
+    /// than once); stops when `f` is false.
     pub fn edges_along(
         &self,
         segments: &[(Point, Point)],
@@ -199,7 +230,9 @@ impl BucketGrid {
         for &(p, q) in segments {
             self.segment_buckets(p, q, |c| {
                 if ok {
-                    ok = self.edges[c].iter().all(|&(a, b)| f(a, b));
+                    ok = self.edges[c].iter().all(|e| {
+                        !segments.iter().any(|&(p, q)| boxes_meet(p, q, e.pa, e.pb)) || f(e.a, e.b)
+                    });
                 }
             });
             if !ok {
@@ -211,7 +244,7 @@ impl BucketGrid {
     /// Drops stale edges from every bucket.
     pub fn purge_edges(&mut self, valid: impl Fn(u32, u32) -> bool) {
         for bucket in &mut self.edges {
-            bucket.retain(|&(a, b)| valid(a, b));
+            bucket.retain(|e| valid(e.a, e.b));
         }
     }
 }
