@@ -60,3 +60,6 @@ pub mod scene;
 pub mod settings;
 pub mod sweep;
 pub mod triangulate;
+
+#[cfg(test)]
+mod test_rng;

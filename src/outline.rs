@@ -154,6 +154,7 @@ pub fn label(mask: &Mask) -> Vec<u32> {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
 
     const RIGHT: u8 = 1;
     const DOWN: u8 = 2;
@@ -289,17 +290,11 @@ mod tests {
     /// masks with their pinches removed or filled.
     #[test]
     fn runs_trace_like_cells() {
-        let mut seed = 99u64;
+        let mut rng = Lcg(99);
         for case in 0..300 {
             let (w, h) = (1 + case % 17, 1 + case % 13 * 2);
             let density = 20 + case % 7 * 10;
-            let mut m = Mask::new(w, h, false);
-            for c in m.cells.iter_mut() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                *c = ((seed >> 33) % 100 < density as u64) as u8;
-            }
+            let mut m = rng.mask(w, h, |_, r| r < density as u64);
             if case % 2 == 0 {
                 m.remove_pinches();
             } else {

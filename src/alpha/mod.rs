@@ -262,18 +262,14 @@ mod tests {
     use super::*;
     use crate::check::regions_for_check;
     use crate::settings::{Filter, Wrap};
+    use crate::test_rng::Lcg;
 
     /// The builder's separable filters give exactly the regions that the
     /// independent checker derives from the definitions, cell by cell.
     #[test]
     fn regions_match_the_checker_definitions() {
-        let mut seed = 99u64;
-        let mut rnd = move || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 33) as u32
-        };
+        let mut rng = Lcg(99);
+        let mut rnd = move || rng.next() as u32;
         for case in 0..300 {
             let (w, h) = (1 + rnd() % 19, 1 + rnd() % 17);
             let density = rnd() % 100;
@@ -326,13 +322,8 @@ mod tests {
     /// levels, every addressing mode, and reports the set cells it built.
     #[test]
     fn runs_match_the_cell_by_cell_reference() {
-        let mut seed = 2024u64;
-        let mut rnd = move || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 33) as u32
-        };
+        let mut rng = Lcg(2024);
+        let mut rnd = move || rng.next() as u32;
         for case in 0..600 {
             let (w, h) = match case % 5 {
                 0 => (1, 1 + rnd() % 40),

@@ -155,6 +155,7 @@ pub(crate) fn union_into(a: &[Run], b: &[Run], out: &mut Vec<Run>) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
 
     fn runs_of(mask: &[bool]) -> Vec<Run> {
         let mut out = Vec::new();
@@ -170,13 +171,8 @@ mod tests {
     /// (boolean algebra; the masks are the definition).
     #[test]
     fn run_set_operations_match_cellwise_logic() {
-        let mut seed = 5u64;
-        let mut bit = move || {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            (seed >> 40).is_multiple_of(3)
-        };
+        let mut rng = Lcg(5);
+        let mut bit = move || (rng.next() >> 7).is_multiple_of(3);
         let mut out = Vec::new();
         for n in 0..40usize {
             let a: Vec<bool> = (0..n).map(|_| bit()).collect();

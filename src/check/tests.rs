@@ -4,6 +4,7 @@
 use super::*;
 use crate::mesh::{MeshStats, TriangleList};
 use crate::settings::{AlphaThresholds, Filter, FilterMode, Wrap};
+use crate::test_rng::Lcg;
 
 const EPS: f64 = 1e-9;
 
@@ -406,24 +407,6 @@ fn big_layer_full_quad() {
     assert!((r.opaque_outside_safe - 4.0).abs() < 1e-6, "{r:?}");
     assert!(r.uncovered.abs() < 1e-6);
     assert_eq!(r.safe_area, 1024.0 * 1024.0 - 4.0);
-}
-
-/// Deterministic pseudo-random numbers (64-bit LCG, Knuth's MMIX constants).
-struct Lcg(u64);
-impl Lcg {
-    fn next(&mut self) -> u64 {
-        self.0 = self
-            .0
-            .wrapping_mul(6364136223846793005)
-            .wrapping_add(1442695040888963407);
-        self.0 >> 33
-    }
-    fn below(&mut self, n: u64) -> u64 {
-        self.next() % n
-    }
-    fn unit(&mut self) -> f64 {
-        self.next() as f64 / (1u64 << 31) as f64
-    }
 }
 
 /// A second, point-wise reading of the definition: the half-cell's centre c

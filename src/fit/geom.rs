@@ -140,6 +140,7 @@ pub fn triangle_row_spans(tri: &[Point; 3], mut f: impl FnMut(i64, i64, i64) -> 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
 
     fn floor_div(n: i64, d: i64) -> i64 {
         n.div_euclid(d)
@@ -211,13 +212,8 @@ mod tests {
     /// degenerate ones included, and stops where `f` says so.
     #[test]
     fn stepped_spans_match_the_definition() {
-        let mut seed = 808u64;
-        let mut rnd = move |n: i64| {
-            seed = seed
-                .wrapping_mul(6364136223846793005)
-                .wrapping_add(1442695040888963407);
-            ((seed >> 33) % n as u64) as i64 - n / 2
-        };
+        let mut rng = Lcg(808);
+        let mut rnd = move |n: i64| rng.below(n as u64) as i64 - n / 2;
         for case in 0..20000 {
             let span = [4, 30, 500][case % 3];
             let tri = [

@@ -253,6 +253,7 @@ fn walk(
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
 
     /// [`open_holes`] as first written: every direction walked out in full,
     /// the first least kept, cell by cell on a complement mask.
@@ -302,16 +303,10 @@ mod tests {
     /// and with ties between directions.
     #[test]
     fn bounded_walks_open_like_full_walks() {
-        let mut seed = 5150u64;
+        let mut rng = Lcg(5150);
         for case in 0..300 {
             let (w, h) = (3 + case % 29, 3 + case % 17);
-            let mut m = Mask::new(w, h, true);
-            for c in m.cells.iter_mut() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                *c = ((seed >> 33) % 100 >= 10 + case as u64 % 30) as u8;
-            }
+            let m = rng.mask(w, h, |_, r| r >= 10 + case as u64 % 30);
             let mut ours = m.clone();
             open_holes(&mut ours);
             let mut theirs = m.clone();

@@ -83,6 +83,7 @@ pub fn largest_rectangles(labels: &RunLabels) -> HashMap<u32, [i64; 4]> {
 mod tests {
     use super::*;
     use crate::mask::Mask;
+    use crate::test_rng::Lcg;
 
     /// The classic method cell by cell (the previous implementation): per
     /// component label (as `imageproc`'s 4-connected labelling numbers
@@ -157,7 +158,7 @@ mod tests {
     /// repeated rows among them.
     #[test]
     fn runs_pick_the_rectangles_cells_pick() {
-        let mut seed = 4242u64;
+        let mut rng = Lcg(4242);
         for case in 0..200 {
             let (w, h) = (1 + case % 19, 1 + case % 11 * 2);
             let mut m = Mask::new(w, h, false);
@@ -169,10 +170,7 @@ mod tests {
                     continue;
                 }
                 for x in 0..w {
-                    seed = seed
-                        .wrapping_mul(6364136223846793005)
-                        .wrapping_add(1442695040888963407);
-                    m.set(x, y, (seed >> 33) % 100 < 70);
+                    m.set(x, y, rng.below(100) < 70);
                 }
             }
             let labels = m.components();

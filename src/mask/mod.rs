@@ -356,6 +356,7 @@ impl RowRuns {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
     use image::{GrayImage, Luma};
     use imageproc::region_labelling::{connected_components, Connectivity};
 
@@ -363,16 +364,10 @@ mod tests {
     /// one, the definition (no source needed: plain counting).
     #[test]
     fn row_runs_answer_like_counting_cells() {
-        let mut seed = 777u64;
+        let mut rng = Lcg(777);
         for case in 0..30 {
             let (w, h) = (1 + case % 11 * 3, 1 + case % 5);
-            let mut m = Mask::new(w, h, false);
-            for c in m.cells.iter_mut() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                *c = ((seed >> 33) % 100 < 60) as u8;
-            }
+            let m = rng.mask(w, h, |_, r| r < 60);
             let runs = m.row_runs();
             let inverted = Mask {
                 width: w,
@@ -407,16 +402,10 @@ mod tests {
     /// connected_components (general-purpose reference library) does.
     #[test]
     fn components_match_imageproc() {
-        let mut seed = 12345u64;
+        let mut rng = Lcg(12345);
         for case in 0..40 {
             let (w, h) = (1 + case % 13 * 5, 1 + case % 7 * 6);
-            let mut m = Mask::new(w, h, false);
-            for c in m.cells.iter_mut() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                *c = ((seed >> 33) % 100 < 55) as u8;
-            }
+            let m = rng.mask(w, h, |_, r| r < 55);
             let ours = m.components();
             let img = GrayImage::from_fn(w as u32, h as u32, |x, y| {
                 Luma([m.get(x as usize, y as usize) as u8])

@@ -214,6 +214,7 @@ impl RowRuns {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::test_rng::Lcg;
 
     /// Full row-major passes over every 2x2 block until none changes, cell
     /// by cell: the definition [`Mask::fix_pinches`] shortens.
@@ -246,22 +247,12 @@ mod tests {
     /// what full passes leave, on random masks dense with diagonal pairs.
     #[test]
     fn pinch_fixes_match_full_passes() {
-        let mut seed = 31337u64;
+        let mut rng = Lcg(31337);
         for case in 0..400 {
             let (w, h) = (1 + case % 23, 1 + case % 9 * 3);
-            let mut m = Mask::new(w, h, false);
-            for (i, c) in m.cells.iter_mut().enumerate() {
-                seed = seed
-                    .wrapping_mul(6364136223846793005)
-                    .wrapping_add(1442695040888963407);
-                // checkerboard-like patches make chains of pinches
-                let checker = ((i % w) + (i / w)) % 2 == 0;
-                *c = if case % 3 == 0 {
-                    checker as u8
-                } else {
-                    ((seed >> 33) % 100 < 50) as u8
-                };
-            }
+            // checkerboard-like patches make chains of pinches
+            let checker = |i: usize| ((i % w) + (i / w)) % 2 == 0;
+            let m = rng.mask(w, h, |i, r| if case % 3 == 0 { checker(i) } else { r < 50 });
             for grow in [false, true] {
                 let mut ours = m.clone();
                 ours.fix_pinches(grow);
