@@ -79,32 +79,7 @@ impl Mask {
         let mut runs = Vec::new();
         for y in 0..self.height {
             starts.push(runs.len());
-            let row = &self.cells[y * w..(y + 1) * w];
-            // eight cells at a time while they all equal the current state
-            const ONES: u64 = 0x0101_0101_0101_0101;
-            let (mut x, mut inside, mut s) = (0, false, 0);
-            while x < w {
-                if x + 8 <= w {
-                    let c = u64::from_ne_bytes(row[x..x + 8].try_into().expect("8 bytes"));
-                    if c == if inside { ONES } else { 0 } {
-                        x += 8;
-                        continue;
-                    }
-                }
-                let v = row[x] != 0;
-                if v != inside {
-                    if v {
-                        s = x;
-                    } else {
-                        runs.push([s as u32, x as u32]);
-                    }
-                    inside = v;
-                }
-                x += 1;
-            }
-            if inside {
-                runs.push([s as u32, w as u32]);
-            }
+            runs_of_row(&self.cells[y * w..(y + 1) * w], &mut runs);
         }
         starts.push(runs.len());
         RowRuns {
@@ -113,6 +88,44 @@ impl Mask {
             starts,
             runs,
         }
+    }
+}
+
+/// Appends the runs of set cells of `row` (one byte a cell) to `runs`.
+fn runs_of_row(row: &[u8], runs: &mut Vec<[u32; 2]>) {
+    let w = row.len();
+    // eight cells at a time while they all equal the current state
+    const ONES: u64 = 0x0101_0101_0101_0101;
+    let (mut x, mut inside, mut s) = (0, false, 0);
+    while x < w {
+        if x + 8 <= w {
+            let c = u64::from_ne_bytes(row[x..x + 8].try_into().expect("8 bytes"));
+            if c == if inside { ONES } else { 0 } {
+                x += 8;
+                continue;
+            }
+        }
+        let v = row[x] != 0;
+        if v != inside {
+            if v {
+                s = x;
+            } else {
+                runs.push([s as u32, x as u32]);
+            }
+            inside = v;
+        }
+        x += 1;
+    }
+    if inside {
+        runs.push([s as u32, w as u32]);
+    }
+}
+
+/// Writes the cells of `runs` into `row` (one byte a cell), the rest unset.
+fn fill_row(runs: &[[u32; 2]], row: &mut [u8]) {
+    row.fill(0);
+    for &[x0, x1] in runs {
+        row[x0 as usize..x1 as usize].fill(1);
     }
 }
 
@@ -159,10 +172,10 @@ impl RowRuns {
     pub fn to_mask(&self) -> Mask {
         let mut m = Mask::new(self.width, self.height, false);
         for y in 0..self.height {
-            let row = &mut m.cells[y * self.width..(y + 1) * self.width];
-            for &[x0, x1] in self.row(y) {
-                row[x0 as usize..x1 as usize].fill(1);
-            }
+            fill_row(
+                self.row(y),
+                &mut m.cells[y * self.width..(y + 1) * self.width],
+            );
         }
         m
     }

@@ -16,7 +16,7 @@
 //! reaches it, which for the first pass is the mask's own state, and for
 //! later passes needs one of its rows edited in the pass before.
 
-use super::{Mask, RowRuns};
+use super::{fill_row, runs_of_row, Mask, RowRuns};
 use std::collections::BTreeMap;
 
 /// One row pair's share of a pass, left to right over the blocks of `top`
@@ -57,13 +57,22 @@ fn pass_over_pair(top: &mut [u8], bottom: &[u8], grow: bool) -> bool {
     changed
 }
 
-/// The pairs holding an edited row (`y - 1, y` and `y, y + 1`), in order.
-fn pairs_next_to(edited: &[usize], h: usize, pairs: &mut Vec<usize>) {
-    pairs.clear();
-    for &y in edited {
-        for p in [y.wrapping_sub(1), y] {
-            if p < h - 1 && pairs.last().is_none_or(|&l| l < p) {
-                pairs.push(p);
+/// The passes over row pairs of a region `h` rows high: the first over
+/// `pairs` (ascending), each later one over the pairs holding a row the
+/// pass before edited (`y - 1, y` and `y, y + 1`), in order, until a pass
+/// edits nothing. `visit(y)` makes pair `(y, y + 1)`'s share of a pass and
+/// says whether it edited row `y`.
+fn passes(mut pairs: Vec<usize>, h: usize, mut visit: impl FnMut(usize) -> bool) {
+    let mut edited: Vec<usize> = Vec::new();
+    while !pairs.is_empty() {
+        edited.clear();
+        edited.extend(pairs.iter().copied().filter(|&y| visit(y)));
+        pairs.clear();
+        for &y in &edited {
+            for p in [y.wrapping_sub(1), y] {
+                if p < h - 1 && pairs.last().is_none_or(|&l| l < p) {
+                    pairs.push(p);
+                }
             }
         }
     }
@@ -85,18 +94,10 @@ impl Mask {
         if w < 2 || h < 2 {
             return;
         }
-        let mut pairs: Vec<usize> = (0..h - 1).collect();
-        let mut edited: Vec<usize> = Vec::new();
-        while !pairs.is_empty() {
-            edited.clear();
-            for &y in &pairs {
-                let (top, bottom) = self.cells[y * w..(y + 2) * w].split_at_mut(w);
-                if pass_over_pair(top, bottom, grow) {
-                    edited.push(y);
-                }
-            }
-            pairs_next_to(&edited, h, &mut pairs);
-        }
+        passes((0..h - 1).collect(), h, |y| {
+            let (top, bottom) = self.cells[y * w..(y + 2) * w].split_at_mut(w);
+            pass_over_pair(top, bottom, grow)
+        });
     }
 }
 
@@ -127,32 +128,6 @@ fn holds_pinch(top: &[[u32; 2]], bottom: &[[u32; 2]], w: u32) -> bool {
     false
 }
 
-/// Writes the cells of `runs` into `row` (one byte a cell).
-fn expand(runs: &[[u32; 2]], row: &mut [u8]) {
-    row.fill(0);
-    for &[x0, x1] in runs {
-        row[x0 as usize..x1 as usize].fill(1);
-    }
-}
-
-/// The runs of set cells of `row`.
-fn runs_of(row: &[u8]) -> Vec<[u32; 2]> {
-    let mut out = Vec::new();
-    let mut x = 0;
-    while x < row.len() {
-        if row[x] == 0 {
-            x += 1;
-            continue;
-        }
-        let s = x;
-        while x < row.len() && row[x] != 0 {
-            x += 1;
-        }
-        out.push([s as u32, x as u32]);
-    }
-    out
-}
-
 impl RowRuns {
     /// [`Mask::remove_pinches`] on the mask these runs describe.
     pub fn remove_pinches(&mut self) {
@@ -171,7 +146,7 @@ impl RowRuns {
         if w < 2 || h < 2 {
             return;
         }
-        let mut pairs: Vec<usize> = (0..h - 1)
+        let pairs: Vec<usize> = (0..h - 1)
             .filter(|&y| holds_pinch(self.row(y), self.row(y + 1), w as u32))
             .collect();
         if pairs.is_empty() {
@@ -179,35 +154,26 @@ impl RowRuns {
         }
         let mut rows: BTreeMap<usize, Vec<[u32; 2]>> = BTreeMap::new();
         let (mut top, mut bottom) = (vec![0u8; w], vec![0u8; w]);
-        let mut edited: Vec<usize> = Vec::new();
-        while !pairs.is_empty() {
-            edited.clear();
-            for &y in &pairs {
-                expand(rows.get(&y).map_or(self.row(y), |r| r), &mut top);
-                expand(
-                    rows.get(&(y + 1)).map_or(self.row(y + 1), |r| r),
-                    &mut bottom,
-                );
-                if pass_over_pair(&mut top, &bottom, grow) {
-                    rows.insert(y, runs_of(&top));
-                    edited.push(y);
-                }
+        passes(pairs, h, |y| {
+            fill_row(rows.get(&y).map_or(self.row(y), |r| r), &mut top);
+            fill_row(
+                rows.get(&(y + 1)).map_or(self.row(y + 1), |r| r),
+                &mut bottom,
+            );
+            let edited = pass_over_pair(&mut top, &bottom, grow);
+            if edited {
+                let mut r = Vec::new();
+                runs_of_row(&top, &mut r);
+                rows.insert(y, r);
             }
-            pairs_next_to(&edited, h, &mut pairs);
-        }
-        // the flat runs again, edited rows replaced
-        let mut starts = Vec::with_capacity(h + 1);
-        let mut runs = Vec::with_capacity(self.runs.len());
+            edited
+        });
+        // the runs again, edited rows replaced
+        let mut out = RowRuns::new(w);
         for y in 0..h {
-            starts.push(runs.len());
-            match rows.get(&y) {
-                Some(r) => runs.extend_from_slice(r),
-                None => runs.extend_from_slice(self.row(y)),
-            }
+            out.push_row(rows.get(&y).map_or(self.row(y), |r| r));
         }
-        starts.push(runs.len());
-        self.starts = starts;
-        self.runs = runs;
+        *self = out;
     }
 }
 
