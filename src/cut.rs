@@ -6,7 +6,7 @@
 //! of the fast path fails that check, the cut falls back to a plainer mesh
 //! that passes it, and says so in [`CutOutcome::notes`].
 
-use crate::alpha::{must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
+use crate::alpha::{analyze_runs, must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
 use crate::check::check_mesh;
 use crate::fit::{open_holes_in_runs, Class, Fit, Fitter, Prepared};
 use crate::mask::RowRuns;
@@ -35,9 +35,11 @@ pub struct Outlines {
 
 /// Analyzes, traces and fits a layer's outlines to `settings.budget`.
 pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
-    let regions = Regions::analyze(map, settings);
-    let cover = prepare_cover(regions.cover.row_runs());
-    let fit = fit_safe(regions.safe.row_runs(), &cover, settings.budget);
+    let runs = analyze_runs(map, settings);
+    let regions = Regions::from_runs(&runs);
+    let (safe, cover, _) = runs;
+    let cover = prepare_cover(cover);
+    let fit = fit_safe(safe, &cover, settings.budget);
     Outlines { regions, fit }
 }
 

@@ -123,16 +123,25 @@ impl Regions {
     /// (a min filter) or dilated (a max filter) by 2^(l-1) texels, i.e.
     /// 2^l half cells, with clamp or repeat addressing beyond the edges.
     pub fn analyze(map: &AlphaMap, settings: &CutSettings) -> Regions {
-        // the two regions are independent: build them side by side
-        let ((safe, safe_area), (cover, cover_area)) =
-            rayon::join(|| safe_opaque(map, settings), || must_cover(map, settings));
-        let stats = RegionStats::new(map, settings.alpha, safe_area, cover_area);
+        Regions::from_runs(&analyze_runs(map, settings))
+    }
+    /// The regions as masks from their runs ([`analyze_runs`]).
+    pub fn from_runs((safe, cover, stats): &(RowRuns, RowRuns, RegionStats)) -> Regions {
         Regions {
             safe: safe.to_mask(),
             cover: cover.to_mask(),
-            stats,
+            stats: *stats,
         }
     }
+}
+
+/// The safe-opaque and must-cover regions as runs, built side by side,
+/// with their areas and the texel classes.
+pub fn analyze_runs(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, RowRuns, RegionStats) {
+    let ((safe, safe_area), (cover, cover_area)) =
+        rayon::join(|| safe_opaque(map, settings), || must_cover(map, settings));
+    let stats = RegionStats::new(map, settings.alpha, safe_area, cover_area);
+    (safe, cover, stats)
 }
 
 impl RegionStats {
