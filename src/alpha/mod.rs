@@ -273,6 +273,37 @@ mod tests {
     use crate::settings::{Filter, Wrap};
     use crate::test_rng::Lcg;
 
+    /// Random cut settings: the filter by `case` (bilinear when even), mip
+    /// levels below `mips`, thresholds and addressing drawn from `rnd`.
+    fn random_settings(rnd: &mut impl FnMut() -> u32, case: u32, mips: u32) -> CutSettings {
+        CutSettings {
+            budget: 64,
+            filter: Filter {
+                mode: if case % 2 == 0 {
+                    FilterMode::Bilinear
+                } else {
+                    FilterMode::Nearest
+                },
+                mip_levels: rnd() % mips,
+            },
+            alpha: AlphaThresholds {
+                opaque_min: 200 + (rnd() % 56) as u8,
+                visible_min: 1 + (rnd() % 100) as u8,
+            },
+            wrap: [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy][(rnd() % 4) as usize],
+        }
+    }
+
+    /// One texel's alpha: opaque with `density` percent, partial with ten
+    /// percent more, else transparent.
+    fn noisy_alpha(rnd: &mut impl FnMut() -> u32, density: u32) -> u8 {
+        match rnd() % 100 {
+            r if r < density => 255,
+            r if r < density + 10 => (rnd() % 255) as u8,
+            _ => 0,
+        }
+    }
+
     /// The builder's separable filters give exactly the regions that the
     /// independent checker derives from the definitions, cell by cell.
     #[test]
@@ -282,30 +313,9 @@ mod tests {
         for case in 0..300 {
             let (w, h) = (1 + rnd() % 19, 1 + rnd() % 17);
             let density = rnd() % 100;
-            let alpha: Vec<u8> = (0..w * h)
-                .map(|_| match rnd() % 100 {
-                    r if r < density => 255,
-                    r if r < density + 10 => (rnd() % 255) as u8,
-                    _ => 0,
-                })
-                .collect();
+            let alpha: Vec<u8> = (0..w * h).map(|_| noisy_alpha(&mut rnd, density)).collect();
             let map = AlphaMap::from_raw(w, h, alpha);
-            let settings = CutSettings {
-                budget: 64,
-                filter: Filter {
-                    mode: if case % 2 == 0 {
-                        FilterMode::Bilinear
-                    } else {
-                        FilterMode::Nearest
-                    },
-                    mip_levels: rnd() % 4,
-                },
-                alpha: AlphaThresholds {
-                    opaque_min: 200 + (rnd() % 56) as u8,
-                    visible_min: 1 + (rnd() % 100) as u8,
-                },
-                wrap: [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy][(rnd() % 4) as usize],
-            };
+            let settings = random_settings(&mut rnd, case, 4);
             let ours = Regions::analyze(&map, &settings);
             let (s, c, gw, gh) =
                 regions_for_check(&map, settings.filter, settings.alpha, settings.wrap);
@@ -352,31 +362,12 @@ mod tests {
                             255
                         }
                     } else {
-                        match rnd() % 100 {
-                            r if r < density => 255,
-                            r if r < density + 10 => (rnd() % 255) as u8,
-                            _ => 0,
-                        }
+                        noisy_alpha(&mut rnd, density)
                     }
                 })
                 .collect();
             let map = AlphaMap::from_raw(w, h, alpha);
-            let settings = CutSettings {
-                budget: 64,
-                filter: Filter {
-                    mode: if case % 2 == 0 {
-                        FilterMode::Bilinear
-                    } else {
-                        FilterMode::Nearest
-                    },
-                    mip_levels: rnd() % 6,
-                },
-                alpha: AlphaThresholds {
-                    opaque_min: 200 + (rnd() % 56) as u8,
-                    visible_min: 1 + (rnd() % 100) as u8,
-                },
-                wrap: [Wrap::None, Wrap::X, Wrap::Y, Wrap::Xy][(rnd() % 4) as usize],
-            };
+            let settings = random_settings(&mut rnd, case, 6);
             let t = settings.alpha;
             for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
                 let ours = region(&map, &settings, min, all);
