@@ -399,3 +399,193 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         "the draw list with {new} instead of {old} draws another frame"
     );
 }
+
+/// A LÖVE program without a window (no display needed) that decodes each
+/// `case-N.json` of its folder with underdraw.lua's JSON decoder and prints
+/// one line per case: `ok <value>` in a canonical JSON form (strings as hex
+/// of their bytes, keys sorted, numbers with 17 significant digits) or
+/// `error <message>`.
+const DECODE_PROGRAM: &str = r#"
+function love.conf(t)
+  t.window = false
+  t.modules.audio, t.modules.sound, t.modules.graphics = false, false, false
+end
+"#;
+const DECODE_MAIN: &str = r#"
+package.path = UNDERDRAW_DIR .. "/?.lua;" .. package.path
+local underdraw = require("underdraw")
+local function hex(s) return (s:gsub(".", function(c) return string.format("%02x", c:byte()) end)) end
+local function canon(v)
+  local t = type(v)
+  if t == "string" then return '"' .. hex(v) .. '"'
+  elseif t == "number" then return string.format("%.17g", v)
+  elseif t == "boolean" then return tostring(v)
+  elseif t == "nil" then return "null" end
+  local n = #v
+  local keys = {}
+  for k in pairs(v) do keys[#keys + 1] = k end
+  if n > 0 and #keys == n then
+    local out = {}
+    for i = 1, n do out[i] = canon(v[i]) end
+    return "[" .. table.concat(out, ",") .. "]"
+  end
+  table.sort(keys)
+  local out = {}
+  for _, k in ipairs(keys) do out[#out + 1] = '"' .. hex(k) .. '":' .. canon(v[k]) end
+  return "{" .. table.concat(out, ",") .. "}"
+end
+function love.load(args)
+  local dir = args[1]
+  local i = 0
+  while true do
+    local f = io.open(dir .. "/case-" .. i .. ".json", "rb")
+    if not f then break end
+    local text = f:read("*a")
+    f:close()
+    local ok, v = pcall(underdraw.json.decode, text, "case-" .. i)
+    if ok then print("ok " .. canon(v)) else print("error " .. tostring(v)) end
+    i = i + 1
+  end
+  love.event.quit(0)
+end
+"#;
+
+/// `value` in the canonical form of DECODE_MAIN, from serde_json's reading
+/// (RFC 8259; serde_json is the reference decoder). A key whose value is
+/// null is left out (the Lua decoder makes null nil), and `{}` and `[]`
+/// both print as `{}` (an empty Lua table).
+fn canon(value: &Value) -> String {
+    let hex = |s: &str| s.bytes().map(|b| format!("{b:02x}")).collect::<String>();
+    match value {
+        Value::Null => "null".into(),
+        Value::Bool(b) => b.to_string(),
+        Value::Number(n) => format!("n{}", n.as_f64().unwrap()),
+        Value::String(s) => format!("\"{}\"", hex(s)),
+        Value::Array(a) if a.is_empty() => "{}".into(),
+        Value::Array(a) => format!("[{}]", a.iter().map(canon).collect::<Vec<_>>().join(",")),
+        Value::Object(o) => {
+            let mut keys: Vec<_> = o.iter().filter(|(_, v)| !v.is_null()).collect();
+            keys.sort_by(|a, b| a.0.as_bytes().cmp(b.0.as_bytes()));
+            let items: Vec<_> = keys
+                .iter()
+                .map(|(k, v)| format!("\"{}\":{}", hex(k), canon(v)))
+                .collect();
+            format!("{{{}}}", items.join(","))
+        }
+    }
+}
+
+/// The Lua side's canonical line with its numbers read back as f64 and
+/// printed as `canon` prints them.
+fn canon_lua(line: &str) -> String {
+    let mut out = String::new();
+    let mut chars = line.chars().peekable();
+    while let Some(c) = chars.next() {
+        if c == '"' {
+            out.push(c);
+            for d in chars.by_ref() {
+                out.push(d);
+                if d == '"' {
+                    break;
+                }
+            }
+        } else if c == '-' || c.is_ascii_digit() {
+            let mut num = c.to_string();
+            while let Some(&d) = chars.peek() {
+                if d.is_ascii_digit() || "+-.eE".contains(d) {
+                    num.push(d);
+                    chars.next();
+                } else {
+                    break;
+                }
+            }
+            out.push_str(&format!("n{}", num.parse::<f64>().unwrap()));
+        } else {
+            out.push(c);
+        }
+    }
+    out
+}
+
+/// underdraw.lua's own JSON decoder reads what serde_json reads, and
+/// refuses what it refuses (RFC 8259, with serde_json as the reference).
+#[test]
+fn the_lua_json_decoder_agrees_with_serde_json() {
+    if !have("love", "--version") {
+        return;
+    }
+    let dir = TempDir::new("love-json");
+    let program = dir.path("program");
+    fs::create_dir_all(&program).unwrap();
+    fs::write(program.join("conf.lua"), DECODE_PROGRAM).unwrap();
+    let main = format!(
+        "UNDERDRAW_DIR = {:?}\n{DECODE_MAIN}",
+        root().join("integrations/love").display().to_string()
+    );
+    fs::write(program.join("main.lua"), main).unwrap();
+    let good = [
+        r#"{"format": "underdraw.layer", "size": [2048, 1024], "x": -0.5, "y": 1.06e0}"#,
+        r#"[1, -2, 3.25, 1e-7, 2.5E+3, 0, -0.0, 1234567890123, 0.1]"#,
+        r#"  {"a": {"b": [[], {}, [true, false]], "c": null}, "": "empty key"}  "#,
+        r#"["\"\\\/\b\f\n\r\t", "\u00e9\u20ac", "\ud83d\ude00", "h\u00E9llo \u0041"]"#,
+        "[\"caf\u{e9} \u{1F600} raw UTF-8\"]",
+        r#"{"passes": [{"draws": [{"blend": {"enabled": false, "src": null}}]}]}"#,
+        "\"just a string\"",
+        "  42  ",
+    ];
+    let bad = [
+        r#"{"a": 1,}"#,
+        r#"[1 2]"#,
+        r#"{"a" 1}"#,
+        r#"["unterminated]"#,
+        r#"["\x"]"#,
+        r#"[1] trailing"#,
+        r#"{'a': 1}"#,
+        "[01]",
+        "[1.]",
+        "[.5]",
+        "[1e]",
+        "[-]",
+        "[+1]",
+        "[\"tab\tinside\"]",
+        r#"["\ud83d alone"]"#,
+        "",
+    ];
+    for (i, text) in good.iter().chain(&bad).enumerate() {
+        fs::write(program.join(format!("case-{i}.json")), text).unwrap();
+    }
+    let o = Command::new("love")
+        .arg(&program)
+        .arg(&program)
+        .output()
+        .expect("run love");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        o.status.success(),
+        "{stdout}{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let lines: Vec<&str> = stdout
+        .lines()
+        .filter(|l| l.starts_with("ok ") || l.starts_with("error "))
+        .collect();
+    assert_eq!(lines.len(), good.len() + bad.len(), "{stdout}");
+    for (i, text) in good.iter().enumerate() {
+        let want = canon(&serde_json::from_str::<Value>(text).unwrap());
+        let got = lines[i]
+            .strip_prefix("ok ")
+            .unwrap_or_else(|| panic!("{text}: {}", lines[i]));
+        assert_eq!(canon_lua(got), want, "{text}");
+    }
+    for (j, text) in bad.iter().enumerate() {
+        assert!(
+            serde_json::from_str::<Value>(text).is_err(),
+            "{text} is JSON"
+        );
+        let line = lines[good.len() + j];
+        assert!(
+            line.starts_with("error ") && line.contains("line 1 column"),
+            "{text:?} was read: {line}"
+        );
+    }
+}

@@ -135,10 +135,20 @@ function json.decode(text, name)
     elseif text:sub(pos, pos + 3) == "null" then
       pos = pos + 4; return nil
     end
-    local num = text:match("^-?%d+%.?%d*[eE]?[-+]?%d*", pos)
-    if not num or num == "" or not tonumber(num) then fail("unexpected character") end
-    pos = pos + #num
-    return tonumber(num)
+    -- a number: -?(0|[1-9][0-9]*)(.[0-9]+)?([eE][-+]?[0-9]+)?
+    local e = pos
+    if text:sub(e, e) == "-" then e = e + 1 end
+    local int = text:match("^0", e) or text:match("^[1-9]%d*", e)
+    if not int then fail("unexpected character") end
+    e = e + #int
+    local frac = text:match("^%.%d+", e)
+    if frac then e = e + #frac end
+    local exp = text:match("^[eE][-+]?%d+", e)
+    if exp then e = e + #exp end
+    if text:match("^[%.eE%d]", e) then pos = e; fail("malformed number") end
+    local num = tonumber(text:sub(pos, e - 1))
+    pos = e
+    return num
   end
   local v = value()
   skip()
