@@ -427,7 +427,7 @@ function Scene:draw(camera_x, how)
     for _, pass in ipairs(self.passes) do
       for _, d in ipairs(pass.draws) do
         local layer = self.by_name[d.layer]
-        if d.blend.enabled then
+        if (d.blend or {}).enabled then
           -- "over" on straight alpha: LÖVE multiplies colour by alpha in the
           -- shader, then blends with ONE, ONE_MINUS_SRC_ALPHA (same colour)
           love.graphics.setBlendMode("alpha", "alphamultiply")
