@@ -732,3 +732,71 @@ fn short_options_and_a_status_column_that_keeps_the_numbers_aligned() {
     let o = run(&["-o", out.to_str().unwrap(), "-j", "0"], &[&root]);
     assert_status(&o, 2, "-j 0");
 }
+
+#[test]
+fn a_second_run_into_a_locked_output_folder_waits_or_refuses_and_never_mixes() {
+    use std::time::Duration;
+    use underdraw::batch::lock::{Holder, OutputLock, FILE_NAME};
+    let dir = TempDir::new("lock");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    fs::create_dir_all(&out).unwrap();
+    // the first run: this test process holds the folder's lock
+    let held = OutputLock::acquire(&out, Duration::ZERO).unwrap();
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--lock-wait", "0"],
+        &[&root],
+    );
+    assert_status(&o, 2, "a run into a locked folder");
+    let err = text(&o.stderr);
+    assert!(
+        err.contains(FILE_NAME)
+            && err.contains(&format!("process {}", std::process::id()))
+            && err.contains("wrote nothing"),
+        "{err}"
+    );
+    // it wrote nothing: the lock file is all there is
+    assert_eq!(tree(&out).into_keys().collect::<Vec<_>>(), [FILE_NAME]);
+    // a run that waits: it finishes once the first lets go
+    let child = Command::new(BIN)
+        .arg("cut")
+        .arg(&root)
+        .args(["--out", out.to_str().unwrap(), "--lock-wait", "120"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(Duration::from_millis(1000));
+    assert_eq!(
+        tree(&out).len(),
+        1,
+        "the waiting run wrote while the lock was held"
+    );
+    drop(held);
+    let o = child.wait_with_output().unwrap();
+    assert_status(&o, 0, "the waiting run");
+    assert!(
+        text(&o.stdout).contains("note: waited"),
+        "{}",
+        text(&o.stdout)
+    );
+    assert!(text(&o.stdout).contains("3 cut"), "{}", text(&o.stdout));
+    // a lock file left by a process that died is taken over, with a note
+    let gone = Holder {
+        pid: 4_000_000,
+        host: "build-agent-7".into(),
+        started: "2026-01-02T03:04:05Z".into(),
+    };
+    fs::write(out.join(FILE_NAME), serde_json::to_vec(&gone).unwrap()).unwrap();
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--lock-wait", "0"],
+        &[&root],
+    );
+    assert_status(&o, 0, "a stale lock");
+    assert!(
+        text(&o.stdout).contains("took over the lock left by process 4000000 on build-agent-7"),
+        "{}",
+        text(&o.stdout)
+    );
+    assert!(!out.join(FILE_NAME).exists());
+}

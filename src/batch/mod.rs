@@ -28,6 +28,8 @@
 //!   settings and the underdraw version equal its entry's and every output
 //!   recorded is there with its recorded hash;
 //! - a bad file or a panic fails that layer only;
+//! - one run at a time writes an output folder ([`lock`]): another waits
+//!   for it or refuses, writing nothing;
 //! - the same inputs and settings give the same output bytes (manifest
 //!   included) whatever the number of threads: layers are cut
 //!   deterministically and reported in plan order.
@@ -58,6 +60,7 @@
 #![warn(missing_docs)]
 
 pub mod layer;
+pub mod lock;
 pub mod manifest;
 pub mod run;
 pub mod settings_file;

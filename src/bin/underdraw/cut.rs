@@ -54,6 +54,11 @@ pub(crate) struct CutArgs {
     /// Cut every layer, even those the manifest shows unchanged.
     #[arg(long)]
     force: bool,
+    /// Seconds to wait for another run writing the same --out folder (it
+    /// holds `OUT/underdraw.lock`, which names it) before refusing; 0
+    /// refuses at once.
+    #[arg(long, value_name = "S", default_value_t = 10)]
+    lock_wait: u64,
     /// What to write per layer. `gltf`: a glTF 2.0 asset for an engine, one
     /// mesh with two primitives over one vertex array: the opaque one with
     /// alphaMode OPAQUE (draw with blending off), the blended one with BLEND;
@@ -152,6 +157,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         jobs: args.jobs.map(|n| n as usize),
         force: args.force,
         limits,
+        lock_wait: std::time::Duration::from_secs(args.lock_wait),
     };
     // a bar only for a batch
     let progress = if plan.jobs.len() > 1 {
