@@ -800,3 +800,62 @@ fn a_second_run_into_a_locked_output_folder_waits_or_refuses_and_never_mixes() {
     );
     assert!(!out.join(FILE_NAME).exists());
 }
+
+#[test]
+fn a_batch_of_one_writes_the_same_bytes_whatever_the_threads() {
+    // one layer tall enough for several row bands of the alpha analysis and
+    // of the self-check, with soft edges and holes
+    let dir = TempDir::new("one-layer");
+    let layer = dir.path("in/big.png");
+    fs::create_dir_all(layer.parent().unwrap()).unwrap();
+    RgbaImage::from_fn(300, 700, |x, y| {
+        let (fx, fy) = (x as f64, y as f64);
+        let wave = 150.0 + 90.0 * (fy / 37.0).sin() + 20.0 * (fy / 7.0).cos();
+        let d = fx - wave;
+        let a = if (x / 23 + y / 31) % 5 == 0 {
+            0 // holes
+        } else if d < -6.0 {
+            255
+        } else if d < 6.0 {
+            (127.0 - 21.0 * d) as u8 // a soft edge
+        } else {
+            0
+        };
+        Rgba([90, 120, 200, a])
+    })
+    .save_with_format(&layer, ImageFormat::Png)
+    .unwrap();
+    let runs: [(&str, &[&str], Option<&str>); 4] = [
+        ("j1", &["--jobs", "1"], None),
+        ("j2", &["-j", "2"], None),
+        ("rayon1", &[], Some("1")),
+        ("rayon3", &[], Some("3")),
+    ];
+    let mut trees = Vec::new();
+    for (name, extra, rayon) in runs {
+        let out = dir.path(name);
+        let mut c = Command::new(BIN);
+        c.arg("cut").arg(&layer).arg("--out").arg(&out);
+        c.args(["--format", "all", "--mip-levels", "2", "--budget", "48"]);
+        c.args(extra);
+        if let Some(n) = rayon {
+            c.env("RAYON_NUM_THREADS", n);
+        }
+        let o = c.output().unwrap();
+        assert_status(&o, 0, name);
+        trees.push((name, tree(&out)));
+    }
+    assert_eq!(trees[0].1.len(), 4, "{:?}", trees[0].1.keys());
+    for (name, t) in &trees[1..] {
+        for (file, bytes) in &trees[0].1 {
+            assert!(t[file] == *bytes, "{file} differs between j1 and {name}");
+        }
+    }
+    let c = Command::new(BIN)
+        .arg("check")
+        .arg(dir.path("j2/big.mesh.json"))
+        .arg(&layer)
+        .output()
+        .unwrap();
+    assert_status(&c, 0, "check of the one layer");
+}
