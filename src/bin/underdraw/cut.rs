@@ -25,8 +25,10 @@ pub(crate) struct CutArgs {
     /// PNG layers (RGBA; images without alpha count as fully opaque) and
     /// folders: a folder is searched recursively for `*.png`, and its
     /// layout is mirrored in the output folder (`in/town/houses.png` →
-    /// `OUT/town/houses.mesh.json`); a file given directly is written as
-    /// `OUT/<stem>.*`.
+    /// `OUT/town/houses.mesh.json`); files given directly are laid out
+    /// below their deepest common folder (files of one folder: `OUT/<stem>.*`;
+    /// `T/Art/h.png` and `T/Bath/h.png`: `OUT/Art/h.*` and `OUT/Bath/h.*`).
+    /// An input that gives no layer is an error.
     #[arg(required = true, value_name = "PATH")]
     images: Vec<PathBuf>,
     /// Folder for the output files (created if missing) and the manifest
