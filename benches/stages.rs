@@ -10,7 +10,9 @@
 //! three), `--kinds-64 LIST` (the kinds run at 64 MP and more; default
 //! skyline, to keep the 64 MP run within a few minutes), `--runs N` (runs
 //! per stage, median kept; default 3 up to 16 MP, 1 from 64 MP),
-//! `--no-layers`, `--no-scene`, `--no-batch`, `--save-layers DIR` (also
+//! `--no-layers`, `--no-scene`, `--no-batch`, `--no-process` (the whole
+//! `underdraw cut` process on a 1024² and a 4096² soft layer against
+//! their decode, [`process`]), `--save-layers DIR` (also
 //! write each generated layer's PNG there, to look at or cut by hand). Writes the numbers as JSON
 //! to `target/bench-stages.json`. At 64 MP and more the `fit_layer` stage
 //! (a cross-check of the trace/fit split) is left out.
@@ -30,6 +32,8 @@ mod batch;
 mod heap;
 #[path = "stages/layers.rs"]
 mod layers;
+#[path = "stages/process.rs"]
+mod process;
 #[path = "stages/report.rs"]
 mod report;
 #[path = "stages/scene.rs"]
@@ -134,13 +138,15 @@ pub struct Args {
     pub scene: bool,
     /// Run the batch.
     pub batch: bool,
+    /// Run the whole process on one big layer.
+    pub process: bool,
 }
 
 fn usage(why: &str) -> ! {
     eprintln!(
         "error: {why}\n\nusage: cargo bench --bench stages -- [--sizes 1,4,16,64] \
          [--kinds skyline,clouds,rigging] [--kinds-64 skyline] [--runs N] \
-         [--no-layers] [--no-scene] [--no-batch] [--save-layers DIR]"
+         [--no-layers] [--no-scene] [--no-batch] [--no-process] [--save-layers DIR]"
     );
     std::process::exit(2)
 }
@@ -154,6 +160,7 @@ fn parse_args() -> Args {
         save: None,
         scene: true,
         batch: true,
+        process: true,
     };
     let mut no_layers = false;
     let mut it = std::env::args().skip(1);
@@ -212,6 +219,7 @@ fn parse_args() -> Args {
             "--save-layers" => a.save = Some(value("--save-layers").into()),
             "--no-scene" => a.scene = false,
             "--no-batch" => a.batch = false,
+            "--no-process" => a.process = false,
             other => usage(&format!("unknown option {other:?}")),
         }
     }
@@ -268,9 +276,25 @@ fn main() {
         report::print_batch(&t1, &t2);
         (t1, t2)
     });
+    let whole: Vec<process::ProcessResult> = if args.process {
+        let runs = args.runs.unwrap_or(3);
+        let r: Vec<_> = [1024, 4096]
+            .iter()
+            .map(|&side| {
+                // with --save-layers, the layers and outputs stay there
+                let dir = args.save.clone().unwrap_or_else(|| tmp.join("process"));
+                process::run(&dir, side, runs)
+            })
+            .collect();
+        process::print(&r);
+        r
+    } else {
+        Vec::new()
+    };
     let _ = std::fs::remove_dir_all(&tmp);
     let load = uptime();
-    let targets = report::targets(&layers, scene.as_ref(), batch.as_ref());
+    let mut targets = report::targets(&layers, scene.as_ref(), batch.as_ref());
+    targets.extend(process::targets(&whole));
     report::print_targets(&targets);
     println!(
         "\nload average at end {load} (2 cores shared); total {:.0} s",

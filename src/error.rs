@@ -3,7 +3,7 @@
 use std::path::{Path, PathBuf};
 
 /// An error about one file, phrased for the user.
-#[derive(Debug, thiserror::Error)]
+#[derive(Clone, Debug, thiserror::Error)]
 #[error("{}: {problem}\n  hint: {hint}", path.display())]
 pub struct FileError {
     /// The file the error is about.

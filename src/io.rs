@@ -267,3 +267,26 @@ pub fn write_atomic(dest: &Path, bytes: &[u8]) -> Result<(), FileError> {
     }
     Ok(())
 }
+
+/// Writes `bytes` to `dest` atomically (as [`write_atomic`]) unless `dest`
+/// already holds exactly these bytes, in which case the file is left alone:
+/// its modification time stays, so a file watcher or an engine's importer
+/// sees no change. Returns whether it wrote.
+pub fn write_if_changed(dest: &Path, bytes: &[u8]) -> Result<bool, FileError> {
+    if same_bytes(dest, bytes) {
+        return Ok(false);
+    }
+    write_atomic(dest, bytes)?;
+    Ok(true)
+}
+
+/// Whether the file at `path` exists and holds exactly `bytes` (read only
+/// when its length matches).
+fn same_bytes(path: &Path, bytes: &[u8]) -> bool {
+    match fs::metadata(path) {
+        Ok(m) if m.is_file() && m.len() == bytes.len() as u64 => {
+            fs::read(path).is_ok_and(|b| b == bytes)
+        }
+        _ => false,
+    }
+}

@@ -528,3 +528,334 @@ fn a_layer_that_cannot_be_written_fails_alone_and_the_next_run_finishes_it() {
     assert!(out.join("town/houses.gltf").is_file());
     assert_no_temporaries(&out);
 }
+
+/// Every file under `dir` (relative path, `/`) with its modification time.
+fn times(dir: &Path) -> BTreeMap<String, std::time::SystemTime> {
+    tree(dir)
+        .into_keys()
+        .map(|rel| {
+            let t = fs::metadata(dir.join(&rel)).unwrap().modified().unwrap();
+            (rel, t)
+        })
+        .collect()
+}
+
+/// Sets every file under `dir` to a modification time long past, so a file
+/// rewritten later shows a new time whatever the file system's resolution.
+fn age(dir: &Path) {
+    let past = std::time::UNIX_EPOCH + std::time::Duration::from_secs(1_000_000_000);
+    for rel in tree(dir).into_keys() {
+        let f = fs::File::options().write(true).open(dir.join(rel)).unwrap();
+        f.set_modified(past).unwrap();
+    }
+}
+
+#[test]
+fn a_rerun_with_nothing_to_do_touches_no_file() {
+    let dir = TempDir::new("noop");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    let extra = ["--format", "all"];
+    assert_eq!(cut_json(&root, &out, &extra), all("cut", &THREE));
+    age(&out);
+    let (bytes, before) = (tree(&out), times(&out));
+    assert!(before.contains_key("underdraw-manifest.json"));
+    assert_eq!(cut_json(&root, &out, &extra), all("unchanged", &THREE));
+    // same files, same bytes, same modification times: a file watcher on
+    // the output folder sees nothing (the manifest included)
+    assert_eq!(tree(&out), bytes);
+    assert_eq!(times(&out), before);
+    // a real change still rewrites the manifest (the control: this test
+    // would fail if the times were not read back)
+    write_blob(&root.join("sky.png"), 13.0);
+    cut_json(&root, &out, &extra);
+    let after = times(&out);
+    assert_ne!(
+        after["underdraw-manifest.json"],
+        before["underdraw-manifest.json"]
+    );
+    assert_eq!(after["town/houses.gltf"], before["town/houses.gltf"]);
+}
+
+#[test]
+fn an_input_that_gives_no_layer_is_an_error_naming_it() {
+    let dir = TempDir::new("empty");
+    let root = layers(&dir);
+    let bare = dir.path("bare");
+    fs::create_dir_all(bare.join("sub")).unwrap();
+    fs::write(bare.join("sub/readme.txt"), "no layer here").unwrap();
+    // a folder whose name ends in .png is searched, and holds nothing
+    let named = dir.path("sky.png");
+    fs::create_dir_all(&named).unwrap();
+    let out = dir.path("out");
+    let o = run(&["--out", out.to_str().unwrap()], &[&bare, &named]);
+    assert_status(&o, 2, "folders without layers");
+    let err = text(&o.stderr);
+    assert!(
+        err.contains(&format!("{}: is a folder with no layer", bare.display())),
+        "{err}"
+    );
+    assert!(
+        err.contains(&format!(
+            "{}: is a folder (its name ends in .png",
+            named.display()
+        )),
+        "{err}"
+    );
+    assert!(
+        err.contains("no *.png file") && err.contains("nothing was cut"),
+        "{err}"
+    );
+    // nothing found, nothing written: not even the output folder
+    assert!(!out.exists());
+    // patterns that take none of a folder's PNG files: named, with the
+    // patterns tried; the other input's layers are still cut
+    let single = dir.path("single.png");
+    write_blob(&single, 12.0);
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--include", "ui/*.png"],
+        &[&root, &single],
+    );
+    assert_status(&o, 2, "patterns that take nothing");
+    let err = text(&o.stderr);
+    assert!(err.contains("1 of 2 inputs gave no layer"), "{err}");
+    assert!(
+        err.contains(&format!(
+            "{}: is a folder with 3 PNG file(s)",
+            root.display()
+        )) && err.contains("--include 'ui/*.png'"),
+        "{err}"
+    );
+    assert!(out.join("single.mesh.json").is_file());
+    // the same folder with a pattern that takes its layers: no error
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--include", "**/ui/*"],
+        &[&root],
+    );
+    assert_status(&o, 0, "a pattern that takes a layer");
+}
+
+#[test]
+fn files_given_directly_keep_the_layout_below_their_common_folder() {
+    let dir = TempDir::new("common");
+    // one file of the same name per theme folder
+    let themes = ["Art", "Bath", "Cave/Deep"];
+    let files: Vec<PathBuf> = themes
+        .iter()
+        .map(|t| dir.path(&format!("Themes/{t}/horizont.png")))
+        .collect();
+    for (k, f) in files.iter().enumerate() {
+        write_blob(f, 8.0 + k as f64);
+    }
+    let out = dir.path("out");
+    let paths: Vec<&Path> = files.iter().map(PathBuf::as_path).collect();
+    let o = run(&["--out", out.to_str().unwrap()], &paths);
+    assert_status(&o, 0, "same-name files of several folders");
+    assert!(
+        !text(&o.stderr).contains("same name"),
+        "{}",
+        text(&o.stderr)
+    );
+    let names: Vec<String> = tree(&out).into_keys().collect();
+    assert_eq!(
+        names,
+        [
+            "Art/horizont.mesh.json",
+            "Bath/horizont.mesh.json",
+            "Cave/Deep/horizont.mesh.json",
+            "underdraw-manifest.json"
+        ]
+    );
+    // each is the cut of its own file (their discs differ)
+    for (t, f) in themes.iter().zip(&files) {
+        let c = Command::new(BIN)
+            .arg("check")
+            .arg(out.join(format!("{t}/horizont.mesh.json")))
+            .arg(f)
+            .output()
+            .unwrap();
+        assert_status(&c, 0, t);
+    }
+    // files of one folder stay flat, as before
+    let flat = dir.path("flat");
+    let o = run(&["--out", flat.to_str().unwrap()], &paths[..1]);
+    assert_status(&o, 0, "one file");
+    assert_eq!(
+        tree(&flat).into_keys().collect::<Vec<_>>(),
+        ["horizont.mesh.json", "underdraw-manifest.json"]
+    );
+    // the same file twice still clashes (the later one fails)
+    let o = run(&["--out", flat.to_str().unwrap()], &[paths[0], paths[0]]);
+    assert_status(&o, 2, "the same file twice");
+    assert!(text(&o.stderr).contains("same name"), "{}", text(&o.stderr));
+}
+
+#[test]
+fn short_options_and_a_status_column_that_keeps_the_numbers_aligned() {
+    let dir = TempDir::new("short");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    let o = run(&["-o", out.to_str().unwrap(), "-j", "1", "-q"], &[&root]);
+    assert_status(&o, 0, "-j 1 -q");
+    // -q: nothing on stdout (Rust tools' convention, common practice, no source)
+    assert!(o.stdout.is_empty(), "{}", text(&o.stdout));
+    write_blob(&root.join("sky.png"), 13.0);
+    let o = run(&["-o", out.to_str().unwrap(), "-j", "2"], &[&root]);
+    assert_status(&o, 0, "-j 2");
+    let table = text(&o.stdout);
+    let lines: Vec<&str> = table.lines().take(4).collect();
+    assert!(lines[0].ends_with("status"), "{table}");
+    assert!(
+        lines[1].ends_with("  cut") && lines[2].ends_with("  unchanged"),
+        "{table}"
+    );
+    // every column ends where its header ends: the numbers stay aligned
+    // whatever the status
+    let ends = |l: &str| -> Vec<usize> {
+        let mut v = Vec::new();
+        let b = l.as_bytes();
+        for i in 1..b.len() {
+            if b[i - 1] != b' ' && b[i] == b' ' {
+                v.push(i);
+            }
+        }
+        v
+    };
+    let header = ends(lines[0]);
+    for l in &lines[1..] {
+        let e = ends(l);
+        // the layer, vertices, capture and excess columns (the excess holds a space)
+        assert_eq!(&e[1..3], &header[1..3], "{table}");
+        assert_eq!(e[5], header[3], "{table}");
+    }
+    // -j 0 is refused as --jobs 0 is
+    let o = run(&["-o", out.to_str().unwrap(), "-j", "0"], &[&root]);
+    assert_status(&o, 2, "-j 0");
+}
+
+#[test]
+fn a_second_run_into_a_locked_output_folder_waits_or_refuses_and_never_mixes() {
+    use std::time::Duration;
+    use underdraw::batch::lock::{Holder, OutputLock, FILE_NAME};
+    let dir = TempDir::new("lock");
+    let root = layers(&dir);
+    let out = dir.path("out");
+    fs::create_dir_all(&out).unwrap();
+    // the first run: this test process holds the folder's lock
+    let held = OutputLock::acquire(&out, Duration::ZERO).unwrap();
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--lock-wait", "0"],
+        &[&root],
+    );
+    assert_status(&o, 2, "a run into a locked folder");
+    let err = text(&o.stderr);
+    assert!(
+        err.contains(FILE_NAME)
+            && err.contains(&format!("process {}", std::process::id()))
+            && err.contains("wrote nothing"),
+        "{err}"
+    );
+    // it wrote nothing: the lock file is all there is
+    assert_eq!(tree(&out).into_keys().collect::<Vec<_>>(), [FILE_NAME]);
+    // a run that waits: it finishes once the first lets go
+    let child = Command::new(BIN)
+        .arg("cut")
+        .arg(&root)
+        .args(["--out", out.to_str().unwrap(), "--lock-wait", "120"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(Duration::from_millis(1000));
+    assert_eq!(
+        tree(&out).len(),
+        1,
+        "the waiting run wrote while the lock was held"
+    );
+    drop(held);
+    let o = child.wait_with_output().unwrap();
+    assert_status(&o, 0, "the waiting run");
+    assert!(
+        text(&o.stdout).contains("note: waited"),
+        "{}",
+        text(&o.stdout)
+    );
+    assert!(text(&o.stdout).contains("3 cut"), "{}", text(&o.stdout));
+    // a lock file left by a process that died is taken over, with a note
+    let gone = Holder {
+        pid: 4_000_000,
+        host: "build-agent-7".into(),
+        started: "2026-01-02T03:04:05Z".into(),
+    };
+    fs::write(out.join(FILE_NAME), serde_json::to_vec(&gone).unwrap()).unwrap();
+    let o = run(
+        &["--out", out.to_str().unwrap(), "--lock-wait", "0"],
+        &[&root],
+    );
+    assert_status(&o, 0, "a stale lock");
+    assert!(
+        text(&o.stdout).contains("took over the lock left by process 4000000 on build-agent-7"),
+        "{}",
+        text(&o.stdout)
+    );
+    assert!(!out.join(FILE_NAME).exists());
+}
+
+#[test]
+fn a_batch_of_one_writes_the_same_bytes_whatever_the_threads() {
+    // one layer tall enough for several row bands of the alpha analysis and
+    // of the self-check, with soft edges and holes
+    let dir = TempDir::new("one-layer");
+    let layer = dir.path("in/big.png");
+    fs::create_dir_all(layer.parent().unwrap()).unwrap();
+    RgbaImage::from_fn(300, 700, |x, y| {
+        let (fx, fy) = (x as f64, y as f64);
+        let wave = 150.0 + 90.0 * (fy / 37.0).sin() + 20.0 * (fy / 7.0).cos();
+        let d = fx - wave;
+        let a = if (x / 23 + y / 31) % 5 == 0 {
+            0 // holes
+        } else if d < -6.0 {
+            255
+        } else if d < 6.0 {
+            (127.0 - 21.0 * d) as u8 // a soft edge
+        } else {
+            0
+        };
+        Rgba([90, 120, 200, a])
+    })
+    .save_with_format(&layer, ImageFormat::Png)
+    .unwrap();
+    let runs: [(&str, &[&str], Option<&str>); 4] = [
+        ("j1", &["--jobs", "1"], None),
+        ("j2", &["-j", "2"], None),
+        ("rayon1", &[], Some("1")),
+        ("rayon3", &[], Some("3")),
+    ];
+    let mut trees = Vec::new();
+    for (name, extra, rayon) in runs {
+        let out = dir.path(name);
+        let mut c = Command::new(BIN);
+        c.arg("cut").arg(&layer).arg("--out").arg(&out);
+        c.args(["--format", "all", "--mip-levels", "2", "--budget", "48"]);
+        c.args(extra);
+        if let Some(n) = rayon {
+            c.env("RAYON_NUM_THREADS", n);
+        }
+        let o = c.output().unwrap();
+        assert_status(&o, 0, name);
+        trees.push((name, tree(&out)));
+    }
+    assert_eq!(trees[0].1.len(), 4, "{:?}", trees[0].1.keys());
+    for (name, t) in &trees[1..] {
+        for (file, bytes) in &trees[0].1 {
+            assert!(t[file] == *bytes, "{file} differs between j1 and {name}");
+        }
+    }
+    let c = Command::new(BIN)
+        .arg("check")
+        .arg(dir.path("j2/big.mesh.json"))
+        .arg(&layer)
+        .output()
+        .unwrap();
+    assert_status(&c, 0, "check of the one layer");
+}

@@ -304,7 +304,11 @@ fn outputs_are_deterministic_and_leave_no_temporary_files() {
     let dir = TempDir::new("determinism");
     let blob = dir.path("blob.png");
     write_blob(&blob);
-    let layers = [demo("ui-button.png"), demo("ui-panel.png"), blob];
+    // files given directly from one folder are written flat
+    let layers = [dir.path("ui-button.png"), dir.path("ui-panel.png"), blob];
+    for name in ["ui-button.png", "ui-panel.png"] {
+        fs::copy(demo(name), dir.path(name)).unwrap();
+    }
     let names = [
         "ui-button.mesh.json",
         "ui-panel.mesh.json",
@@ -383,4 +387,100 @@ fn index_out_of_range_is_bad_input_naming_the_file() {
     assert_status(&r, 2, "check of a mesh with a bad index");
     let stderr = text(&r.stderr);
     assert_names(&stderr, "broken.mesh.json", &beyond.to_string());
+}
+
+#[test]
+fn every_value_list_in_help_is_written_the_same_way() {
+    // clap writes a value enum's values as a list, one line a value with its
+    // meaning, when every value is documented, and as one bracketed line
+    // otherwise: only the list may appear
+    for cmd in ["cut", "sweep", "scene"] {
+        let r = run(&[p(cmd), p("--help")]);
+        assert_status(&r, 0, cmd);
+        let help = text(&r.stdout);
+        assert!(!help.contains("[possible values"), "{cmd} --help:\n{help}");
+        if cmd != "scene" {
+            for value in ["- nearest: ", "- bilinear: ", "- xy: "] {
+                assert!(help.contains(value), "{cmd} --help lacks {value}:\n{help}");
+            }
+        }
+    }
+}
+
+/// Every file under `dir` (relative path) with its bytes and modification time.
+fn files_with_times(dir: &Path) -> Vec<(String, Vec<u8>, std::time::SystemTime)> {
+    let mut v = Vec::new();
+    let mut stack = vec![dir.to_path_buf()];
+    while let Some(d) = stack.pop() {
+        for e in fs::read_dir(&d).unwrap() {
+            let p = e.unwrap().path();
+            if p.is_dir() {
+                stack.push(p);
+            } else {
+                let rel = p.strip_prefix(dir).unwrap().display().to_string();
+                let t = fs::metadata(&p).unwrap().modified().unwrap();
+                v.push((rel, fs::read(&p).unwrap(), t));
+            }
+        }
+    }
+    v.sort();
+    v
+}
+
+#[test]
+fn scene_export_again_with_nothing_changed_touches_no_file() {
+    let dir = TempDir::new("scene-noop");
+    write_blob(&dir.path("a.png"));
+    write_png(
+        &dir.path("b.png"),
+        32,
+        24,
+        |x, _| if x < 20 { 255 } else { 0 },
+    );
+    let scene = dir.path("s.scene.json");
+    fs::write(
+        &scene,
+        r#"{"viewport": [64, 48], "camera": {"travel": 16, "samples": 2},
+  "layers": [{"name": "a", "image": "a.png", "cut": {"budget": 12}},
+             {"name": "b", "image": "b.png", "cut": {"budget": 8}, "position": [10, 10]}]}"#,
+    )
+    .unwrap();
+    let (out, export) = (dir.path("out"), dir.path("export"));
+    let args = [
+        p("scene"),
+        &scene,
+        p("--out"),
+        &out,
+        p("--export"),
+        &export,
+        p("-q"),
+    ];
+    assert_status(&run(&args), 0, "scene --export");
+    // long past, so a rewrite shows whatever the file system's time resolution
+    let past = std::time::UNIX_EPOCH + std::time::Duration::from_secs(1_000_000_000);
+    for d in [&out, &export] {
+        for (rel, _, _) in files_with_times(d) {
+            let f = fs::File::options().write(true).open(d.join(rel)).unwrap();
+            f.set_modified(past).unwrap();
+        }
+    }
+    let before = [files_with_times(&out), files_with_times(&export)];
+    assert!(before[1].iter().any(|(r, _, _)| r == "draw-list.json"));
+    assert_status(&run(&args), 0, "scene --export again");
+    // same files, same bytes, same times (the draw list included)
+    assert_eq!([files_with_times(&out), files_with_times(&export)], before);
+    // a changed layer rewrites its mesh (the control)
+    write_png(
+        &dir.path("b.png"),
+        32,
+        24,
+        |x, _| if x < 18 { 255 } else { 0 },
+    );
+    assert_status(&run(&args), 0, "scene --export after a change");
+    let after = files_with_times(&export);
+    let time = |v: &[(String, Vec<u8>, std::time::SystemTime)], n: &str| {
+        v.iter().find(|(r, _, _)| r == n).unwrap().2
+    };
+    assert_ne!(time(&after, "b.mesh.json"), past);
+    assert_eq!(time(&after, "a.mesh.json"), past);
 }

@@ -104,7 +104,16 @@ fn exports() -> &'static Exports {
             &odd,
         )
         .unwrap();
-        let mut images = demo_layers();
+        // copies of the demo layers beside them: files given directly from
+        // one folder are written flat, so the outputs are `<stem>.*`
+        let mut images: Vec<PathBuf> = demo_layers()
+            .iter()
+            .map(|d| {
+                let copy = layers_dir.join(d.file_name().unwrap());
+                fs::copy(d, &copy).unwrap();
+                copy
+            })
+            .collect();
         images.push(empty);
         images.push(odd.clone());
 

@@ -141,7 +141,8 @@ fn rounded(v: &[f64]) -> Vec<f64> {
     v.iter().map(|x| x.round()).collect()
 }
 
-fn target(
+/// A target from its measured value (`None`: not run).
+pub fn target(
     name: String,
     measured: Option<f64>,
     limit: f64,

@@ -73,19 +73,28 @@ impl AlphaMap {
         self.alpha[y as usize * self.width as usize + x as usize]
     }
 
-    /// Counts of (opaque, partial, transparent) texels.
+    /// Counts of (opaque, partial, transparent) texels (counted in bands
+    /// of rows on rayon's pool; sums, so the same whatever the threads).
     pub fn class_counts(&self, t: AlphaThresholds) -> (u64, u64, u64) {
-        let (mut o, mut p, mut tr) = (0u64, 0u64, 0u64);
-        for &a in &self.alpha {
-            if a >= t.opaque_min {
-                o += 1;
-            } else if a >= t.visible_min {
-                p += 1;
-            } else {
-                tr += 1;
-            }
-        }
-        (o, p, tr)
+        use rayon::prelude::*;
+        let band = (self.width as usize).max(1) * BAND_ROWS as usize;
+        let (o, v) = self
+            .alpha
+            .par_chunks(band)
+            .map(|texels| {
+                let (mut o, mut v) = (0u64, 0u64);
+                for &a in texels {
+                    o += (a >= t.opaque_min) as u64;
+                    v += (a >= t.visible_min) as u64;
+                }
+                (o, v)
+            })
+            .reduce(|| (0, 0), |a, b| (a.0 + b.0, a.1 + b.1));
+        // with opaque_min >= visible_min (validated) every opaque texel is
+        // visible; otherwise no texel is partial, as in the definition above
+        let all = self.alpha.len() as u64;
+        let partial = v.saturating_sub(o);
+        (o, partial, all - o - partial)
     }
 }
 
@@ -179,10 +188,20 @@ pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
     (runs, area)
 }
 
+/// Grid rows per band of the final pass of [`region`], each band run as
+/// one task (a few tasks a thread on big layers, one on small ones).
+const BAND_ROWS: u32 = 256;
+
 /// The safe-opaque region (`all`: every texel of a block at least `min`)
 /// or the must-cover region (`!all`: any texel), and its set cells, built
 /// row by row as runs ([`runs`]).
+///
+/// Every step maps rows to rows independently (texel rows, block rows,
+/// then bands of grid rows, each band with its own memo of the last
+/// window), so the steps run in parallel on rayon's pool and the rows are
+/// assembled in order: the result is the same whatever the thread count.
 fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns {
+    use rayon::prelude::*;
     let (w, h) = (map.width as usize, map.height as usize);
     let (cw, ch) = (2 * map.width, 2 * map.height);
     let mut out = RowRuns::new(cw as usize);
@@ -193,10 +212,9 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
         return out;
     }
     let bilinear = settings.filter.mode == FilterMode::Bilinear;
-    let mut scratch = Row::new();
     let texel_rows: Vec<Row> = map
         .alpha
-        .chunks_exact(w)
+        .par_chunks_exact(w)
         .map(|texels| {
             let mut r = Row::new();
             runs::threshold(texels, min, &mut r);
@@ -208,11 +226,11 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
         .map(|level| {
             let s = 1usize << level;
             texel_rows
-                .chunks(s)
-                .map(|rows| {
+                .par_chunks(s)
+                .map_init(Row::new, |scratch, rows| {
                     let mut acc = rows[0].clone();
                     for r in &rows[1..] {
-                        runs::combine(&mut acc, r, all, &mut scratch);
+                        runs::combine(&mut acc, r, all, scratch);
                     }
                     let mut cells = Row::new();
                     runs::blocks_to_cells(&acc, s as u32, map.width, all, &mut cells);
@@ -228,10 +246,37 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
         })
         .collect();
     drop(texel_rows);
+    let bands: Vec<(u32, u32)> = (0..ch)
+        .step_by(BAND_ROWS as usize)
+        .map(|y0| (y0, (y0 + BAND_ROWS).min(ch)))
+        .collect();
+    let rows: Vec<Vec<Row>> = bands
+        .par_iter()
+        .map(|&(y0, y1)| grid_rows(&levels, y0..y1, ch, settings, bilinear, all))
+        .collect();
+    for row in rows.iter().flatten() {
+        out.push_row(row);
+    }
+    out
+}
+
+/// Grid rows `ys` of a region from its levels' filtered block rows: per
+/// row, each level's window of block rows combined (down the columns for
+/// bilinear), then the levels combined.
+fn grid_rows(
+    levels: &[Vec<Row>],
+    ys: std::ops::Range<u32>,
+    ch: u32,
+    settings: &CutSettings,
+    bilinear: bool,
+    all: bool,
+) -> Vec<Row> {
+    let mut scratch = Row::new();
     // per level, the last window's block rows and their combination
     let mut cache: Vec<([usize; 4], Row)> = vec![([usize::MAX; 4], Row::new()); levels.len()];
     let mut acc = Row::new();
-    for y in 0..ch {
+    let mut out = Vec::with_capacity(ys.len());
+    for y in ys {
         for (level, rows) in levels.iter().enumerate() {
             let s = 1u32 << level;
             let block_row = |r: u32| (r / (2 * s)) as usize;
@@ -261,7 +306,7 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
                 runs::combine(&mut acc, row, all, &mut scratch);
             }
         }
-        out.push_row(&acc);
+        out.push(acc.clone());
     }
     out
 }
@@ -332,6 +377,47 @@ mod tests {
                     "case {case}: cover cell {i} differs ({settings:?})"
                 );
             }
+        }
+    }
+
+    /// A layer tall enough for several bands of the final pass: the runs
+    /// equal the cell-by-cell reference on one thread and on three, at
+    /// every filter, with mip levels and with wrapping down the columns
+    /// (where a band's first window reaches rows of other bands).
+    #[test]
+    fn bands_give_the_reference_regions_whatever_the_threads() {
+        let mut rng = Lcg(77);
+        let mut rnd = move || rng.next() as u32;
+        let (w, h) = (37, 3 * BAND_ROWS / 2 + 29);
+        let alpha: Vec<u8> = (0..w * h).map(|_| noisy_alpha(&mut rnd, 80)).collect();
+        let map = AlphaMap::from_raw(w, h, alpha);
+        let pool = |n| {
+            rayon::ThreadPoolBuilder::new()
+                .num_threads(n)
+                .build()
+                .unwrap()
+        };
+        for case in 0..6 {
+            let mut settings = random_settings(&mut rnd, case, 4);
+            if case < 2 {
+                settings.wrap = Wrap::Xy;
+            }
+            let t = settings.alpha;
+            for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
+                let theirs = reference::region(&map, &settings, min, all);
+                for threads in [1, 3] {
+                    let ours = pool(threads).install(|| region(&map, &settings, min, all));
+                    assert_eq!(
+                        ours.to_mask(),
+                        theirs,
+                        "case {case}, {threads} threads: all={all} {settings:?}"
+                    );
+                }
+            }
+            let counts = pool(3).install(|| map.class_counts(t));
+            let one = pool(1).install(|| map.class_counts(t));
+            assert_eq!(counts, one);
+            assert_eq!(counts.0 + counts.1 + counts.2, (w * h) as u64);
         }
     }
 

@@ -19,7 +19,7 @@
 //! files that were whole and complete together.
 
 use crate::error::FileError;
-use crate::io::write_atomic;
+use crate::io::write_if_changed;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::collections::BTreeMap;
@@ -134,11 +134,13 @@ impl Manifest {
         Ok(Some(m))
     }
 
-    /// Writes the manifest into `out`, atomically.
-    pub fn save(&self, out: &Path) -> Result<(), FileError> {
+    /// Writes the manifest into `out`, atomically, unless the file there
+    /// already holds the same bytes (a rerun with nothing to do leaves it
+    /// untouched, modification time included). Returns whether it wrote.
+    pub fn save(&self, out: &Path) -> Result<bool, FileError> {
         let mut bytes = serde_json::to_vec_pretty(self).expect("a manifest serializes");
         bytes.push(b'\n');
-        write_atomic(&out.join(FILE_NAME), &bytes)
+        write_if_changed(&out.join(FILE_NAME), &bytes)
     }
 }
 

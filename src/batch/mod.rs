@@ -2,7 +2,10 @@
 //! a settings file, a manifest, and reruns that skip what did not change.
 //!
 //! [`plan`] turns a [`Request`] into [`Job`]s: a file given directly is one
-//! job, written flat as `OUT/<stem>.*`; a folder is walked ([`walk`]) for
+//! job, written relative to the deepest folder common to all the files
+//! given directly (files of one folder: flat, as `OUT/<stem>.*`;
+//! `a/x/l.png` and `a/y/l.png`: `OUT/x/l.*` and `OUT/y/l.*`); a folder is
+//! walked ([`walk`]) for
 //! `*.png` and its layers are written with the folder's layout mirrored
 //! (`in/town/houses.png` → `OUT/town/houses.mesh.json`). Each job's settings
 //! are, lowest to highest: the built-in defaults, the settings file's
@@ -13,6 +16,9 @@
 //! Invariants:
 //! - the output folder is never an input folder; inside one it is skipped
 //!   by the walk; two jobs never write the same outputs (the later fails);
+//! - an input that gives no layer (a folder without PNG files, or whose
+//!   PNG files the patterns all leave out) is an error of the plan
+//!   ([`Plan::empty`]), naming it;
 //! - each layer's outputs are written together ([`write::commit`]), and its
 //!   manifest entry ([`manifest`]) is recorded only after they are all in
 //!   place; the manifest is written atomically after each finished layer
@@ -22,6 +28,8 @@
 //!   settings and the underdraw version equal its entry's and every output
 //!   recorded is there with its recorded hash;
 //! - a bad file or a panic fails that layer only;
+//! - one run at a time writes an output folder ([`lock`]): another waits
+//!   for it or refuses, writing nothing;
 //! - the same inputs and settings give the same output bytes (manifest
 //!   included) whatever the number of threads: layers are cut
 //!   deterministically and reported in plan order.
@@ -52,6 +60,7 @@
 #![warn(missing_docs)]
 
 pub mod layer;
+pub mod lock;
 pub mod manifest;
 pub mod run;
 pub mod settings_file;
@@ -132,6 +141,95 @@ pub struct Plan {
     pub outputs: Outputs,
     /// The layers, in order: inputs as given, each folder's in sorted order.
     pub jobs: Vec<Job>,
+    /// One error per input that gave no layer, in the order given: a
+    /// folder with no PNG file, or none that `--include`/`--exclude` take.
+    /// The caller reports them as failures (the run is not a success).
+    pub empty: Vec<FileError>,
+}
+
+/// `p` made absolute, with `.` and `..` resolved by name (links are not
+/// followed), so a layout derived from it never climbs out of a folder.
+fn lexical(p: &Path) -> Option<PathBuf> {
+    use std::path::Component;
+    let mut out = PathBuf::new();
+    for c in std::path::absolute(p).ok()?.components() {
+        match c {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                out.pop();
+            }
+            c => out.push(c.as_os_str()),
+        }
+    }
+    Some(out)
+}
+
+/// The deepest folder holding all of `files` (made absolute, `.` and `..`
+/// resolved by name, links not followed), or `None` when they share none
+/// (other drives).
+pub fn common_folder(files: &[&Path]) -> Option<PathBuf> {
+    let mut common: Option<PathBuf> = None;
+    for f in files {
+        let abs = lexical(f)?;
+        let parent = abs.parent()?.to_path_buf();
+        common = Some(match common {
+            None => parent,
+            Some(c) => {
+                let mut shared = PathBuf::new();
+                for (a, b) in c.components().zip(parent.components()) {
+                    if a != b {
+                        break;
+                    }
+                    shared.push(a.as_os_str());
+                }
+                if shared.as_os_str().is_empty() {
+                    return None;
+                }
+                shared
+            }
+        });
+    }
+    common
+}
+
+/// The error for an input folder that gave no layer: `pngs` PNG files were
+/// found in it before the patterns chose.
+fn empty_input(input: &Path, pngs: usize, req: &Request) -> FileError {
+    let named_png = input
+        .extension()
+        .is_some_and(|x| x.to_string_lossy().eq_ignore_ascii_case("png"));
+    let what = if named_png {
+        "is a folder (its name ends in .png, but it is no PNG file)"
+    } else {
+        "is a folder"
+    };
+    let patterns = |flag: &str, ps: &[String]| {
+        ps.iter()
+            .map(|p| format!("{flag} '{p}'"))
+            .collect::<Vec<_>>()
+            .join(" ")
+    };
+    if pngs == 0 {
+        FileError::new(
+            input,
+            format!("{what} with no layer: no *.png file in it or in its subfolders (any case of the extension)"),
+            "check the path; give the folder that holds the PNG layers, or the PNG files themselves",
+        )
+    } else {
+        let mut tried = patterns("--include", &req.include);
+        let ex = patterns("--exclude", &req.exclude);
+        if !ex.is_empty() {
+            if !tried.is_empty() {
+                tried.push(' ');
+            }
+            tried.push_str(&ex);
+        }
+        FileError::new(
+            input,
+            format!("{what} with {pngs} PNG file(s), but the patterns took none of them ({tried})"),
+            "patterns match the path relative to this folder with `/`: `*` stays within a folder name, `**` crosses folders (`--include '**/sky*.png'`); check the patterns or leave them out",
+        )
+    }
 }
 
 fn canonical(p: &Path) -> Option<PathBuf> {
@@ -165,7 +263,15 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
         .as_deref()
         .map(SettingsFile::load)
         .transpose()?;
+    let direct: Vec<&Path> = req
+        .inputs
+        .iter()
+        .filter(|i| !i.is_dir())
+        .map(PathBuf::as_path)
+        .collect();
+    let common = common_folder(&direct);
     let mut jobs = Vec::new();
+    let mut empty = Vec::new();
     for input in &req.inputs {
         if !input.is_dir() {
             let name = input.file_name().map(|s| s.to_string_lossy().into_owned());
@@ -174,13 +280,28 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
                 .file_stem()
                 .map(|s| s.to_string_lossy().into_owned())
                 .unwrap_or_else(|| "layer".into());
+            // the folders below the common one, mirrored (none: flat)
+            let sub = common
+                .as_deref()
+                .zip(lexical(input))
+                .and_then(|(c, abs)| {
+                    abs.parent()
+                        .and_then(|p| p.strip_prefix(c).ok())
+                        .map(|p| walk::relative(Path::new(""), p))
+                })
+                .unwrap_or_default();
+            let key = if sub.is_empty() {
+                stem.clone()
+            } else {
+                format!("{sub}/{stem}")
+            };
             jobs.push(job(
                 req,
                 given.as_ref(),
                 input.clone(),
                 relative,
-                stem.clone(),
                 stem,
+                key,
             )?);
             continue;
         }
@@ -198,7 +319,11 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
             None => None,
         };
         let file = given.as_ref().or(found.as_ref());
-        for path in walk::walk(input, &filter, out_canon.as_deref())? {
+        let (paths, pngs) = walk::walk_counted(input, &filter, out_canon.as_deref())?;
+        if paths.is_empty() {
+            empty.push(empty_input(input, pngs, req));
+        }
+        for path in paths {
             let relative = walk::relative(input, &path);
             let stem = path
                 .file_stem()
@@ -225,6 +350,7 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
         out: req.out.clone(),
         outputs: req.outputs,
         jobs,
+        empty,
     })
 }
 

@@ -1,7 +1,9 @@
 //! Running a plan: the layers on a thread pool, the manifest kept up to
 //! date as they finish, one report per layer.
 //!
-//! Invariants: the reports come in plan order whatever the number of
+//! Invariants: one run at a time per output folder (its lock, taken
+//! before the manifest is read and released after it is written last); the
+//! reports come in plan order whatever the number of
 //! threads; a layer's manifest entry is inserted only after
 //! [`super::layer`] committed all its outputs; the manifest is saved at
 //! most once a second while layers finish and always at the end (when it
@@ -9,6 +11,7 @@
 //! of the layers it finished.
 
 use super::layer::{self, catch_layer};
+use super::lock::OutputLock;
 use super::manifest::{LayerResult, Manifest};
 use super::{Job, Plan};
 use crate::error::FileError;
@@ -27,6 +30,9 @@ pub struct RunOptions {
     pub force: bool,
     /// The largest layer accepted.
     pub limits: ImageLimits,
+    /// How long to wait for another run that holds the output folder's
+    /// lock ([`super::lock`]) before refusing.
+    pub lock_wait: Duration,
 }
 
 /// What became of a layer.
@@ -93,8 +99,10 @@ pub fn prepare_out(out: &Path) -> Result<(), FileError> {
 }
 
 /// Runs `plan`: every layer on a pool of `opts.jobs` threads, calling
-/// `done` as each finishes. Errors (nothing is cut): the output folder
-/// cannot be created or written, the thread pool cannot start.
+/// `done` as each finishes, holding the output folder's lock throughout.
+/// Errors (nothing is cut): the output folder cannot be created or written,
+/// another run holds its lock after `opts.lock_wait`, the thread pool
+/// cannot start.
 pub fn run(
     plan: &Plan,
     opts: &RunOptions,
@@ -102,7 +110,21 @@ pub fn run(
 ) -> Result<BatchReport, FileError> {
     use rayon::prelude::*;
     prepare_out(&plan.out)?;
+    let lock = OutputLock::acquire(&plan.out, opts.lock_wait)?;
     let mut notes = Vec::new();
+    if let Some(old) = &lock.took_over {
+        notes.push(format!(
+            "{}: took over the lock left by {old}, which no longer held it",
+            lock.path().display()
+        ));
+    }
+    if lock.waited >= Duration::from_millis(500) {
+        notes.push(format!(
+            "waited {:.1} s for another run writing {} to finish",
+            lock.waited.as_secs_f64(),
+            plan.out.display()
+        ));
+    }
     let (manifest, existed) = match Manifest::load(&plan.out) {
         Ok(Some(m)) => (m, true),
         Ok(None) => (Manifest::new(), false),
@@ -191,6 +213,7 @@ pub fn run(
             manifest_error = Some(e);
         }
     }
+    drop(lock);
     Ok(BatchReport {
         layers,
         notes,

@@ -42,7 +42,19 @@ pub fn relative(root: &Path, path: &Path) -> String {
 /// The PNG layers under `root` that `filter` takes, in sorted order, never
 /// looking into `skip` (the output folder, canonical, when it exists).
 pub fn walk(root: &Path, filter: &Filter, skip: Option<&Path>) -> Result<Vec<PathBuf>, FileError> {
+    walk_counted(root, filter, skip).map(|(found, _)| found)
+}
+
+/// As [`walk`], with the number of PNG files seen before `filter` chose
+/// among them (to tell an empty folder from one whose layers the patterns
+/// all left out).
+pub fn walk_counted(
+    root: &Path,
+    filter: &Filter,
+    skip: Option<&Path>,
+) -> Result<(Vec<PathBuf>, usize), FileError> {
     let mut found = Vec::new();
+    let mut seen = 0;
     let entries = walkdir::WalkDir::new(root)
         .sort_by_file_name()
         .into_iter()
@@ -63,11 +75,14 @@ pub fn walk(root: &Path, filter: &Filter, skip: Option<&Path>) -> Result<Vec<Pat
         let png = path
             .extension()
             .is_some_and(|x| x.to_string_lossy().eq_ignore_ascii_case("png"));
-        if png && path.is_file() && filter.takes(&relative(root, path)) {
-            found.push(path.to_path_buf());
+        if png && path.is_file() {
+            seen += 1;
+            if filter.takes(&relative(root, path)) {
+                found.push(path.to_path_buf());
+            }
         }
     }
-    Ok(found)
+    Ok((found, seen))
 }
 
 #[cfg(test)]

@@ -46,7 +46,7 @@
 //! for it, and its `.glb` has no BIN chunk.
 
 use crate::error::FileError;
-use crate::io::write_atomic;
+use crate::io::write_if_changed;
 use crate::mesh::{LayerMesh, Winding};
 use crate::settings::FilterMode;
 use serde_json::{json, Value};
@@ -359,7 +359,8 @@ fn cut_extras(mesh: &LayerMesh, reversed: bool) -> Value {
 }
 
 /// Writes `<dir>/<stem>.bin` (when the layer has triangles) and then
-/// `<dir>/<stem>.gltf`, each atomically, and returns the paths written.
+/// `<dir>/<stem>.gltf`, each atomically (a file that already holds the
+/// same bytes is left untouched), and returns their paths.
 /// `image_uri` is the layer's PNG relative to `dir`, as a URI reference
 /// (see [`relative_uri`]).
 pub fn write_gltf(
@@ -374,17 +375,18 @@ pub fn write_gltf(
     let mut written = Vec::new();
     if !asset.bin.is_empty() {
         // the .bin first, so a reader never sees a new .gltf with an old .bin
-        write_atomic(&bin, &asset.bin)?;
+        write_if_changed(&bin, &asset.bin)?;
         written.push(bin);
         asset.json["buffers"][0]["uri"] = json!(encode_uri(&format!("{stem}.bin")));
     }
     let text = serde_json::to_vec_pretty(&asset.json).expect("glTF JSON serializes");
-    write_atomic(&gltf, &text)?;
+    write_if_changed(&gltf, &text)?;
     written.push(gltf);
     Ok(written)
 }
 
-/// Writes `<dir>/<stem>.glb` atomically and returns its path.
+/// Writes `<dir>/<stem>.glb` atomically (left untouched when it already
+/// holds the same bytes) and returns its path.
 pub fn write_glb(
     mesh: &LayerMesh,
     image_uri: &str,
@@ -394,7 +396,7 @@ pub fn write_glb(
     let dest = glb_path(dir, stem);
     malformed(mesh).map_or(Ok(()), |why| Err(refuse(&dest, why)))?;
     let asset = build(mesh, image_uri, stem);
-    write_atomic(&dest, &to_glb(&asset))?;
+    write_if_changed(&dest, &to_glb(&asset))?;
     Ok(vec![dest])
 }
 

@@ -26,7 +26,7 @@ use super::file::Scene;
 use super::prepare::Layer;
 use crate::error::FileError;
 use crate::export::gltf::{relative_uri, write_gltf};
-use crate::io::write_atomic;
+use crate::io::write_if_changed;
 use crate::mesh::LayerMesh;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
@@ -295,8 +295,9 @@ pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
     Ok(list)
 }
 
-/// Writes `bytes` to `dir/name` atomically (the plain writer for
-/// [`export_scene`] when no input needs protecting).
+/// Writes `bytes` to `dir/name` atomically, leaving a file that already
+/// holds them untouched (the plain writer for [`export_scene`] when no
+/// input needs protecting).
 pub fn write_into(dir: &Path) -> impl FnMut(&str, &[u8]) -> Result<(), FileError> + '_ {
-    move |name, bytes| write_atomic(&dir.join(name), bytes)
+    move |name, bytes| write_if_changed(&dir.join(name), bytes).map(|_| ())
 }

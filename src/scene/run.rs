@@ -11,7 +11,7 @@ use super::score::{render_frame, score_frames_with, summarize};
 use crate::error::FileError;
 use crate::frame::Draw;
 use crate::heatmap::{counts_png, heatmap, rgb_png};
-use crate::io::write_atomic;
+use crate::io::write_if_changed;
 use crate::mesh::LayerMesh;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
@@ -102,7 +102,8 @@ impl Outputs {
                 ));
             }
         }
-        write_atomic(&dest, bytes)?;
+        // an output with the same bytes is left untouched (its time too)
+        write_if_changed(&dest, bytes)?;
         self.written.push(dest.display().to_string());
         Ok(())
     }

@@ -25,8 +25,10 @@ pub(crate) struct CutArgs {
     /// PNG layers (RGBA; images without alpha count as fully opaque) and
     /// folders: a folder is searched recursively for `*.png`, and its
     /// layout is mirrored in the output folder (`in/town/houses.png` →
-    /// `OUT/town/houses.mesh.json`); a file given directly is written as
-    /// `OUT/<stem>.*`.
+    /// `OUT/town/houses.mesh.json`); files given directly are laid out
+    /// below their deepest common folder (files of one folder: `OUT/<stem>.*`;
+    /// `T/Art/h.png` and `T/Bath/h.png`: `OUT/Art/h.*` and `OUT/Bath/h.*`).
+    /// An input that gives no layer is an error.
     #[arg(required = true, value_name = "PATH")]
     images: Vec<PathBuf>,
     /// Folder for the output files (created if missing) and the manifest
@@ -49,11 +51,16 @@ pub(crate) struct CutArgs {
     #[arg(long, value_name = "FILE")]
     settings: Option<PathBuf>,
     /// Layers cut at once (default: one per core).
-    #[arg(long, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
+    #[arg(long, short, value_name = "N", value_parser = clap::value_parser!(u32).range(1..))]
     jobs: Option<u32>,
     /// Cut every layer, even those the manifest shows unchanged.
     #[arg(long)]
     force: bool,
+    /// Seconds to wait for another run writing the same --out folder (it
+    /// holds `OUT/underdraw.lock`, which names it) before refusing; 0
+    /// refuses at once.
+    #[arg(long, value_name = "S", default_value_t = 10)]
+    lock_wait: u64,
     /// What to write per layer. `gltf`: a glTF 2.0 asset for an engine, one
     /// mesh with two primitives over one vertex array: the opaque one with
     /// alphaMode OPAQUE (draw with blending off), the blended one with BLEND;
@@ -76,7 +83,7 @@ pub(crate) struct CutArgs {
     preview: bool,
     /// Most vertices per layer, both meshes together (a vertex they share
     /// counts once). At least 4.
-    #[arg(long, default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
+    #[arg(long, value_name = "N", default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
     budget: u32,
     #[command(flatten)]
     options: CutOptions,
@@ -140,10 +147,19 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
             return ExitCode::from(2);
         }
     };
+    if plan.jobs.is_empty() {
+        // nothing to cut: a typo in a path or a pattern must not pass silently
+        for e in &plan.empty {
+            error(e);
+        }
+        error("no layer found: nothing was cut\n  hint: give PNG files or folders that hold them; see `underdraw cut --help` for --include and --exclude");
+        return ExitCode::from(2);
+    }
     let options = batch::RunOptions {
         jobs: args.jobs.map(|n| n as usize),
         force: args.force,
         limits,
+        lock_wait: std::time::Duration::from_secs(args.lock_wait),
     };
     // a bar only for a batch
     let progress = if plan.jobs.len() > 1 {
@@ -161,7 +177,15 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         }
     };
     if print.json {
-        let objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
+        let mut objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
+        objects.extend(plan.empty.iter().map(|e| {
+            serde_json::json!({
+                "layer": e.path.display().to_string(),
+                "status": Status::Failed,
+                "outputs": [],
+                "error": e.to_string(),
+            })
+        }));
         println!(
             "{}",
             serde_json::to_string_pretty(&objects).expect("plain values serialize")
@@ -194,8 +218,18 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
     if let Some(e) = &report.manifest_error {
         error(e);
     }
+    if !plan.empty.is_empty() {
+        eprintln!(
+            "{} of {} inputs gave no layer:",
+            plan.empty.len(),
+            args.images.len()
+        );
+        for e in &plan.empty {
+            error(e);
+        }
+    }
     if failed.is_empty() {
-        return if report.manifest_error.is_some() {
+        return if report.manifest_error.is_some() || !plan.empty.is_empty() {
             ExitCode::from(2)
         } else {
             ExitCode::SUCCESS
@@ -211,28 +245,38 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
 }
 
 fn print_table(layers: &[LayerReport]) {
+    // the status in a column of its own, last, so the numbers stay aligned
+    let rows: Vec<(&LayerReport, &batch::manifest::LayerResult)> = layers
+        .iter()
+        .filter_map(|l| l.result.as_ref().map(|r| (l, r)))
+        .collect();
+    let width = rows
+        .iter()
+        .map(|(l, _)| l.input.display().to_string().chars().count())
+        .max()
+        .unwrap_or(0)
+        .max(28);
     println!(
-        "{:<28} {:>8} {:>9} {:>12}",
+        "{:<width$} {:>8} {:>9} {:>20}  status",
         "layer", "vertices", "capture", "excess"
     );
-    for l in layers {
-        let Some(r) = &l.result else { continue };
+    for (l, r) in rows {
+        let share = if r.must_cover_area > 0.0 {
+            100.0 * r.excess / r.must_cover_area
+        } else {
+            0.0
+        };
+        let excess = format!("{:.0} tx ({share:.1}%)", r.excess);
+        let status = match l.status {
+            Status::Cut => "cut",
+            Status::Unchanged => "unchanged",
+            Status::Failed => "failed",
+        };
         println!(
-            "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%){}",
-            l.input.display(),
+            "{:<width$} {:>8} {:>8.1}% {excess:>20}  {status}",
+            l.input.display().to_string(),
             r.vertices,
             100.0 * r.opaque_capture,
-            r.excess,
-            if r.must_cover_area > 0.0 {
-                100.0 * r.excess / r.must_cover_area
-            } else {
-                0.0
-            },
-            if l.status == Status::Unchanged {
-                "  unchanged"
-            } else {
-                ""
-            }
         );
         for n in r.warnings.iter().chain(&r.notes) {
             println!("  note: {n}");

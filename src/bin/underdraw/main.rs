@@ -31,7 +31,7 @@ struct Cli {
     #[command(subcommand)]
     command: Command,
     /// Print nothing but errors (on stderr); no tables, no progress bar.
-    #[arg(long, global = true)]
+    #[arg(long, short, global = true)]
     quiet: bool,
     /// Print a machine-readable result on stdout instead of the tables:
     /// `cut`, an array of per-layer objects (layer, status cut / unchanged
@@ -115,41 +115,47 @@ enum Command {
     Sweep(SweepArgs),
 }
 
+// Every value enum documents each of its values, so `--help` lists every
+// option's values the same way (one line a value, with its meaning).
 #[derive(Clone, Copy, ValueEnum)]
 pub(crate) enum FilterArg {
+    /// The opaque mesh stays inside opaque texels.
     Nearest,
+    /// The opaque mesh also stays half a texel (2^(l-1) at mip level l) from any texel that is not opaque.
     Bilinear,
 }
 
 #[derive(Clone, Copy, ValueEnum)]
 pub(crate) enum WrapArg {
+    /// Both axes clamp to the edge texel.
     None,
+    /// The texture repeats horizontally (a strip tiled side by side).
     X,
+    /// The texture repeats vertically.
     Y,
+    /// The texture repeats on both axes.
     Xy,
 }
 
 /// The cut settings other than the budget.
 #[derive(Args)]
 pub(crate) struct CutOptions {
-    /// Texture filter the layer is drawn with: `nearest` keeps the opaque mesh
-    /// inside opaque texels; `bilinear` also keeps it half a texel (at mip
-    /// level l, 2^(l-1) texels) away from any texel that is not opaque.
+    /// Texture filter the layer is drawn with.
     #[arg(long, value_enum, default_value = "bilinear")]
     filter: FilterArg,
     /// Highest mip level the layer may be sampled from (0: no mipmaps). The
     /// meshes are made safe for every level up to this one.
-    #[arg(long, default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
+    #[arg(long, value_name = "L", default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
     mip_levels: u32,
-    /// Axes on which the layer's texture repeats (tiling strips); other axes
-    /// clamp to the edge texel.
+    /// Axes on which the layer's texture repeats (tiling strips); the other
+    /// axes clamp to the edge texel.
     #[arg(long, value_enum, default_value = "none")]
     wrap: WrapArg,
     /// Alpha (0-255) from which a texel counts as opaque.
-    #[arg(long, default_value_t = 255)]
+    #[arg(long, value_name = "A", default_value_t = 255)]
     opaque_min: u8,
     /// Alpha (0-255) from which a texel counts as visible and must be covered.
-    #[arg(long, default_value_t = 1)]
+    #[arg(long, value_name = "A", default_value_t = 1)]
     visible_min: u8,
 }
 
