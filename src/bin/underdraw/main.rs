@@ -102,8 +102,16 @@ enum Command {
     Check {
         /// The mesh file (`.mesh.json`) written by `cut`.
         mesh: PathBuf,
-        /// The PNG layer it was cut from.
-        image: PathBuf,
+        /// The PNG layer it was cut from (or a .ktx2 / .astc texture, read
+        /// as with --texture).
+        #[arg(required_unless_present = "texture")]
+        image: Option<PathBuf>,
+        /// The compressed texture that ships (KTX 2.0 or .astc): check the
+        /// mesh against its decoded levels 0 to the mesh's mip levels, and
+        /// report the violation areas per level (with IMAGE too: against
+        /// both).
+        #[arg(long, value_name = "FILE")]
+        texture: Option<PathBuf>,
     },
     /// Score a parallax scene on a simulated GPU: overdraw, lanes, vertices
     /// and draws per strategy (rect, outline, split) and per layer, with
@@ -235,7 +243,11 @@ fn run() -> ExitCode {
                 .expect("the cut subcommand");
             cut::cut(&args, sub, print, limits)
         }
-        Command::Check { mesh, image } => check::check(&mesh, &image, print, limits),
+        Command::Check {
+            mesh,
+            image,
+            texture,
+        } => check::check(&mesh, image.as_deref(), texture.as_deref(), print, limits),
         Command::Scene(args) => scene::scene(&args, print, limits),
         Command::Sweep(args) => sweep::sweep(&args, print, limits),
     }
