@@ -174,7 +174,7 @@ pub(super) fn read_astc(bytes: &[u8]) -> Result<(TextureFormat, Vec<AlphaMap>), 
     }
     let level = decode_alpha(&bytes[16..], w, h, header.block);
     let format = TextureFormat {
-        container: "ASTC file",
+        container: ".astc file",
         codec: format!("ASTC {}x{}", header.block.0, header.block.1),
         block: [header.block.0, header.block.1],
         supercompression: None,

@@ -16,7 +16,7 @@ use std::path::Path;
 /// What a texture file holds, for the report and the `cut` line.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct TextureFormat {
-    /// The container: "KTX 2.0" or "ASTC file".
+    /// The container: "KTX 2.0" or ".astc file".
     pub container: &'static str,
     /// The texel encoding, e.g. "ASTC 6x6 sRGB", "ETC2 RGBA8", "RGBA8".
     pub codec: String,
@@ -72,10 +72,10 @@ impl Texture {
         let f = &self.format;
         let sc = f
             .supercompression
-            .map(|s| format!(", {s} supercompressed"))
+            .map(|s| format!(", {s}"))
             .unwrap_or_default();
         format!(
-            "{} in a {} ({}x{} blocks{sc}), levels 0 to {highest} of {}",
+            "{} ({}, blocks {}x{}{sc}), mip levels 0 to {highest} of {}",
             f.codec,
             f.container,
             f.block[0],
