@@ -202,7 +202,7 @@ fn eac_alpha(block: &[u8; 8]) -> [[u8; 4]; 4] {
 #[test]
 fn etc2_rgba8_alpha_follows_the_eac_rule() {
     let mut rng = common::Rng(151);
-    let (w, h) = (16u32, 12u32);
+    let (w, h) = (64u32, 48u32);
     let mut data = Vec::new();
     let mut want = vec![0u8; (w * h) as usize];
     for by in 0..h / 4 {
