@@ -183,6 +183,13 @@ pub(crate) fn run_layer(
                 "cut the PNG with --texture pointing to this file to get a preview, or leave out --preview",
             ));
         }
+        if image_uri.is_some() {
+            return Err(FileError::new(
+                &job.input,
+                "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
+                "cut the PNG with --texture pointing to this file to get a glTF asset, or use --format json",
+            ));
+        }
         let t = decode_texture(&job.input, &bytes, limits)?;
         (None, Some((job.input.as_path(), t)))
     } else {
