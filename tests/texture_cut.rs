@@ -421,3 +421,40 @@ fn a_png_cut_breaks_on_its_astc_texture_and_the_texture_cut_holds_on_both() {
     let (code, stdout, _) = run(&["check", &s(&mesh), "--texture", &s(&astc)]);
     assert_eq!(code, 0, "{stdout}");
 }
+
+/// The texture is an input of the layer: a rerun with the same files skips
+/// it, a changed texture cuts it again (the manifest records its hash).
+#[test]
+fn a_changed_texture_cuts_the_layer_again() {
+    let dir = TempDir::new("texture_rerun");
+    let corpus = root().join("tests/corpus");
+    let (png, ktx) = (dir.path("layer.png"), dir.path("layer.ktx2"));
+    std::fs::copy(corpus.join("gray-alpha.png"), &png).unwrap();
+    std::fs::copy(corpus.join("rgba8-mips.ktx2"), &ktx).unwrap();
+    let s = |p: &Path| p.to_str().unwrap().to_string();
+    let out = s(&dir.path("out"));
+    let status = || {
+        let (code, stdout, err) = run(&[
+            "--json",
+            "cut",
+            &s(&png),
+            "--texture",
+            &s(&ktx),
+            "--out",
+            &out,
+            "--mip-levels",
+            "3",
+        ]);
+        assert_eq!(code, 0, "{err}");
+        let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+        v[0]["status"].as_str().unwrap().to_string()
+    };
+    assert_eq!(status(), "cut");
+    assert_eq!(status(), "unchanged");
+    // level 3 (1 x 1, the smallest level) given another alpha
+    let mut bytes = std::fs::read(&ktx).unwrap();
+    let at = u64::from_le_bytes(bytes[80 + 3 * 24..80 + 3 * 24 + 8].try_into().unwrap()) as usize;
+    bytes[at + 3] ^= 0xFF;
+    std::fs::write(&ktx, bytes).unwrap();
+    assert_eq!(status(), "cut");
+}
