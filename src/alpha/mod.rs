@@ -7,6 +7,11 @@
 //!   **safe-opaque** region (where the opaque mesh may lie) and the
 //!   **must-cover** region (what opaque + blended must cover) for a filter,
 //!   its mip levels and the addressing mode.
+//! * [`Sampled`] extends the analysis to what ships: a compressed texture's
+//!   decoded levels, each classified by its own texels (a level texel spans
+//!   W / w_l x H / h_l level-0 texels; bilinear erodes or dilates by half of
+//!   it), alone or together with the source's block levels (the regions
+//!   then hold for both: intersected safe, united must-cover).
 //!
 //! Invariants: `safe` ⊂ opaque texels ⊂ visible texels ⊂ `cover` (as long as
 //! `visible_min <= opaque_min`); `cover` lies inside the image rectangle.

@@ -3,6 +3,10 @@
 //! and the definitions (see [`regions_for_check`]) and measures every
 //! violation of a mesh as an area, by polygon clipping (not by sampling).
 //!
+//! [`check_mesh_sampled`] and [`check_mesh_per_level`] check against a
+//! shipped texture's decoded levels too, their regions derived from the
+//! sampling rule in `check/levels.rs`.
+//!
 //! The contract, for a [`LayerMesh`] cut from an image W x H texels:
 //! * the opaque mesh lies inside S (which lies inside the image);
 //! * opaque + blended cover C; the blended mesh lies inside the image;

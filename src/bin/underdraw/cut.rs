@@ -22,7 +22,8 @@ enum FormatArg {
 
 #[derive(Args)]
 pub(crate) struct CutArgs {
-    /// PNG layers (RGBA; images without alpha count as fully opaque) and
+    /// PNG layers (RGBA; images without alpha count as fully opaque),
+    /// compressed textures (.ktx2, .astc: cut on their decoded levels) and
     /// folders: a folder is searched recursively for `*.png`, and its
     /// layout is mirrored in the output folder (`in/town/houses.png` →
     /// `OUT/town/houses.mesh.json`); a file given directly is written as

@@ -146,7 +146,8 @@ pub(crate) struct CutOptions {
     #[arg(long, value_enum, default_value = "bilinear")]
     filter: FilterArg,
     /// Highest mip level the layer may be sampled from (0: no mipmaps). The
-    /// meshes are made safe for every level up to this one.
+    /// meshes are made safe for every level up to this one; for a texture
+    /// (.ktx2), levels 0 to this one of the file, each its own texels.
     #[arg(long, default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
     mip_levels: u32,
     /// Axes on which the layer's texture repeats (tiling strips); other axes
