@@ -74,7 +74,7 @@ fn astc_decode_matches_the_reference_decoder_exactly_at_0_and_255_and_within_one
     ];
     let mut changed_by_compression = 0;
     for (layer, x, y, w, h) in crops {
-        let png = dir.path(&format!("{layer}"));
+        let png = dir.path(layer);
         crop_png(layer, x, y, w, h, &png);
         for block in ["4x4", "6x6", "8x8"] {
             let astc = dir.path(&format!("{layer}-{block}.astc"));

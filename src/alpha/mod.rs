@@ -560,7 +560,8 @@ mod tests {
             let levels: Vec<AlphaMap> = (0..=settings.filter.mip_levels)
                 .map(|l| {
                     let (lw, lh) = if case % 3 == 0 && l > 0 {
-                        let divisors = |n: u32| (1..=n).filter(|d| n % d == 0).collect::<Vec<_>>();
+                        let divisors =
+                            |n: u32| (1..=n).filter(|d| n.is_multiple_of(*d)).collect::<Vec<_>>();
                         let (dw, dh) = (divisors(w), divisors(h));
                         (
                             dw[(rnd() as usize) % dw.len()],

@@ -68,7 +68,7 @@ impl Codec {
             151 | 152 => (Codec::Etc2Rgba8, vk_format == 152),
             157..=184 => {
                 let (bw, bh) = astc::FOOTPRINTS[((vk_format - 157) / 2) as usize];
-                (Codec::Astc(bw, bh), vk_format % 2 == 0)
+                (Codec::Astc(bw, bh), vk_format.is_multiple_of(2))
             }
             _ => return None,
         })

@@ -68,7 +68,7 @@ pub fn basic_dfd(
 /// model ETC2 = 161), ASTC (157..184: model ASTC = 162, one 128-bit sample).
 pub fn dfd_for_block(vk_format: u32, bw: u32, bh: u32) -> Vec<u8> {
     let srgb = matches!(vk_format, 43 | 150 | 152)
-        || (157..=184).contains(&vk_format) && vk_format % 2 == 0;
+        || (157..=184).contains(&vk_format) && vk_format.is_multiple_of(2);
     let transfer = if srgb { 2 } else { 1 };
     match vk_format {
         37 | 43 => basic_dfd(
@@ -118,7 +118,8 @@ pub fn ktx2_file(
         149 | 150 => 8,
         _ => 16,
     };
-    let type_size = if matches!(vk_format, 37 | 43) { 1 } else { 1 };
+    // typeSize is 1 for 8-bit components and for block-compressed formats (KTX 2.0, section 3.2)
+    let type_size = 1;
     let n = levels.len();
     let index_end = 80 + 24 * n;
     let dfd_offset = index_end;
