@@ -458,3 +458,70 @@ fn a_changed_texture_cuts_the_layer_again() {
     std::fs::write(&ktx, bytes).unwrap();
     assert_eq!(status(), "cut");
 }
+
+/// A KTX 2.0 ASTC 6x6 file with a tent-filtered mip chain, each level
+/// compressed by the reference codec (`astcenc -cl`) and packed here per the
+/// KTX 2.0 specification (VK_FORMAT_ASTC_6x6_UNORM_BLOCK = 165): the cut of
+/// the file at mip levels 0 to 2 holds on every level's decoded texels, by
+/// the checker and by the sampler.
+#[test]
+fn an_astc_mip_chain_in_ktx2_cuts_and_holds_per_level() {
+    if !have("astcenc", "-help") {
+        return;
+    }
+    let dir = TempDir::new("astc_chain");
+    let mut rng = Rng(165);
+    let levels = chain(shapes(96, 64, &mut rng), 3);
+    let s = |p: &Path| p.to_str().unwrap().to_string();
+    let stored: Vec<Level> = levels
+        .iter()
+        .enumerate()
+        .map(|(l, m)| {
+            let png = dir.path(&format!("level{l}.png"));
+            let rgba: Vec<u8> = m.alpha.iter().flat_map(|&a| [200, 180, 160, a]).collect();
+            image::RgbaImage::from_raw(m.width, m.height, rgba)
+                .unwrap()
+                .save(&png)
+                .unwrap();
+            let astc = dir.path(&format!("level{l}.astc"));
+            let out = Command::new("astcenc")
+                .args(["-cl", &s(&png), &s(&astc), "6x6", "-medium", "-silent"])
+                .output()
+                .unwrap();
+            assert!(out.status.success());
+            Level::raw(std::fs::read(&astc).unwrap()[16..].to_vec())
+        })
+        .collect();
+    let file = ktx2_file(165, (96, 64), &stored, 0, dfd_for_block(165, 6, 6));
+    let t = decode_texture(Path::new("chain.ktx2"), &file, &ImageLimits::default()).unwrap();
+    assert_eq!(t.levels.len(), 3);
+    assert_eq!(t.format.codec, "ASTC 6x6");
+    let used = t.levels_for(2).unwrap();
+    let mut inside_outside = (0, 0);
+    for mode in [FilterMode::Bilinear, FilterMode::Nearest] {
+        let st = settings(128, mode, 2, Wrap::None);
+        let out = cut_sampled(
+            Sampled {
+                source: None,
+                shipped: used,
+            },
+            "chain.ktx2",
+            &st,
+        );
+        assert!(out.notes.iter().all(|n| !n.contains("left out")));
+        for (l, r) in check_mesh_per_level(&out.mesh, used)
+            .unwrap()
+            .iter()
+            .enumerate()
+        {
+            assert!(r.holds(), "level {l}: {:?}", r.violations());
+        }
+        let (i, o) = sample(&out.mesh, used, &mut rng);
+        inside_outside.0 += i;
+        inside_outside.1 += o;
+    }
+    assert!(
+        inside_outside.0 > 1000 && inside_outside.1 > 1000,
+        "{inside_outside:?}"
+    );
+}
