@@ -525,3 +525,63 @@ fn an_astc_mip_chain_in_ktx2_cuts_and_holds_per_level() {
         "{inside_outside:?}"
     );
 }
+
+/// `sweep --texture` cuts as `cut --texture` does (the same opaque and
+/// covering areas at a budget), and refuses levels the file does not hold.
+#[test]
+fn sweep_takes_the_texture_like_cut() {
+    let dir = TempDir::new("texture_sweep");
+    let corpus = root().join("tests/corpus");
+    let s = |p: &Path| p.to_str().unwrap().to_string();
+    let (png, ktx) = (
+        corpus.join("gray-alpha.png"),
+        corpus.join("rgba8-mips.ktx2"),
+    );
+    let out = s(&dir.path("out"));
+    let (code, stdout, err) = run(&[
+        "--json",
+        "sweep",
+        &s(&png),
+        "--texture",
+        &s(&ktx),
+        "--mip-levels",
+        "1",
+        "--out",
+        &out,
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&stdout).unwrap();
+    let at16 = v["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["budget"] == 16)
+        .unwrap()
+        .clone();
+    let (code, _, err) = run(&[
+        "cut",
+        &s(&png),
+        "--texture",
+        &s(&ktx),
+        "--mip-levels",
+        "1",
+        "--budget",
+        "16",
+        "--out",
+        &out,
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let mesh: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path("out/gray-alpha.mesh.json")).unwrap())
+            .unwrap();
+    assert_eq!(at16["opaque_area"], mesh["stats"]["opaque_area"]);
+    assert_eq!(at16["covered_area"], mesh["stats"]["covered_area"]);
+    let (code, _, err) = run(&["sweep", &s(&ktx), "--mip-levels", "6", "--out", &out]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("rgba8-mips.ktx2")
+            && err.contains("holds 4 mip level(s)")
+            && err.contains("hint:"),
+        "{err}"
+    );
+}
