@@ -6,8 +6,10 @@
 //! of the fast path fails that check, the cut falls back to a plainer mesh
 //! that passes it, and says so in [`CutOutcome::notes`].
 
-use crate::alpha::{analyze_runs, must_cover, safe_opaque, AlphaMap, RegionStats, Regions};
-use crate::check::check_mesh;
+use crate::alpha::{
+    analyze_runs, must_cover_sampled, safe_opaque_sampled, AlphaMap, RegionStats, Regions, Sampled,
+};
+use crate::check::check_mesh_sampled;
 use crate::fit::{open_holes_in_runs, Class, Fit, Fitter, Prepared};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
@@ -99,11 +101,20 @@ fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
 /// assert_eq!(out.mesh.blended.triangle_count(), 0);
 /// ```
 pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOutcome {
+    cut_sampled(Sampled::source(map), source, settings)
+}
+
+/// Cuts one layer against what the GPU samples ([`Sampled`]): a shipped
+/// texture's decoded levels, alone or with the source's block levels (then
+/// the meshes hold for both). The levels must
+/// [validate](Sampled::validate).
+pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> CutOutcome {
+    let map = sampled.level0();
     // one region at a time, as runs: the must-cover one is prepared before
     // the safe one is built
-    let (cover_mask, cover_area) = must_cover(map, settings);
+    let (cover_mask, cover_area) = must_cover_sampled(sampled, settings);
     let cover = prepare_cover(cover_mask);
-    let (safe, safe_area) = safe_opaque(map, settings);
+    let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
     let fit = fit_safe(safe, &cover, settings.budget);
     drop(cover);
     let regions = RegionStats::new(map, settings.alpha, safe_area, cover_area);
@@ -120,7 +131,8 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
             ));
         }
         let mesh = to_mesh(map, source, settings, &regions, &fit, &t);
-        let report = check_mesh(&mesh, map).map_err(|e| e.to_string())?;
+        let report = check_mesh_sampled(&mesh, sampled.source, sampled.shipped)
+            .map_err(|e| e.to_string())?;
         if report.holds() {
             Ok(mesh)
         } else {

@@ -10,8 +10,17 @@
 //! written to a temporary file beside its destination and renamed over it,
 //! so a reader never sees half a file; an output path that is one of the
 //! inputs is refused.
+//!
+//! Shipped textures (KTX 2.0 and `.astc` files, `io/texture.rs`) are read
+//! to the decoded alpha of every mip level they hold: `io/ktx2.rs` for the
+//! container and its supercompression, `io/astc.rs` for ASTC blocks.
 
+mod astc;
 mod chunks;
+mod ktx2;
+mod texture;
+
+pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
 use crate::error::FileError;

@@ -13,7 +13,8 @@
 //! saving at the largest budget tried.
 
 use crate::alpha::AlphaMap;
-use crate::cut::cut_layer;
+use crate::alpha::Sampled;
+use crate::cut::cut_sampled;
 use crate::settings::CutSettings;
 use rayon::prelude::*;
 use serde::Serialize;
@@ -65,11 +66,23 @@ pub fn sweep_layer(
     base: &CutSettings,
     budgets: &[usize],
 ) -> Vec<SweepPoint> {
+    sweep_sampled(Sampled::source(map), source, base, budgets)
+}
+
+/// [`sweep_layer`] for what the GPU samples: a shipped texture's decoded
+/// levels, alone or with the source ([`Sampled`], which must validate).
+pub fn sweep_sampled(
+    sampled: Sampled,
+    source: &str,
+    base: &CutSettings,
+    budgets: &[usize],
+) -> Vec<SweepPoint> {
+    let map = sampled.level0();
     let rect_area = map.width as f64 * map.height as f64;
     budgets
         .par_iter()
         .map(|&budget| {
-            let out = cut_layer(map, source, &CutSettings { budget, ..*base });
+            let out = cut_sampled(sampled, source, &CutSettings { budget, ..*base });
             let s = &out.mesh.stats;
             // + 0.0 turns an empty sum's -0 into 0
             let (opaque_area, covered_area) = (s.opaque_area + 0.0, s.covered_area + 0.0);

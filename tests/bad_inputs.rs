@@ -148,6 +148,29 @@ const CASES: &[(&str, Via, i32, &str)] = &[
         2,
         "the mesh is for a 64x48 image but the image is 12x10",
     ),
+    ("rgba8-mips.ktx2", Via::Cut, 0, ""),
+    (
+        "truncated.ktx2",
+        Via::Cut,
+        2,
+        "fewer than the 80 of a KTX 2.0 header",
+    ),
+    (
+        "level-past-end.ktx2",
+        Via::Cut,
+        2,
+        "level 0's data at bytes 996 to 1476, past the end of the file (896 bytes)",
+    ),
+    ("basislz.ktx2", Via::Cut, 2, "BasisLZ supercompressed"),
+    ("uastc.ktx2", Via::Cut, 2, "holds UASTC texels"),
+    (
+        "bc1.ktx2",
+        Via::Cut,
+        2,
+        "its format (VkFormat 131) is not one underdraw reads",
+    ),
+    ("block-7x7.astc", Via::Cut, 2, "its ASTC block size is 7x7"),
+    ("astc-4x4.ktx2", Via::Cut, 0, ""),
 ];
 
 #[test]
@@ -247,7 +270,7 @@ fn every_corpus_file_gets_its_exit_status_and_message() {
         }
         // a layer cut fine is cut by the book and holds under `check`
         if code == 0 && matches!(via, Via::Cut) {
-            let stem = name.trim_end_matches(".png");
+            let stem = Path::new(name).file_stem().unwrap().to_str().unwrap();
             let mesh = out.join(format!("{stem}.mesh.json"));
             let c = run(&[Path::new("check"), &mesh, &file]);
             if c.status.code() != Some(0) || text(&r.stdout).contains("left out") {
@@ -390,4 +413,68 @@ fn a_scene_file_over_the_size_limit_is_refused_and_one_at_it_loads() {
         stderr.contains("oversized.scene.json: is larger than 1 MiB") && stderr.contains("hint:"),
         "{stderr}"
     );
+}
+
+/// Mip levels beyond those a texture holds, a texture of another size than
+/// its layer, and --texture with several layers: exit 2, the file named,
+/// a hint.
+#[test]
+fn texture_levels_and_sizes_that_do_not_fit_are_refused() {
+    let dir = corpus_dir();
+    let tmp = TempDir::new("texture_fit");
+    let out = tmp.0.join("out");
+    let ktx = dir.join("rgba8-mips.ktx2");
+    let p = |s: &str| PathBuf::from(s);
+    let cases: [(Vec<PathBuf>, &str, &str); 3] = [
+        (
+            vec![
+                p("cut"),
+                ktx.clone(),
+                p("--mip-levels"),
+                p("4"),
+                p("--out"),
+                out.clone(),
+            ],
+            "rgba8-mips.ktx2",
+            "holds 4 mip level(s) (0 to 3), but the guarantee was asked for levels 0 to 4",
+        ),
+        (
+            vec![
+                p("cut"),
+                dir.join("one-by-one.png"),
+                p("--texture"),
+                ktx.clone(),
+                p("--out"),
+                out.clone(),
+            ],
+            "rgba8-mips.ktx2",
+            "the texture is 12 x 10 texels but the layer is 1 x 1",
+        ),
+        (
+            vec![
+                p("cut"),
+                dir.join("rgb.png"),
+                dir.join("gray.png"),
+                p("--texture"),
+                ktx.clone(),
+                p("--out"),
+                out.clone(),
+            ],
+            "rgba8-mips.ktx2",
+            "is one texture, but 2 layers were given",
+        ),
+    ];
+    for (args, name, phrase) in cases {
+        let refs: Vec<&Path> = args.iter().map(|a| a.as_path()).collect();
+        let r = run(&refs);
+        let stderr = text(&r.stderr);
+        assert_eq!(r.status.code(), Some(2), "{stderr}");
+        assert!(
+            stderr
+                .lines()
+                .any(|l| l.contains(name) && l.contains(phrase))
+                && stderr.contains("hint:"),
+            "{stderr}"
+        );
+    }
 }

@@ -7,6 +7,11 @@
 //!   **safe-opaque** region (where the opaque mesh may lie) and the
 //!   **must-cover** region (what opaque + blended must cover) for a filter,
 //!   its mip levels and the addressing mode.
+//! * [`Sampled`] extends the analysis to what ships: a compressed texture's
+//!   decoded levels, each classified by its own texels (a level texel spans
+//!   W / w_l x H / h_l level-0 texels; bilinear erodes or dilates by half of
+//!   it), alone or together with the source's block levels (the regions
+//!   then hold for both: intersected safe, united must-cover).
 //!
 //! Invariants: `safe` ⊂ opaque texels ⊂ visible texels ⊂ `cover` (as long as
 //! `visible_min <= opaque_min`); `cover` lies inside the image rectangle.
@@ -98,6 +103,70 @@ impl AlphaMap {
     }
 }
 
+/// What the GPU samples a layer from, for the regions: the source alpha
+/// (the PNG), whose mip levels the block rules build, and/or the decoded
+/// levels of the texture that ships (a KTX 2.0 or `.astc` file). With both,
+/// the regions hold for both: safe where both are safe, must-cover where
+/// either must be covered.
+#[derive(Clone, Copy, Debug)]
+pub struct Sampled<'a> {
+    /// The source's alpha: levels 0..=`mip_levels` by the block rules
+    /// ([`Regions::analyze`]); `None` when only the shipped levels count.
+    pub source: Option<&'a AlphaMap>,
+    /// The shipped texture's decoded levels in use, level 0 first (all of
+    /// them are used: pass levels 0..=`mip_levels`). Level 0 has the
+    /// layer's size; level l's width and height must divide level 0's, so
+    /// a level-l texel spans whole level-0 texels (`sx` x `sy` of them).
+    pub shipped: &'a [AlphaMap],
+}
+
+impl<'a> Sampled<'a> {
+    /// The source alone (today's PNG analysis).
+    pub fn source(map: &'a AlphaMap) -> Sampled<'a> {
+        Sampled {
+            source: Some(map),
+            shipped: &[],
+        }
+    }
+
+    /// The map the layer's size and texel classes come from: the source, or
+    /// else the shipped level 0.
+    pub fn level0(&self) -> &'a AlphaMap {
+        self.source
+            .or(self.shipped.first())
+            .expect("a source or a shipped level")
+    }
+
+    /// Checks that the shipped levels can be analyzed with the source: level
+    /// 0 the source's size, every level's size dividing level 0's.
+    pub fn validate(&self) -> Result<(), String> {
+        let Some(first) = self.shipped.first() else {
+            return match self.source {
+                Some(_) => Ok(()),
+                None => Err("neither a source nor a shipped level was given".into()),
+            };
+        };
+        let (w, h) = (first.width, first.height);
+        if let Some(s) = self.source {
+            if (s.width, s.height) != (w, h) {
+                return Err(format!(
+                    "the texture is {w} x {h} texels but the layer is {} x {}",
+                    s.width, s.height
+                ));
+            }
+        }
+        for (l, m) in self.shipped.iter().enumerate() {
+            if m.width == 0 || m.height == 0 || w % m.width != 0 || h % m.height != 0 {
+                return Err(format!(
+                    "mip level {l} is {} x {} texels, which does not divide level 0's {w} x {h}",
+                    m.width, m.height
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
 /// Areas of a layer's classes and regions, in texels.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
 pub struct RegionStats {
@@ -147,9 +216,21 @@ impl Regions {
 /// The safe-opaque and must-cover regions as runs, built side by side,
 /// with their areas and the texel classes.
 pub fn analyze_runs(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, RowRuns, RegionStats) {
-    let ((safe, safe_area), (cover, cover_area)) =
-        rayon::join(|| safe_opaque(map, settings), || must_cover(map, settings));
-    let stats = RegionStats::new(map, settings.alpha, safe_area, cover_area);
+    analyze_sampled_runs(Sampled::source(map), settings)
+}
+
+/// [`analyze_runs`] for what the GPU samples: the source's block levels
+/// and/or a shipped texture's decoded levels ([`Sampled`], which must
+/// [validate](Sampled::validate)).
+pub fn analyze_sampled_runs(
+    sampled: Sampled,
+    settings: &CutSettings,
+) -> (RowRuns, RowRuns, RegionStats) {
+    let ((safe, safe_area), (cover, cover_area)) = rayon::join(
+        || safe_opaque_sampled(sampled, settings),
+        || must_cover_sampled(sampled, settings),
+    );
+    let stats = RegionStats::new(sampled.level0(), settings.alpha, safe_area, cover_area);
     (safe, cover, stats)
 }
 
@@ -175,7 +256,13 @@ impl RegionStats {
 /// The safe-opaque region alone (as [`Regions::analyze`] builds it) and its
 /// area in texels, for a caller that holds one region at a time.
 pub fn safe_opaque(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
-    let runs = region(map, settings, settings.alpha.opaque_min, true);
+    safe_opaque_sampled(Sampled::source(map), settings)
+}
+
+/// [`safe_opaque`] for what the GPU samples ([`Sampled`]): the intersection
+/// over the source's block levels and the shipped levels.
+pub fn safe_opaque_sampled(sampled: Sampled, settings: &CutSettings) -> (RowRuns, f64) {
+    let runs = region(sampled, settings, settings.alpha.opaque_min, true);
     let area = runs.cells_set() as f64 * 0.25;
     (runs, area)
 }
@@ -183,7 +270,13 @@ pub fn safe_opaque(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
 /// The must-cover region alone (as [`Regions::analyze`] builds it) and its
 /// area in texels.
 pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
-    let runs = region(map, settings, settings.alpha.visible_min, false);
+    must_cover_sampled(Sampled::source(map), settings)
+}
+
+/// [`must_cover`] for what the GPU samples ([`Sampled`]): the union over
+/// the source's block levels and the shipped levels.
+pub fn must_cover_sampled(sampled: Sampled, settings: &CutSettings) -> (RowRuns, f64) {
+    let runs = region(sampled, settings, settings.alpha.visible_min, false);
     let area = runs.cells_set() as f64 * 0.25;
     (runs, area)
 }
@@ -192,25 +285,24 @@ pub fn must_cover(map: &AlphaMap, settings: &CutSettings) -> (RowRuns, f64) {
 /// one task (a few tasks a thread on big layers, one on small ones).
 const BAND_ROWS: u32 = 256;
 
-/// The safe-opaque region (`all`: every texel of a block at least `min`)
-/// or the must-cover region (`!all`: any texel), and its set cells, built
-/// row by row as runs ([`runs`]).
-///
-/// Every step maps rows to rows independently (texel rows, block rows,
-/// then bands of grid rows, each band with its own memo of the last
-/// window), so the steps run in parallel on rayon's pool and the rows are
-/// assembled in order: the result is the same whatever the thread count.
-fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns {
+/// One level's cell rows, filtered along the row, and how many level-0
+/// texels a level texel spans vertically (`sy`): cell row `y` reads level
+/// row `y / (2 sy)`, and bilinear's vertical window reaches `sy` cells
+/// (half a level texel).
+struct LevelRows {
+    rows: Vec<Row>,
+    sy: u32,
+}
+
+/// The source's levels 0..=`mip_levels` by the block rules: level l's
+/// aligned 2^l x 2^l blocks (edge blocks partial) of level-0 texels, set
+/// when every texel (`all`) or any texel reaches `min`, as cells, eroded
+/// (`all`) or dilated along the row by 2^l cells under bilinear. Rows are
+/// independent, so they are built in parallel and collected in order.
+fn block_levels(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> Vec<LevelRows> {
     use rayon::prelude::*;
-    let (w, h) = (map.width as usize, map.height as usize);
-    let (cw, ch) = (2 * map.width, 2 * map.height);
-    let mut out = RowRuns::new(cw as usize);
-    if w == 0 || h == 0 {
-        for _ in 0..ch {
-            out.push_row(&[]);
-        }
-        return out;
-    }
+    let w = map.width as usize;
+    let cw = 2 * map.width;
     let bilinear = settings.filter.mode == FilterMode::Bilinear;
     let texel_rows: Vec<Row> = map
         .alpha
@@ -221,11 +313,10 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
             r
         })
         .collect();
-    // per level, its block rows as cells, filtered along the row
-    let levels: Vec<Vec<Row>> = (0..=settings.filter.mip_levels)
+    (0..=settings.filter.mip_levels)
         .map(|level| {
             let s = 1usize << level;
-            texel_rows
+            let rows = texel_rows
                 .par_chunks(s)
                 .map_init(Row::new, |scratch, rows| {
                     let mut acc = rows[0].clone();
@@ -242,10 +333,81 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
                         cells
                     }
                 })
-                .collect()
+                .collect();
+            LevelRows { rows, sy: s as u32 }
+        })
+        .collect()
+}
+
+/// A shipped level's decoded texels (`level`, each spanning `sx` x `sy`
+/// level-0 texels of a `w0`-wide layer) set where they reach `min`, as
+/// cells (2 sx a texel), eroded (`all`) or dilated along the row by `sx`
+/// cells (half a level texel) under bilinear.
+fn shipped_level(
+    level: &AlphaMap,
+    w0: u32,
+    h0: u32,
+    settings: &CutSettings,
+    min: u8,
+    all: bool,
+) -> LevelRows {
+    use rayon::prelude::*;
+    let (sx, sy) = (w0 / level.width, h0 / level.height);
+    let cw = 2 * w0;
+    let bilinear = settings.filter.mode == FilterMode::Bilinear;
+    let rows = level
+        .alpha
+        .par_chunks_exact(level.width as usize)
+        .map_init(Row::new, |texels, row| {
+            runs::threshold(row, min, texels);
+            let cells: Row = texels
+                .iter()
+                .map(|&[a, b]| [2 * sx * a, 2 * sx * b])
+                .collect();
+            if bilinear {
+                let mut out = Row::new();
+                runs::filter_row(&cells, sx, cw, settings.wrap.x(), all, &mut out);
+                out
+            } else {
+                cells
+            }
         })
         .collect();
-    drop(texel_rows);
+    LevelRows { rows, sy }
+}
+
+/// The safe-opaque region (`all`: every texel of a block at least `min`)
+/// or the must-cover region (`!all`: any texel), and its set cells, built
+/// row by row as runs ([`runs`]), over every level of what is sampled:
+/// intersected (`all`) or united.
+///
+/// Every step maps rows to rows independently (texel rows, level rows,
+/// then bands of grid rows, each band with its own memo of the last
+/// window), so the steps run in parallel on rayon's pool and the rows are
+/// assembled in order: the result is the same whatever the thread count.
+fn region(sampled: Sampled, settings: &CutSettings, min: u8, all: bool) -> RowRuns {
+    use rayon::prelude::*;
+    let map = sampled.level0();
+    let (w, h) = (map.width as usize, map.height as usize);
+    let (cw, ch) = (2 * map.width, 2 * map.height);
+    let mut out = RowRuns::new(cw as usize);
+    if w == 0 || h == 0 {
+        for _ in 0..ch {
+            out.push_row(&[]);
+        }
+        return out;
+    }
+    let bilinear = settings.filter.mode == FilterMode::Bilinear;
+    // per level, its rows as cells, filtered along the row
+    let mut levels: Vec<LevelRows> = match sampled.source {
+        Some(source) => block_levels(source, settings, min, all),
+        None => Vec::new(),
+    };
+    for level in sampled.shipped {
+        levels.push(shipped_level(
+            level, map.width, map.height, settings, min, all,
+        ));
+    }
     let bands: Vec<(u32, u32)> = (0..ch)
         .step_by(BAND_ROWS as usize)
         .map(|y0| (y0, (y0 + BAND_ROWS).min(ch)))
@@ -260,11 +422,11 @@ fn region(map: &AlphaMap, settings: &CutSettings, min: u8, all: bool) -> RowRuns
     out
 }
 
-/// Grid rows `ys` of a region from its levels' filtered block rows: per
-/// row, each level's window of block rows combined (down the columns for
+/// Grid rows `ys` of a region from its levels' filtered rows: per row,
+/// each level's window of level rows combined (down the columns for
 /// bilinear), then the levels combined.
 fn grid_rows(
-    levels: &[Vec<Row>],
+    levels: &[LevelRows],
     ys: std::ops::Range<u32>,
     ch: u32,
     settings: &CutSettings,
@@ -272,24 +434,24 @@ fn grid_rows(
     all: bool,
 ) -> Vec<Row> {
     let mut scratch = Row::new();
-    // per level, the last window's block rows and their combination
+    // per level, the last window's level rows and their combination
     let mut cache: Vec<([usize; 4], Row)> = vec![([usize::MAX; 4], Row::new()); levels.len()];
     let mut acc = Row::new();
     let mut out = Vec::with_capacity(ys.len());
     for y in ys {
-        for (level, rows) in levels.iter().enumerate() {
-            let s = 1u32 << level;
-            let block_row = |r: u32| (r / (2 * s)) as usize;
+        for (i, level) in levels.iter().enumerate() {
+            let (rows, s) = (&level.rows, level.sy);
+            let level_row = |r: u32| (r / (2 * s)) as usize;
             let row: &Row = if !bilinear {
-                &rows[block_row(y)]
+                &rows[level_row(y)]
             } else {
                 let [(a0, b0), (a1, b1)] = runs::window_rows(y, s, ch, settings.wrap.y());
                 let key = if a1 <= b1 {
-                    [block_row(a0), block_row(b0), block_row(a1), block_row(b1)]
+                    [level_row(a0), level_row(b0), level_row(a1), level_row(b1)]
                 } else {
-                    [block_row(a0), block_row(b0), 1, 0]
+                    [level_row(a0), level_row(b0), 1, 0]
                 };
-                let (last, combined) = &mut cache[level];
+                let (last, combined) = &mut cache[i];
                 if *last != key {
                     *last = key;
                     combined.clone_from(&rows[key[0]]);
@@ -298,9 +460,9 @@ fn grid_rows(
                         runs::combine(combined, &rows[b], all, &mut scratch);
                     }
                 }
-                &cache[level].1
+                &cache[i].1
             };
-            if level == 0 {
+            if i == 0 {
                 acc.clone_from(row);
             } else {
                 runs::combine(&mut acc, row, all, &mut scratch);
@@ -406,7 +568,8 @@ mod tests {
             for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
                 let theirs = reference::region(&map, &settings, min, all);
                 for threads in [1, 3] {
-                    let ours = pool(threads).install(|| region(&map, &settings, min, all));
+                    let ours = pool(threads)
+                        .install(|| region(Sampled::source(&map), &settings, min, all));
                     assert_eq!(
                         ours.to_mask(),
                         theirs,
@@ -456,7 +619,7 @@ mod tests {
             let settings = random_settings(&mut rnd, case, 6);
             let t = settings.alpha;
             for (min, all) in [(t.opaque_min, true), (t.visible_min, false)] {
-                let ours = region(&map, &settings, min, all);
+                let ours = region(Sampled::source(&map), &settings, min, all);
                 let theirs = reference::region(&map, &settings, min, all);
                 assert_eq!(
                     ours.to_mask(),
@@ -464,6 +627,80 @@ mod tests {
                     "case {case}: {w}x{h} all={all} {settings:?}"
                 );
                 assert_eq!(ours.cells_set(), theirs.count() as u64);
+            }
+        }
+    }
+
+    /// Random shipped mip chains (level sizes dividing level 0's, alpha
+    /// drawn level by level, not derived from level 0), alone and with the
+    /// source: the builder's regions equal the checker's, which it derives
+    /// from the sampling rule with its own code, cell for cell.
+    #[test]
+    fn shipped_levels_match_the_checker_definitions() {
+        use crate::check::regions_for_check_sampled;
+        let mut rng = Lcg(1616);
+        let mut rnd = move || rng.next() as u32;
+        for case in 0..400 {
+            let (w, h) = (1 + rnd() % 24, 1 + rnd() % 20);
+            let density = rnd() % 100;
+            let settings = random_settings(&mut rnd, case, 4);
+            // level l: W >> l by H >> l (at least 1), or any divisor
+            let levels: Vec<AlphaMap> = (0..=settings.filter.mip_levels)
+                .map(|l| {
+                    let (lw, lh) = if case % 3 == 0 && l > 0 {
+                        let divisors =
+                            |n: u32| (1..=n).filter(|d| n.is_multiple_of(*d)).collect::<Vec<_>>();
+                        let (dw, dh) = (divisors(w), divisors(h));
+                        (
+                            dw[(rnd() as usize) % dw.len()],
+                            dh[(rnd() as usize) % dh.len()],
+                        )
+                    } else {
+                        ((w >> l).max(1), (h >> l).max(1))
+                    };
+                    let (lw, lh) = if l == 0 { (w, h) } else { (lw, lh) };
+                    let lw = if w % lw == 0 { lw } else { 1 };
+                    let lh = if h % lh == 0 { lh } else { 1 };
+                    let alpha = (0..lw * lh)
+                        .map(|_| noisy_alpha(&mut rnd, density))
+                        .collect();
+                    AlphaMap::from_raw(lw, lh, alpha)
+                })
+                .collect();
+            let png = AlphaMap::from_raw(
+                w,
+                h,
+                (0..w * h).map(|_| noisy_alpha(&mut rnd, density)).collect(),
+            );
+            let with_source = case % 2 == 0;
+            let sampled = Sampled {
+                source: with_source.then_some(&png),
+                shipped: &levels,
+            };
+            sampled.validate().unwrap();
+            let t = settings.alpha;
+            let (s, c, gw, gh) = regions_for_check_sampled(
+                sampled.source,
+                &levels,
+                settings.filter,
+                t,
+                settings.wrap,
+            );
+            for (min, all, theirs) in [(t.opaque_min, true, &s), (t.visible_min, false, &c)] {
+                let ours = region(sampled, &settings, min, all).to_mask();
+                assert_eq!((ours.width, ours.height), (gw, gh));
+                for (i, &cell) in theirs.iter().enumerate() {
+                    assert_eq!(
+                        cell,
+                        ours.cells[i] != 0,
+                        "case {case}: {} cell {i} differs ({settings:?}, levels {:?})",
+                        if all { "safe" } else { "cover" },
+                        levels
+                            .iter()
+                            .map(|m| (m.width, m.height))
+                            .collect::<Vec<_>>()
+                    );
+                }
             }
         }
     }

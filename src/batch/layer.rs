@@ -11,10 +11,11 @@
 use super::manifest::{sha256_hex, Entry, LayerResult, OutputFile};
 use super::write::commit;
 use super::{Job, Outputs};
-use crate::cut::cut_layer;
+use crate::alpha::Sampled;
+use crate::cut::{cut_layer, cut_sampled};
 use crate::error::FileError;
 use crate::export::gltf::{build, encode_uri, malformed, relative_uri, to_glb};
-use crate::io::{decode_layer, ImageLimits};
+use crate::io::{decode_layer, decode_texture, is_texture, ImageLimits};
 use std::path::{Path, PathBuf};
 
 /// Widest preview written, pixels.
@@ -121,11 +122,29 @@ pub(crate) fn run_layer(
     } else {
         None
     };
-    let settings = serde_json::json!({
+    let mut settings = serde_json::json!({
         "cut": job.settings,
         "outputs": outputs,
         "image_uri": image_uri,
     });
+    let texture_bytes = match &job.texture {
+        Some(t) => {
+            let b = std::fs::read(t).map_err(|e| {
+                FileError::new(
+                    t,
+                    format!("cannot be read ({e})"),
+                    "check the path and the file's permissions",
+                )
+            })?;
+            // the texture is an input too: a new texture cuts the layer again
+            settings["texture"] = serde_json::json!({
+                "path": t.display().to_string(),
+                "sha256": sha256_hex(&b),
+            });
+            Some((t, b))
+        }
+        None => None,
+    };
     let input_sha256 = sha256_hex(&bytes);
     let version = env!("CARGO_PKG_VERSION");
     if let Some(prev) = previous.filter(|_| !force) {
@@ -150,13 +169,76 @@ pub(crate) fn run_layer(
             "choose another --out folder",
         ));
     }
-    let layer = decode_layer(&job.input, &bytes, limits)?;
     let name = job
         .input
         .file_name()
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_default();
-    let outcome = cut_layer(&layer.alpha, &name, &job.settings);
+    let input_is_texture = is_texture(&bytes);
+    let (layer, texture) = if input_is_texture {
+        if outputs.preview {
+            return Err(FileError::new(
+                &job.input,
+                "is a compressed texture, and previews are drawn from the PNG",
+                "cut the PNG with --texture pointing to this file to get a preview, or leave out --preview",
+            ));
+        }
+        if image_uri.is_some() {
+            return Err(FileError::new(
+                &job.input,
+                "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
+                "cut the PNG with --texture pointing to this file to get a glTF asset, or use --format json",
+            ));
+        }
+        let t = decode_texture(&job.input, &bytes, limits)?;
+        (None, Some((job.input.as_path(), t)))
+    } else {
+        let layer = decode_layer(&job.input, &bytes, limits)?;
+        let t = match &texture_bytes {
+            Some((path, b)) => Some((path.as_path(), decode_texture(path, b, limits)?)),
+            None => None,
+        };
+        (Some(layer), t)
+    };
+    let mut notes = Vec::new();
+    let outcome = match &texture {
+        None => cut_layer(
+            &layer.as_ref().expect("a PNG layer").alpha,
+            &name,
+            &job.settings,
+        ),
+        Some((path, t)) => {
+            let mip = job.settings.filter.mip_levels;
+            let levels = t.levels_for(mip).map_err(|why| {
+                FileError::new(
+                    path,
+                    why,
+                    "lower --mip-levels to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l",
+                )
+            })?;
+            let sampled = Sampled {
+                source: layer.as_ref().map(|l| &l.alpha),
+                shipped: levels,
+            };
+            sampled.validate().map_err(|why| {
+                FileError::new(
+                    path,
+                    why,
+                    "give the texture compressed from this layer, at its size",
+                )
+            })?;
+            notes.push(format!("guarantee computed for {}", t.describe(mip)));
+            if t.levels.len() as u32 > mip + 1 {
+                notes.push(format!(
+                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass --mip-levels {} if the GPU samples them all)",
+                    t.levels.len(),
+                    t.levels.len() - 1
+                ));
+            }
+            cut_sampled(sampled, &name, &job.settings)
+        }
+    };
+    let warnings = layer.map(|l| l.warnings).unwrap_or_default();
     let mesh = &outcome.mesh;
     let base = &job.key;
     // (path relative to `out`, bytes), in the order of `output_names`
@@ -226,8 +308,8 @@ pub(crate) fn run_layer(
             opaque_capture: s.opaque_capture(),
             excess: s.excess(),
             must_cover_area: s.must_cover_area,
-            notes: outcome.notes,
-            warnings: layer.warnings,
+            notes: notes.into_iter().chain(outcome.notes).collect(),
+            warnings,
         },
     };
     Ok(Done { cut: true, entry })

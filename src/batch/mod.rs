@@ -110,6 +110,9 @@ pub struct Request {
     pub overrides: Values,
     /// What to write.
     pub outputs: Outputs,
+    /// The shipped texture (KTX 2.0 or `.astc`) of the one layer given: the
+    /// layer is cut so the meshes hold for both ([`crate::cut::cut_sampled`]).
+    pub texture: Option<PathBuf>,
 }
 
 /// One layer to cut.
@@ -130,6 +133,8 @@ pub struct Job {
     pub settings_file: Option<PathBuf>,
     /// An earlier job of the plan with the same outputs: this one fails.
     pub clash: Option<PathBuf>,
+    /// The shipped texture the layer is also cut against, if any.
+    pub texture: Option<PathBuf>,
 }
 
 /// The jobs of a batch.
@@ -336,6 +341,19 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
             jobs.push(job(req, file, path, relative, stem, key)?);
         }
     }
+    if let Some(texture) = &req.texture {
+        if jobs.len() != 1 {
+            return Err(FileError::new(
+                texture,
+                format!(
+                    "is one texture, but {} layers were given to cut against it",
+                    jobs.len()
+                ),
+                "give --texture with exactly one PNG layer",
+            ));
+        }
+        jobs[0].texture = Some(texture.clone());
+    }
     // two layers with one output path: the later ones fail
     let mut seen: HashMap<String, PathBuf> = HashMap::new();
     for j in &mut jobs {
@@ -385,5 +403,6 @@ fn job(
         settings,
         settings_file: file.map(|f| f.path.clone()),
         clash: None,
+        texture: None,
     })
 }

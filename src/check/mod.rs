@@ -3,6 +3,10 @@
 //! and the definitions (see [`regions_for_check`]) and measures every
 //! violation of a mesh as an area, by polygon clipping (not by sampling).
 //!
+//! [`check_mesh_sampled`] and [`check_mesh_per_level`] check against a
+//! shipped texture's decoded levels too, their regions derived from the
+//! sampling rule in `check/levels.rs`.
+//!
 //! The contract, for a [`LayerMesh`] cut from an image W x H texels:
 //! * the opaque mesh lies inside S (which lies inside the image);
 //! * opaque + blended cover C; the blended mesh lies inside the image;
@@ -28,6 +32,7 @@
 //! is a sum over blended triangles.
 
 mod geom;
+mod levels;
 mod regions;
 mod runs;
 #[cfg(test)]
@@ -37,6 +42,7 @@ pub use regions::regions_for_check;
 
 use crate::alpha::AlphaMap;
 use crate::mesh::{LayerMesh, Winding, FORMAT, VERSION};
+use crate::settings::{AlphaThresholds, Filter, Wrap};
 use geom::Pt;
 
 /// Areas (texel²) at or below this are float rounding and count as zero.
@@ -216,6 +222,12 @@ pub enum CheckError {
         /// Vertices in the mesh.
         vertices: usize,
     },
+    /// The shipped texture's levels do not fit the layer.
+    #[error("{why}\n  hint: check the mesh against the texture made from its layer, with mip levels of sizes W / 2^l")]
+    BadLevels {
+        /// What does not fit.
+        why: String,
+    },
     /// A position is NaN or infinite.
     #[error("vertex {vertex} has a non-finite position ({x}, {y}), but positions must be finite texel coordinates\n  hint: fix the mesh file or cut the layer again")]
     NonFinitePosition {
@@ -303,9 +315,148 @@ struct Tri {
 
 /// Checks `mesh` against the contract for the layer whose alpha is `alpha`.
 pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, CheckError> {
-    validate(mesh, alpha)?;
+    check_mesh_sampled(mesh, Some(alpha), &[])
+}
+
+/// Checks `mesh` against what the GPU samples: the source's alpha (`source`,
+/// its mip levels 0..=`mip_levels` by the block rules) and/or the decoded
+/// levels of the texture that ships (`shipped`, level 0 first, every one
+/// used: pass levels 0..=`mip_levels`). The regions hold for all of them:
+/// S is the intersection, C the union. Level 0's size must be the mesh's;
+/// each shipped level's size must divide it.
+pub fn check_mesh_sampled(
+    mesh: &LayerMesh,
+    source: Option<&AlphaMap>,
+    shipped: &[AlphaMap],
+) -> Result<ContractReport, CheckError> {
+    let level0 = validate_sampled(mesh, source, shipped)?;
+    let size = (level0.width, level0.height);
+    let t = mesh.alpha;
+    let mut regions = source.map(|a| regions::region_runs(a, mesh.filter, t, mesh.wrap));
+    for level in shipped {
+        let (s, c) = levels::level_runs(level, size, mesh.filter.mode, t, mesh.wrap);
+        regions = Some(match regions {
+            None => (s, c),
+            Some((s0, c0)) => (
+                levels::combine(&s0, &s, true),
+                levels::combine(&c0, &c, false),
+            ),
+        });
+    }
+    let (safe, cover) = regions.expect("a source or a shipped level");
+    Ok(measure(mesh, size, &safe, &cover))
+}
+
+/// [`regions_for_check`] over what the GPU samples: the source's block
+/// levels (when given) and the shipped levels, S intersected and C united
+/// over all of them (the regions [`check_mesh_sampled`] uses), as half-grid
+/// masks `2W` x `2H`. The levels must fit as [`check_mesh_sampled`] says.
+pub fn regions_for_check_sampled(
+    source: Option<&AlphaMap>,
+    shipped: &[AlphaMap],
+    filter: Filter,
+    t: AlphaThresholds,
+    wrap: Wrap,
+) -> (Vec<bool>, Vec<bool>, usize, usize) {
+    let level0 = source
+        .or(shipped.first())
+        .expect("a source or a shipped level");
+    let size = (level0.width, level0.height);
+    let (safe, cover) = sampled_runs(source, shipped, size, (filter, t, wrap));
+    (
+        safe.to_mask(),
+        cover.to_mask(),
+        2 * size.0 as usize,
+        2 * size.1 as usize,
+    )
+}
+
+/// Checks `mesh` against each shipped level alone (level 0 first): the
+/// violation areas per level.
+pub fn check_mesh_per_level(
+    mesh: &LayerMesh,
+    shipped: &[AlphaMap],
+) -> Result<Vec<ContractReport>, CheckError> {
+    let level0 = validate_sampled(mesh, None, shipped)?;
+    let size = (level0.width, level0.height);
+    Ok(shipped
+        .iter()
+        .map(|level| {
+            let (s, c) = levels::level_runs(level, size, mesh.filter.mode, mesh.alpha, mesh.wrap);
+            measure(mesh, size, &s, &c)
+        })
+        .collect())
+}
+
+/// S and C over the source's block levels and the shipped levels, for a
+/// filter, thresholds and addressing.
+fn sampled_runs(
+    source: Option<&AlphaMap>,
+    shipped: &[AlphaMap],
+    size: (u32, u32),
+    (filter, t, wrap): (Filter, AlphaThresholds, Wrap),
+) -> (runs::CellRuns, runs::CellRuns) {
+    let mut regions = source.map(|a| regions::region_runs(a, filter, t, wrap));
+    for level in shipped {
+        let (s, c) = levels::level_runs(level, size, filter.mode, t, wrap);
+        regions = Some(match regions {
+            None => (s, c),
+            Some((s0, c0)) => (
+                levels::combine(&s0, &s, true),
+                levels::combine(&c0, &c, false),
+            ),
+        });
+    }
+    regions.expect("a source or a shipped level")
+}
+
+/// Validates the mesh against level 0 (the source, or else the first shipped
+/// level) and the shipped levels' sizes; returns level 0.
+fn validate_sampled<'a>(
+    mesh: &LayerMesh,
+    source: Option<&'a AlphaMap>,
+    shipped: &'a [AlphaMap],
+) -> Result<&'a AlphaMap, CheckError> {
+    let Some(level0) = source.or(shipped.first()) else {
+        return Err(CheckError::BadLevels {
+            why: "neither an image nor a texture level was given".into(),
+        });
+    };
+    validate(mesh, level0)?;
+    for (l, m) in shipped.iter().enumerate() {
+        if m.alpha.len() != m.width as usize * m.height as usize {
+            return Err(CheckError::BadAlphaMap {
+                len: m.alpha.len(),
+                width: m.width,
+                height: m.height,
+            });
+        }
+        let fits = m.width > 0
+            && m.height > 0
+            && level0.width % m.width == 0
+            && level0.height % m.height == 0;
+        if !fits || (l == 0 && (m.width, m.height) != (level0.width, level0.height)) {
+            return Err(CheckError::BadLevels {
+                why: format!(
+                    "texture level {l} is {} x {} texels, which does not divide the layer's {} x {}",
+                    m.width, m.height, level0.width, level0.height
+                ),
+            });
+        }
+    }
+    Ok(level0)
+}
+
+/// The contract's areas for `mesh` against the regions `safe` and `cover`
+/// of a layer of `size` texels (the mesh already validated).
+fn measure(
+    mesh: &LayerMesh,
+    size: (u32, u32),
+    safe: &runs::CellRuns,
+    cover: &runs::CellRuns,
+) -> ContractReport {
     let mut rep = ContractReport::default();
-    let (w, h) = (alpha.width as f64, alpha.height as f64);
+    let (w, h) = (size.0 as f64, size.1 as f64);
 
     // Triangles: degenerate and winding counts; opaque first, then blended.
     let pos = |i: u32| {
@@ -360,7 +511,6 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
     }
 
     // Regions, as runs of half-grid cells.
-    let (safe, cover) = regions::region_runs(alpha, mesh.filter, mesh.alpha, mesh.wrap);
     rep.safe_area = safe.cell_count() as f64 * 0.25;
     rep.must_cover_area = cover.cell_count() as f64 * 0.25;
     // Mask rows (none for an empty image, even when the grid height is not 0).
@@ -416,5 +566,5 @@ pub fn check_mesh(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<ContractReport, 
         .sum();
     rep.uncovered = uncovered.max(0.0);
     rep.opaque_outside_safe = rep.opaque_outside_safe.max(0.0);
-    Ok(rep)
+    rep
 }

@@ -544,5 +544,114 @@ pub fn corpus() -> Vec<Entry> {
     let mut v = images();
     v.extend(scenes());
     v.extend(meshes());
+    v.extend(textures());
+    v
+}
+
+/// Shipped textures, KTX 2.0 files written byte by byte (`common::ktx2`,
+/// per the Khronos KTX 2.0 specification) and raw `.astc` files (the ASTC
+/// reference codec's 16-byte header: magic 0x5CA1AB13, block x, y, z, then
+/// the image's x, y, z as 24-bit little-endian numbers; from memory).
+fn textures() -> Vec<Entry> {
+    use crate::common::ktx2::{basic_dfd, dfd_for_block, ktx2_file, rgba8_ktx2, Level};
+    let mut v = Vec::new();
+    let mut add = |name, bytes: Vec<u8>| {
+        v.push(Entry {
+            name,
+            bytes,
+            alpha: None,
+        })
+    };
+    // the corpus shape at 12 x 10, then three levels by 2x2 minimum (any
+    // chain will do: the file's own levels are what is read)
+    let mut levels = vec![(W, H, grid(W, H, alpha_at))];
+    while levels.len() < 4 {
+        let (w, h, a) = levels.last().unwrap().clone();
+        let (nw, nh) = ((w / 2).max(1), (h / 2).max(1));
+        let next = grid(nw, nh, |x, y| {
+            let at = |x: u32, y: u32| a[(y.min(h - 1) * w + x.min(w - 1)) as usize];
+            at(2 * x, 2 * y)
+                .min(at(2 * x + 1, 2 * y))
+                .min(at(2 * x, 2 * y + 1))
+                .min(at(2 * x + 1, 2 * y + 1))
+        });
+        levels.push((nw, nh, next));
+    }
+    let ok = rgba8_ktx2(&levels);
+    add("rgba8-mips.ktx2", ok.clone());
+    add("truncated.ktx2", ok[..60].to_vec());
+    // level 0's byteOffset (level index entry 0, bytes 80..88) past the end
+    let mut past = ok.clone();
+    past[80..88].copy_from_slice(&(ok.len() as u64 + 100).to_le_bytes());
+    add("level-past-end.ktx2", past);
+    // BasisLZ: vkFormat UNDEFINED (0), supercompressionScheme 1, ETC1S colour model (163)
+    let one = Level::raw(vec![0; 16]);
+    add(
+        "basislz.ktx2",
+        ktx2_file(
+            0,
+            (4, 4),
+            &[one],
+            1,
+            basic_dfd(163, 2, (4, 4), 0, &[(0, 64, 0, 0, u32::MAX)]),
+        ),
+    );
+    // UASTC: vkFormat UNDEFINED, no supercompression, UASTC colour model (166)
+    let one = Level::raw(vec![0; 16]);
+    add(
+        "uastc.ktx2",
+        ktx2_file(
+            0,
+            (4, 4),
+            &[one],
+            0,
+            basic_dfd(166, 2, (4, 4), 16, &[(0, 128, 0, 0, u32::MAX)]),
+        ),
+    );
+    // BC1 (VK_FORMAT_BC1_RGB_UNORM_BLOCK = 131): a desktop format, not read
+    let one = Level::raw(vec![0; 8]);
+    add(
+        "bc1.ktx2",
+        ktx2_file(
+            131,
+            (4, 4),
+            &[one],
+            0,
+            basic_dfd(128, 1, (4, 4), 8, &[(0, 64, 0, 0, u32::MAX)]),
+        ),
+    );
+    // an .astc file with 7 x 7 blocks, not an ASTC footprint
+    let mut astc = vec![0x13, 0xAB, 0xA1, 0x5C, 7, 7, 1];
+    for n in [W, H, 1] {
+        astc.extend(&n.to_le_bytes()[..3]);
+    }
+    astc.extend(vec![0u8; 2 * 2 * 16]);
+    add("block-7x7.astc", astc);
+    // a valid ASTC 4x4 KTX 2.0 file: void-extent blocks (constant colour; ASTC
+    // specification, from memory: bits 0..9 = 0x1FC, LDR, 16-bit RGBA at
+    // bytes 8..16), opaque on the left, transparent on the right
+    let block = |alpha: u16| {
+        let mut b = vec![0xFC, 0xFD, 0xFF, 0xFF, 0xFF, 0xFF, 0xFF, 0xFF];
+        for c in [0xFFFFu16, 0xFFFF, 0xFFFF, alpha] {
+            b.extend(c.to_le_bytes());
+        }
+        b
+    };
+    let mut data = Vec::new();
+    for _ in 0..3 {
+        for bx in 0..3 {
+            data.extend(block(if bx < 2 { 0xFFFF } else { 0 }));
+        }
+    }
+    add(
+        "astc-4x4.ktx2",
+        ktx2_file(
+            157,
+            (W, H),
+            &[Level::raw(data)],
+            0,
+            dfd_for_block(157, 4, 4),
+        ),
+    );
     v
 }

@@ -1,6 +1,8 @@
 //! Helpers shared by the integration tests.
 #![allow(dead_code)]
 
+pub mod ktx2;
+
 /// splitmix64 (common practice, no source): a small deterministic generator.
 pub struct Rng(pub u64);
 

@@ -1,69 +1,129 @@
-//! `underdraw check`: re-verify a mesh file against its layer.
+//! `underdraw check`: re-verify a mesh file against its layer, and/or
+//! against the compressed texture that ships.
 
 use crate::{error, Print};
 use std::path::Path;
 use std::process::ExitCode;
-use underdraw::check::check_mesh;
-use underdraw::io::{load_layer, load_mesh, ImageLimits};
+use underdraw::check::{check_mesh_per_level, check_mesh_sampled, ContractReport};
+use underdraw::io::{is_texture, load_layer, load_mesh, load_texture, ImageLimits};
 
 pub(crate) fn check(
     mesh_path: &Path,
-    image_path: &Path,
+    image_path: Option<&Path>,
+    texture_path: Option<&Path>,
     print: Print,
     limits: ImageLimits,
 ) -> ExitCode {
+    let fail = |e: &dyn std::fmt::Display| {
+        error(e);
+        ExitCode::from(2)
+    };
     let mesh = match load_mesh(mesh_path) {
         Ok(m) => m,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
+        Err(e) => return fail(&e),
+    };
+    // an IMAGE that is a texture file is read as --texture
+    let (image_path, texture_path) = match (image_path, texture_path) {
+        (Some(i), None) if std::fs::read(i).is_ok_and(|b| is_texture(&b)) => (None, Some(i)),
+        other => other,
+    };
+    let map = match image_path.map(|p| load_layer(p, &limits)) {
+        Some(Ok(l)) => Some(l.alpha),
+        Some(Err(e)) => return fail(&e),
+        None => None,
+    };
+    let texture = match texture_path.map(|p| load_texture(p, &limits)) {
+        Some(Ok(t)) => Some(t),
+        Some(Err(e)) => return fail(&e),
+        None => None,
+    };
+    let mip = mesh.filter.mip_levels;
+    let levels = match (&texture, texture_path) {
+        (Some(t), Some(p)) => match t.levels_for(mip) {
+            Ok(l) => l,
+            Err(why) => {
+                return fail(&format!(
+                    "{}: {why} (the mesh was cut for mip levels 0 to {mip})\n  hint: check against a texture with those levels, or cut the mesh again for fewer",
+                    p.display()
+                ))
+            }
+        },
+        _ => &[][..],
+    };
+    let whole = check_mesh_sampled(&mesh, map.as_ref(), levels);
+    let per_level = if levels.is_empty() {
+        Ok(Vec::new())
+    } else {
+        check_mesh_per_level(&mesh, levels)
+    };
+    let (report, per_level) = match (whole, per_level) {
+        (Ok(r), Ok(p)) => (r, p),
+        (Err(e), _) | (_, Err(e)) => {
+            return fail(&format!("{}: {e}", mesh_path.display()));
         }
     };
-    let map = match load_layer(image_path, &limits) {
-        Ok(m) => m.alpha,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
+    let described = texture.as_ref().map(|t| t.describe(mip));
+    let code = ExitCode::from(if report.holds() { 0 } else { 1 });
+    if print.json {
+        let violations: Vec<String> = report.violations().iter().map(|v| v.to_string()).collect();
+        let mut v = serde_json::json!({
+            "holds": report.holds(),
+            "opaque_area": report.opaque_area,
+            "safe_area": report.safe_area,
+            "covered_area": report.covered_area,
+            "must_cover_area": report.must_cover_area,
+            "violations": violations,
+        });
+        if let Some(d) = &described {
+            v["texture"] = d.clone().into();
+            v["levels"] = per_level
+                .iter()
+                .enumerate()
+                .map(|(l, r)| level_json(l, r))
+                .collect();
         }
-    };
-    match check_mesh(&mesh, &map) {
-        Err(e) => {
-            error(format!("{}: {e}", mesh_path.display()));
-            ExitCode::from(2)
-        }
-        Ok(report) if print.json => {
-            let violations: Vec<String> =
-                report.violations().iter().map(|v| v.to_string()).collect();
-            let v = serde_json::json!({
-                "holds": report.holds(),
-                "opaque_area": report.opaque_area,
-                "safe_area": report.safe_area,
-                "covered_area": report.covered_area,
-                "must_cover_area": report.must_cover_area,
-                "violations": violations,
-            });
-            println!(
-                "{}",
-                serde_json::to_string_pretty(&v).expect("plain values serialize")
-            );
-            ExitCode::from(if report.holds() { 0 } else { 1 })
-        }
-        Ok(report) if report.holds() => {
-            if print.quiet {
-                return ExitCode::SUCCESS;
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&v).expect("plain values serialize")
+        );
+        return code;
+    }
+    if print.quiet && report.holds() {
+        return code;
+    }
+    if let (Some(d), false) = (&described, print.quiet) {
+        println!("texture: {d}");
+        for (l, r) in per_level.iter().enumerate() {
+            let v = r.violations();
+            if v.is_empty() {
+                println!("  level {l}: holds");
+            } else {
+                println!("  level {l}: {}", v.join("; "));
             }
-            println!(
-                "contract holds: opaque mesh {:.1} of {:.1} safe texels, meshes cover {:.1} of {:.1} must-cover texels, no overlap",
-                report.opaque_area, report.safe_area, report.covered_area, report.must_cover_area
-            );
-            ExitCode::SUCCESS
-        }
-        Ok(report) => {
-            println!("contract violated:");
-            for v in report.violations() {
-                println!("  {v}");
-            }
-            ExitCode::from(1)
         }
     }
+    if report.holds() {
+        println!(
+            "contract holds: opaque mesh {:.1} of {:.1} safe texels, meshes cover {:.1} of {:.1} must-cover texels, no overlap",
+            report.opaque_area, report.safe_area, report.covered_area, report.must_cover_area
+        );
+    } else {
+        println!("contract violated:");
+        for v in report.violations() {
+            println!("  {v}");
+        }
+    }
+    code
+}
+
+fn level_json(level: usize, r: &ContractReport) -> serde_json::Value {
+    serde_json::json!({
+        "level": level,
+        "holds": r.holds(),
+        "opaque_outside_safe": r.opaque_outside_safe,
+        "uncovered": r.uncovered,
+        "safe_area": r.safe_area,
+        "must_cover_area": r.must_cover_area,
+        "violations": r.violations(),
+    })
 }

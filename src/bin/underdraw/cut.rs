@@ -22,7 +22,8 @@ enum FormatArg {
 
 #[derive(Args)]
 pub(crate) struct CutArgs {
-    /// PNG layers (RGBA; images without alpha count as fully opaque) and
+    /// PNG layers (RGBA; images without alpha count as fully opaque),
+    /// compressed textures (.ktx2, .astc: cut on their decoded levels) and
     /// folders: a folder is searched recursively for `*.png`, and its
     /// layout is mirrored in the output folder (`in/town/houses.png` →
     /// `OUT/town/houses.mesh.json`); files given directly are laid out
@@ -81,6 +82,14 @@ pub(crate) struct CutArgs {
     /// vertices, C opaque capture, E excess); at most 1024 pixels wide.
     #[arg(long)]
     preview: bool,
+    /// The compressed texture that ships for the one PNG layer given (KTX
+    /// 2.0: RGBA8, ETC2 RGBA8 / RGB8A1, ASTC LDR 4x4 to 12x12, optionally
+    /// Zstandard-supercompressed; or a raw .astc file): the layer is cut on
+    /// both, safe where both sample opaque and covering what either shows,
+    /// with --mip-levels counting the texture's own levels. A .ktx2 or .astc
+    /// file can also be cut alone, given as the layer.
+    #[arg(long, value_name = "FILE")]
+    texture: Option<PathBuf>,
     /// Most vertices per layer, both meshes together (a vertex they share
     /// counts once). At least 4.
     #[arg(long, value_name = "N", default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
@@ -139,6 +148,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
             glb: gltf && args.glb,
             preview: args.preview,
         },
+        texture: args.texture.clone(),
     };
     let plan = match batch::plan(&request) {
         Ok(p) => p,

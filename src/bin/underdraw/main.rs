@@ -102,8 +102,16 @@ enum Command {
     Check {
         /// The mesh file (`.mesh.json`) written by `cut`.
         mesh: PathBuf,
-        /// The PNG layer it was cut from.
-        image: PathBuf,
+        /// The PNG layer it was cut from (or a .ktx2 / .astc texture, read
+        /// as with --texture).
+        #[arg(required_unless_present = "texture")]
+        image: Option<PathBuf>,
+        /// The compressed texture that ships (KTX 2.0 or .astc): check the
+        /// mesh against its decoded levels 0 to the mesh's mip levels, and
+        /// report the violation areas per level (with IMAGE too: against
+        /// both).
+        #[arg(long, value_name = "FILE")]
+        texture: Option<PathBuf>,
     },
     /// Score a parallax scene on a simulated GPU: overdraw, lanes, vertices
     /// and draws per strategy (rect, outline, split) and per layer, with
@@ -144,7 +152,8 @@ pub(crate) struct CutOptions {
     #[arg(long, value_enum, default_value = "bilinear")]
     filter: FilterArg,
     /// Highest mip level the layer may be sampled from (0: no mipmaps). The
-    /// meshes are made safe for every level up to this one.
+    /// meshes are made safe for every level up to this one; for a texture
+    /// (.ktx2), levels 0 to this one of the file, each its own texels.
     #[arg(long, value_name = "L", default_value_t = 0, value_parser = clap::value_parser!(u32).range(0..=15))]
     mip_levels: u32,
     /// Axes on which the layer's texture repeats (tiling strips); the other
@@ -241,7 +250,11 @@ fn run() -> ExitCode {
                 .expect("the cut subcommand");
             cut::cut(&args, sub, print, limits)
         }
-        Command::Check { mesh, image } => check::check(&mesh, &image, print, limits),
+        Command::Check {
+            mesh,
+            image,
+            texture,
+        } => check::check(&mesh, image.as_deref(), texture.as_deref(), print, limits),
         Command::Scene(args) => scene::scene(&args, print, limits),
         Command::Sweep(args) => sweep::sweep(&args, print, limits),
     }

@@ -4,14 +4,20 @@ use crate::{error, same_file, CutOptions, Print};
 use clap::Args;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+use underdraw::alpha::Sampled;
 use underdraw::error::FileError;
-use underdraw::io::{load_layer, write_atomic, ImageLimits};
-use underdraw::sweep::{knee, sweep_layer, to_csv, to_table, BUDGETS};
+use underdraw::io::{is_texture, load_layer, load_texture, write_atomic, ImageLimits};
+use underdraw::sweep::{knee, sweep_sampled, to_csv, to_table, BUDGETS};
 
 #[derive(Args)]
 pub(crate) struct SweepArgs {
-    /// The PNG layer to cut at each budget.
+    /// The PNG layer to cut at each budget (or a .ktx2 / .astc texture, cut
+    /// on its decoded levels).
     image: PathBuf,
+    /// The compressed texture that ships for the layer (KTX 2.0 or .astc):
+    /// each cut holds for both, as `cut --texture`.
+    #[arg(long, value_name = "FILE")]
+    texture: Option<PathBuf>,
     #[command(flatten)]
     options: CutOptions,
     /// Folder for `<stem>.sweep.csv` (created if missing; default `out/sweep`).
@@ -40,17 +46,60 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Exit
         error(&e);
         return ExitCode::from(2);
     }
-    let map = match load_layer(&args.image, &limits) {
-        Ok(m) => {
-            if print.text() {
-                for w in &m.warnings {
-                    println!("note: {w}");
+    let image_is_texture = std::fs::read(&args.image).is_ok_and(|b| is_texture(&b));
+    let map = if image_is_texture {
+        None
+    } else {
+        match load_layer(&args.image, &limits) {
+            Ok(m) => {
+                if print.text() {
+                    for w in &m.warnings {
+                        println!("note: {w}");
+                    }
                 }
+                Some(m.alpha)
             }
-            m.alpha
+            Err(e) => return fail(e),
         }
-        Err(e) => return fail(e),
     };
+    let texture_path = if image_is_texture {
+        Some(args.image.clone())
+    } else {
+        args.texture.clone()
+    };
+    let texture = match texture_path.as_deref().map(|p| load_texture(p, &limits)) {
+        Some(Ok(t)) => Some(t),
+        Some(Err(e)) => return fail(e),
+        None => None,
+    };
+    let mip = base.filter.mip_levels;
+    let shipped = match (&texture, &texture_path) {
+        (Some(t), Some(p)) => match t.levels_for(mip) {
+            Ok(l) => l,
+            Err(why) => {
+                return fail(FileError::new(
+                    p,
+                    why,
+                    "lower --mip-levels to the levels the texture holds",
+                ))
+            }
+        },
+        _ => &[][..],
+    };
+    let sampled = Sampled {
+        source: map.as_ref(),
+        shipped,
+    };
+    if let (Err(why), Some(p)) = (sampled.validate(), &texture_path) {
+        return fail(FileError::new(
+            p,
+            why,
+            "give the texture compressed from this layer, at its size",
+        ));
+    }
+    if let (Some(t), true) = (&texture, print.text()) {
+        println!("note: guarantee computed for {}", t.describe(mip));
+    }
     let out = args
         .out
         .clone()
@@ -80,7 +129,7 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Exit
             "choose another --out folder",
         ));
     }
-    let points = sweep_layer(&map, &name, &base, &BUDGETS);
+    let points = sweep_sampled(sampled, &name, &base, &BUDGETS);
     let knee_budget = knee(&points, args.knee);
     if let Err(e) = write_atomic(&dest, to_csv(&points).as_bytes()) {
         return fail(e);
