@@ -59,21 +59,30 @@ fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     // one ring with notches: then also try the safe region with its holes
     // opened (on its runs). Each region is fitted with both rankings of
     // large edits; the best result (opaque area minus covering area) wins.
+    // Every variant ends by spending what is left of the budget and
+    // exchanging vertices while that gains area (`Fitter::fit`).
     let opened = plain.has_holes().then(|| {
         let mut runs = open_holes_in_runs(plain.runs());
         runs.remove_pinches();
         Prepared::from_runs(runs, true)
     });
-    let mut variants: Vec<(&Prepared, bool)> = vec![(&plain, true), (&plain, false)];
+    // Where the outlines coincide (hard edges), the greedy edits also run
+    // without counting a position given up by one class as half saved.
+    let mut variants: Vec<(&Prepared, bool, bool)> = vec![
+        (&plain, true, true),
+        (&plain, false, true),
+        (&plain, true, false),
+    ];
     if let Some(o) = &opened {
-        variants.push((o, true));
-        variants.push((o, false));
+        variants.push((o, true, true));
+        variants.push((o, false, true));
     }
     let results: Vec<(i64, Fit)> = variants
         .par_iter()
-        .map(|&(safe, cap)| {
+        .map(|&(safe, cap, credit)| {
             let mut fitter = Fitter::new(safe, cover);
             fitter.set_cap_savings(cap);
+            fitter.set_share_credit(credit);
             fitter.fit(budget);
             (fitter.objective(), fitter.result())
         })
