@@ -340,6 +340,16 @@ impl<'a> Fitter<'a> {
             self.seed();
             self.run(budget);
         }
+        if self.distinct > budget {
+            // the ranking left an opaque island the box could not take in:
+            // drop the opaque islands (the box alone holds 4 vertices)
+            for c in 0..self.comps.len() as u32 {
+                let comp = &self.comps[c as usize];
+                if comp.alive && comp.class == Class::Opaque {
+                    self.apply_drop_comp(c);
+                }
+            }
+        }
         self.heap.clear();
         self.refine(budget, 4 * budget);
         debug_assert!(self.distinct <= budget);

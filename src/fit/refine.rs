@@ -434,3 +434,37 @@ impl Fitter<'_> {
         }
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::alpha::AlphaMap;
+    use crate::cut::cut_layer;
+    use crate::settings::{CutSettings, Filter, FilterMode};
+
+    /// A case the property tests found: a hard-edged quarter disc filling
+    /// most of a narrow layer, at the smallest budget, where the half
+    /// credit left the greedy edits one vertex over the budget.
+    #[test]
+    fn hard_quarter_disc_at_budget_four_stays_within_it() {
+        let (w, h) = (7u32, 33u32);
+        let mut a = Vec::new();
+        for y in 0..h {
+            for x in 0..w {
+                let d = ((x as f64 + 0.5).powi(2) + (y as f64 + 0.5).powi(2)).sqrt();
+                a.push(if 24.300641939098504 - d > 0.0 { 255 } else { 0 });
+            }
+        }
+        let map = AlphaMap::from_raw(w, h, a);
+        let s = CutSettings {
+            budget: 4,
+            filter: Filter {
+                mode: FilterMode::Nearest,
+                mip_levels: 0,
+            },
+            ..CutSettings::default()
+        };
+        let out = cut_layer(&map, "x", &s);
+        assert!(out.notes.is_empty(), "{:?}", out.notes);
+        assert!(out.mesh.vertex_count() <= 4);
+    }
+}
