@@ -21,7 +21,9 @@ use rayon::prelude::*;
 pub struct CutOutcome {
     /// The two meshes, checked.
     pub mesh: LayerMesh,
-    /// Plain-language remarks ("fully transparent: empty meshes", fallbacks).
+    /// Plain-language remarks ("fully transparent: empty meshes", fallbacks,
+    /// a cut that stopped more than 2 vertices under its budget while its
+    /// capture was under 0.99 or its excess over 0.01).
     pub notes: Vec<String>,
 }
 
@@ -152,6 +154,19 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
             to_mesh(map, source, settings, &regions, &plain, &t)
         }
     };
+    let s = &mesh.stats;
+    let excess = if s.must_cover_area > 0.0 {
+        s.excess() / s.must_cover_area
+    } else {
+        0.0
+    };
+    if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || excess > 0.01) {
+        notes.push(format!(
+            "stopped at {} of {} vertices: no further vertex the fitter tried gains area \
+             (an island or hole given up whole is not rebuilt)",
+            s.vertices, settings.budget
+        ));
+    }
     CutOutcome { mesh, notes }
 }
 

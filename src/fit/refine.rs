@@ -17,7 +17,7 @@ use super::*;
 use std::cmp::Reverse;
 
 /// Fractions of an edge from which insertion points are searched.
-const BASES: [f64; 5] = [0.5, 0.25, 0.75, 0.125, 0.875];
+const BASES: [f64; 3] = [0.5, 0.25, 0.75];
 
 impl Fitter<'_> {
     /// Whether inserting `p` between `u` and its successor `w` is valid;
@@ -122,7 +122,7 @@ impl Fitter<'_> {
             let (mut g, mut p) = found.expect("a valid point");
             // lattice moves while the gain grows
             for step in [8, 4, 2, 1] {
-                loop {
+                for _ in 0..8 {
                     let mut moved = false;
                     for dir in [[step, 0], [-step, 0], [0, step], [0, -step]] {
                         let q = [p[0] + dir[0], p[1] + dir[1]];
