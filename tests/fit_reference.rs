@@ -240,9 +240,9 @@ fn cuts_save_at_least_the_column_reference() {
 }
 
 /// The comparison, printed, with a looser floor: the cut saves at least
-/// 90% of what the reference saves (the fitter before its refinement
-/// phase did not reach the reference on most of these layers either, but
-/// stayed above this floor).
+/// 90% of what the reference saves. (As measured: the greedy fitter alone
+/// fell short of the reference in 5 of these 39 cuts, the fitter with its
+/// refinement phase in 3, the skylines at 32.)
 #[test]
 fn cuts_compared_with_the_column_reference() {
     compare(false);
