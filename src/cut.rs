@@ -23,7 +23,9 @@ use rayon::prelude::*;
 pub struct CutOutcome {
     /// The two meshes, checked.
     pub mesh: LayerMesh,
-    /// Plain-language remarks ("fully transparent: empty meshes", fallbacks).
+    /// Plain-language remarks ("fully transparent: empty meshes", fallbacks,
+    /// a cut that stopped more than 2 vertices under its budget while its
+    /// capture was under 0.99 or its excess over 0.01).
     pub notes: Vec<String>,
 }
 
@@ -61,21 +63,30 @@ fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     // one ring with notches: then also try the safe region with its holes
     // opened (on its runs). Each region is fitted with both rankings of
     // large edits; the best result (opaque area minus covering area) wins.
+    // Every variant ends by spending what is left of the budget and
+    // exchanging vertices while that gains area (`Fitter::fit`).
     let opened = plain.has_holes().then(|| {
         let mut runs = open_holes_in_runs(plain.runs());
         runs.remove_pinches();
         Prepared::from_runs(runs, true)
     });
-    let mut variants: Vec<(&Prepared, bool)> = vec![(&plain, true), (&plain, false)];
+    // Where the outlines coincide (hard edges), the greedy edits also run
+    // without counting a position given up by one class as half saved.
+    let mut variants: Vec<(&Prepared, bool, bool)> = vec![
+        (&plain, true, true),
+        (&plain, false, true),
+        (&plain, true, false),
+    ];
     if let Some(o) = &opened {
-        variants.push((o, true));
-        variants.push((o, false));
+        variants.push((o, true, true));
+        variants.push((o, false, true));
     }
     let results: Vec<(i64, Fit)> = variants
         .par_iter()
-        .map(|&(safe, cap)| {
+        .map(|&(safe, cap, credit)| {
             let mut fitter = Fitter::new(safe, cover);
             fitter.set_cap_savings(cap);
+            fitter.set_share_credit(credit);
             fitter.fit(budget);
             (fitter.objective(), fitter.result())
         })
@@ -155,6 +166,19 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
             to_mesh(map, source, settings, &regions, &plain, &t)
         }
     };
+    let s = &mesh.stats;
+    let excess = if s.must_cover_area > 0.0 {
+        s.excess() / s.must_cover_area
+    } else {
+        0.0
+    };
+    if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || excess > 0.01) {
+        notes.push(format!(
+            "stopped at {} of {} vertices: no further vertex the fitter tried gains area \
+             (an island or hole given up whole is not rebuilt)",
+            s.vertices, settings.budget
+        ));
+    }
     CutOutcome { mesh, notes }
 }
 

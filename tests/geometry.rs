@@ -189,6 +189,64 @@ fn disc_meshes_approach_the_regular_polygons() {
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
 
+/// At the budgets artists use (8 to 32), the fit comes within 1% of the
+/// classical bounds: opaque area at least 99% of the inscribed regular
+/// n-gon of the safe radius, covered area at most 101% of the
+/// circumscribed regular m-gon of the must-cover radius (classical result,
+/// as above; n and m are the cut's own outline vertex counts).
+#[test]
+#[ignore = "not met yet: at budgets 12 and 16 the covering octagon is 1.3% over the circumscribed one (single-vertex moves cannot turn a tangent edge); run with --ignored"]
+fn disc_meshes_at_small_budgets_are_within_one_percent() {
+    let map = disc();
+    let mut lines = Vec::new();
+    let mut failures = Vec::new();
+    for budget in [8, 12, 16, 24, 32] {
+        let mesh = cut(&map, budget);
+        let s = &mesh.stats;
+        let (n, m) = (s.opaque_outline_vertices, s.cover_outline_vertices);
+        let best_opaque = inscribed_regular(n.max(3), R_SAFE);
+        let best_cover = circumscribed_regular(m.max(3), R_COVER);
+        let (ro, rc) = (s.opaque_area / best_opaque, s.covered_area / best_cover);
+        lines.push(format!(
+            "budget {budget}: {} vertices, n = {n} ({ro:.4} of inscribed), m = {m} ({rc:.4} of circumscribed)",
+            s.vertices
+        ));
+        if n < 3 || ro < 0.99 || rc > 1.01 {
+            failures.push(lines.last().unwrap().clone());
+        }
+    }
+    eprintln!("{}", lines.join("\n"));
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// A hard-edged disc drawn with `nearest`: its safe-opaque and must-cover
+/// outlines coincide, and the cut still spends its whole budget (each
+/// vertex more gains area: a convex outline is never exact at these
+/// budgets).
+#[test]
+fn hard_disc_with_nearest_uses_its_whole_budget() {
+    let map = disc();
+    for budget in [8, 16, 24, 32, 64] {
+        let settings = CutSettings {
+            budget,
+            filter: Filter {
+                mode: FilterMode::Nearest,
+                mip_levels: 0,
+            },
+            ..CutSettings::default()
+        };
+        let out = cut_layer(&map, "disc.png", &settings);
+        assert!(out.notes.is_empty(), "budget {budget}: {:?}", out.notes);
+        let report = check_mesh(&out.mesh, &map).expect("well formed");
+        assert!(report.holds(), "budget {budget}: {:?}", report.violations());
+        assert_eq!(
+            out.mesh.vertex_count(),
+            budget,
+            "budget {budget}: the cut stopped short"
+        );
+    }
+}
+
 /// The union of a triangle list's triangles, by geo's boolean operations.
 fn union_of(mesh: &LayerMesh, list: &TriangleList) -> MultiPolygon<f64> {
     let mut acc = MultiPolygon::<f64>::new(Vec::new());

@@ -84,6 +84,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost: comp.area2,
             saved: self.saved_by_removing(&ids),
+            shared: 0,
             point: [0, 0],
         })
     }
@@ -120,6 +121,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost,
             saved: self.saved_by_replacing(c, r),
+            shared: 0,
             point: [0, 0],
         })
     }
@@ -179,6 +181,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost,
             saved: self.saved_by_replacing(c, r),
+            shared: 0,
             point: [0, 0],
         })
     }
@@ -284,6 +287,7 @@ impl Fitter<'_> {
                     Eval {
                         cost,
                         saved,
+                        shared: 0,
                         point: [0, 0],
                     },
                     set,
@@ -322,6 +326,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost: -ring.area2,
             saved: self.saved_by_removing(&ids),
+            shared: 0,
             point: [0, 0],
         })
     }

@@ -31,6 +31,7 @@ mod holes;
 mod island_edits;
 mod queue;
 mod rects;
+mod refine;
 mod vertex_edits;
 
 pub use holes::{open_holes, open_holes_in_runs};
@@ -179,6 +180,7 @@ pub struct Fitter<'a> {
     heap: BinaryHeap<Cand>,
     budget: usize,
     cap_savings: bool,
+    share_credit: bool,
 }
 
 impl<'a> Fitter<'a> {
@@ -202,6 +204,7 @@ impl<'a> Fitter<'a> {
             heap: BinaryHeap::new(),
             budget: usize::MAX,
             cap_savings: true,
+            share_credit: true,
         };
         let rects = &opaque.rects;
         let (opaque, cover) = (opaque.rings.clone(), cover.rings.clone());
@@ -296,6 +299,15 @@ impl<'a> Fitter<'a> {
         self.cap_savings = cap;
     }
 
+    /// Whether an edit that stops using a position the other class still
+    /// uses is ranked as saving half a vertex (the default), or as saving
+    /// nothing. The first lets the greedy edits simplify the opaque and
+    /// covering outlines in turn where they coincide (hard edges); the
+    /// second keeps such positions shared as long as possible.
+    pub fn set_share_credit(&mut self, credit: bool) {
+        self.share_credit = credit;
+    }
+
     /// Opaque area minus covering area, in quarter texels (higher is better).
     pub fn objective(&self) -> i64 {
         let mut total = 0i64;
@@ -328,6 +340,18 @@ impl<'a> Fitter<'a> {
             self.seed();
             self.run(budget);
         }
+        if self.distinct > budget {
+            // the ranking left an opaque island the box could not take in:
+            // drop the opaque islands (the box alone holds 4 vertices)
+            for c in 0..self.comps.len() as u32 {
+                let comp = &self.comps[c as usize];
+                if comp.alive && comp.class == Class::Opaque {
+                    self.apply_drop_comp(c);
+                }
+            }
+        }
+        self.heap.clear();
+        self.refine(budget, 4 * budget);
         debug_assert!(self.distinct <= budget);
     }
 

@@ -47,6 +47,11 @@ impl Ord for Cand {
 pub(super) struct Eval {
     pub(super) cost: i64,
     pub(super) saved: i64,
+    /// Positions the edit stops sharing with the other class (their other
+    /// use remains, so they are not saved yet): ranked as half a vertex
+    /// each, so that where the opaque and covering outlines coincide each
+    /// side can be simplified in turn.
+    pub(super) shared: i64,
     pub(super) point: Point,
 }
 
@@ -67,21 +72,27 @@ impl Fitter<'_> {
     }
 
     pub(super) fn push(&mut self, kind: OpKind, id: u32, stamp: u32, e: &Eval) {
+        let saved = e.saved as f64
+            + if self.share_credit {
+                0.5 * e.shared as f64
+            } else {
+                0.0
+            };
         let key = if e.cost <= 0 {
-            if e.cost == 0 && e.saved <= 0 {
+            if e.cost == 0 && saved <= 0.0 {
                 return;
             }
-            e.cost as f64 - if e.saved > 0 { 0.5 } else { 0.0 }
+            e.cost as f64 - if saved > 0.0 { 0.5 } else { 0.0 }
         } else {
-            if e.saved <= 0 {
+            if saved <= 0.0 {
                 return;
             }
             if self.cap_savings {
                 // vertices saved beyond what the budget needs are worth nothing
-                let need = (self.distinct as i64 - self.budget as i64).max(1);
-                e.cost as f64 / e.saved.min(need) as f64
+                let need = (self.distinct as i64 - self.budget as i64).max(1) as f64;
+                e.cost as f64 / saved.min(need)
             } else {
-                e.cost as f64 / e.saved as f64
+                e.cost as f64 / saved
             }
         };
         self.heap.push(Cand {

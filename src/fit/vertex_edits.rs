@@ -142,6 +142,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost: Self::sign(class) * delta,
             saved,
+            shared: (self.refs_at(pv) == 2) as i64,
             point: pv,
         })
     }
@@ -241,6 +242,7 @@ impl Fitter<'_> {
         Some(Eval {
             cost,
             saved,
+            shared: (self.refs_at(pv) == 2) as i64 + (self.refs_at(pw) == 2) as i64,
             point: p,
         })
     }
@@ -281,6 +283,13 @@ impl Fitter<'_> {
     }
 
     pub(super) fn apply_remove(&mut self, v: u32) {
+        let u = self.apply_remove_quiet(v);
+        self.requeue_around(u);
+    }
+
+    /// Removes vertex `v` without queueing edits around it; returns its
+    /// predecessor.
+    pub(super) fn apply_remove_quiet(&mut self, v: u32) -> u32 {
         let (u, w, p, r) = {
             let vv = &self.verts[v as usize];
             (vv.prev, vv.next, vv.p, vv.ring)
@@ -296,7 +305,7 @@ impl Fitter<'_> {
         self.verts[w as usize].prev = u;
         self.grids[class as usize].add_edge(u, w, pu, pw);
         self.change_ring(r, u, -1, delta);
-        self.requeue_around(u);
+        u
     }
 
     pub(super) fn apply_collapse(&mut self, v: u32, p: Point) {
