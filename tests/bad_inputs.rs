@@ -111,6 +111,13 @@ const CASES: &[(&str, Via, i32, &str)] = &[
         2,
         "is not a positive number",
     ),
+    // the key renamed in issue 23: the message names the new key
+    (
+        "old-fill-key.scene.json",
+        Via::Scene,
+        2,
+        "the key \"repeat_x\" is now called \"fill_width\"",
+    ),
     (
         "zero-samples.scene.json",
         Via::Scene,
@@ -147,6 +154,12 @@ const CASES: &[(&str, Via, i32, &str)] = &[
         Via::Check("rgb.png"),
         2,
         "the mesh is for a 64x48 image but the image is 12x10",
+    ),
+    (
+        "old-stats-key.mesh.json",
+        Via::Check("rgb.png"),
+        2,
+        "renamed stats.interior_edge_length_unflipped",
     ),
 ];
 
@@ -353,7 +366,7 @@ fn the_pixel_limit_is_checked_from_the_header() {
         e.problem.contains("over the limit of 119 texels in all"),
         "{e}"
     );
-    assert!(e.hint.contains("--max-pixels"), "{e}");
+    assert!(e.hint.contains("--max-texels"), "{e}");
     // 100000 x 100000 RGBA8 would take 40 GB decoded; it is refused from
     // the header (this process would otherwise fail to allocate it)
     let huge = corpus_dir().join("huge-header.png");
