@@ -109,7 +109,7 @@ pub fn index_html(
     let _ = writeln!(s, "<h2>Layers</h2>");
     let _ = writeln!(
         s,
-        "<p>Previews: <span class=\"swatch\" style=\"background: {}\"></span> opaque mesh (drawn with blending off), <span class=\"swatch\" style=\"background: {}\"></span> blended mesh, over the layer on a checkerboard; dotted white: the safe-opaque outline, dotted black: the must-cover outline. Caption: B budget, V vertices, C opaque capture, E excess.</p>",
+        "<p>Previews: <span class=\"swatch\" style=\"background: {}\"></span> opaque mesh (drawn with blending off), <span class=\"swatch\" style=\"background: {}\"></span> blended mesh, over the layer on a checkerboard; dotted white: the safe-opaque outline, dotted black: the must-cover outline. A layer wider than tall is shown plain above its cut.</p>",
         hex(crate::preview::OPAQUE_TINT),
         hex(crate::preview::BLENDED_TINT)
     );

@@ -69,9 +69,10 @@ pub(crate) struct CutArgs {
     #[arg(long)]
     glb: bool,
     /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
-    /// with the opaque mesh tinted blue and the blended one orange, their
-    /// edges, the regions' outlines dotted, and a caption (B budget, V
-    /// vertices, C opaque capture, E excess); at most 1024 pixels wide.
+    /// with the opaque mesh tinted blue and the blended one orange (lightly,
+    /// so the art shows), their edges on top, the regions' outlines dotted,
+    /// and a caption in words; a layer wider than tall is shown plain above
+    /// its cut. At most 1024 pixels wide.
     #[arg(long)]
     preview: bool,
     /// Most vertices per layer, both meshes together (a vertex they share
