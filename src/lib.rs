@@ -60,6 +60,7 @@ pub mod raster;
 pub mod scene;
 pub mod settings;
 pub mod sweep;
+pub mod table;
 pub mod text;
 pub mod triangulate;
 

@@ -61,6 +61,19 @@ impl CutNumbers {
         }
     }
 
+    /// The numbers a batch recorded for a layer (its budget unknown there).
+    pub fn of_result(r: &crate::batch::manifest::LayerResult) -> Self {
+        CutNumbers {
+            budget: None,
+            vertices: r.vertices,
+            safe_opaque_area: r.safe_opaque_area,
+            opaque_capture: r.opaque_capture,
+            opaque_texels: r.opaque_texels,
+            excess: r.excess,
+            must_cover_area: r.must_cover_area,
+        }
+    }
+
     /// The opaque capture, `None` where the safe-opaque region is empty.
     pub fn capture(&self) -> Option<f64> {
         match self.safe_opaque_area {

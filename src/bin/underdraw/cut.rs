@@ -8,7 +8,9 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use underdraw::batch::{self, settings_file::Values, LayerReport, Outputs, Status};
 use underdraw::io::ImageLimits;
+use underdraw::quality::CutNumbers;
 use underdraw::settings::{FilterMode, Wrap};
+use underdraw::table;
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum FormatArg {
@@ -212,32 +214,38 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
 }
 
 fn print_table(layers: &[LayerReport]) {
-    println!(
-        "{:<28} {:>8} {:>9} {:>12}",
-        "layer", "vertices", "capture", "excess"
-    );
-    for l in layers {
-        let Some(r) = &l.result else { continue };
-        println!(
-            "{:<28} {:>8} {:>8.1}% {:>8.0} tx ({:.1}%){}",
-            l.input.display(),
-            r.vertices,
-            100.0 * r.opaque_capture,
-            r.excess,
-            if r.must_cover_area > 0.0 {
-                100.0 * r.excess / r.must_cover_area
-            } else {
-                0.0
-            },
-            if l.status == Status::Unchanged {
-                "  unchanged"
-            } else {
-                ""
+    let shown: Vec<&LayerReport> = layers.iter().filter(|l| l.result.is_some()).collect();
+    let cwd = std::env::current_dir().unwrap_or_default();
+    let paths: Vec<PathBuf> = shown.iter().map(|l| l.input.clone()).collect();
+    let names = table::display_paths(&paths, &cwd);
+    let rows: Vec<table::CutRow> = shown
+        .iter()
+        .zip(names)
+        .map(|(l, layer)| {
+            let r = l.result.as_ref().expect("filtered above");
+            let numbers = CutNumbers::of_result(r);
+            table::CutRow {
+                layer,
+                status: status_word(l.status).into(),
+                numbers,
+                warnings: r
+                    .warnings
+                    .iter()
+                    .cloned()
+                    .chain(numbers.warnings(None))
+                    .collect(),
+                notes: r.notes.clone(),
             }
-        );
-        for n in r.warnings.iter().chain(&r.notes) {
-            println!("  note: {n}");
-        }
+        })
+        .collect();
+    print!("{}", table::cut_table(&rows));
+}
+
+fn status_word(s: Status) -> &'static str {
+    match s {
+        Status::Cut => "cut",
+        Status::Unchanged => "unchanged",
+        Status::Failed => "failed",
     }
 }
 
@@ -248,11 +256,16 @@ fn json_line(l: &LayerReport) -> serde_json::Value {
         "outputs": l.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
     });
     if let Some(r) = &l.result {
+        let n = CutNumbers::of_result(r);
         o["vertices"] = r.vertices.into();
-        o["opaque_capture"] = r.opaque_capture.into();
+        // null where the safe-opaque region is empty
+        o["opaque_capture"] = n.capture().into();
         o["excess"] = r.excess.into();
+        o["excess_share"] = n.excess_share().into();
+        o["must_cover_area"] = r.must_cover_area.into();
         o["notes"] = serde_json::json!(r.notes);
-        o["warnings"] = serde_json::json!(r.warnings);
+        let warnings: Vec<String> = r.warnings.iter().cloned().chain(n.warnings(None)).collect();
+        o["warnings"] = serde_json::json!(warnings);
     }
     if let Some(e) = &l.error {
         o["error"] = e.to_string().into();
