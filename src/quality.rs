@@ -139,6 +139,32 @@ impl CutNumbers {
     }
 }
 
+/// What `check` says of a mesh's areas: the opaque mesh against the
+/// safe-opaque area, how much of the must-cover area the meshes cover, and
+/// how much they cover beyond it (texels, whole numbers; areas are
+/// multiples of a quarter texel, so rounding hides at most half a texel).
+pub fn check_summary(r: &crate::check::ContractReport) -> String {
+    let inside = r.must_cover_area - r.uncovered;
+    let beyond = (r.covered_area - inside).max(0.0);
+    let share = |a: f64, of: f64| {
+        if of > 0.0 {
+            format!("{:.1}%", 100.0 * a / of)
+        } else {
+            "n/a".to_string()
+        }
+    };
+    format!(
+        "opaque mesh {:.0} texels, {} of the {:.0} safe-opaque texels; the meshes cover {:.0} of the {:.0} must-cover texels ({}) and {:.0} texels beyond them",
+        r.opaque_area,
+        share(r.opaque_area, r.safe_area),
+        r.safe_area,
+        inside,
+        r.must_cover_area,
+        share(inside, r.must_cover_area),
+        beyond
+    )
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

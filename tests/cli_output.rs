@@ -198,6 +198,21 @@ fn scene_json_is_the_report_file() {
         serde_json::from_str(&fs::read_to_string(out.join("scene-report.json")).unwrap()).unwrap();
     assert_eq!(printed, file);
     assert_eq!(printed["strategies"].as_array().unwrap().len(), 3);
+    // both heatmaps show one camera sample, named in the report: the one
+    // where the rect strategy peaks
+    let sample = printed["heatmap_sample"].as_u64().unwrap();
+    let rect = printed["strategies"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|s| s["strategy"] == "rect")
+        .unwrap();
+    assert_eq!(rect["peak_sample"].as_u64(), Some(sample));
+    let maps = printed["heatmaps"].as_array().unwrap();
+    assert_eq!(maps.len(), 2);
+    for m in maps {
+        assert_eq!(m["sample"].as_u64(), Some(sample), "{m}");
+    }
     fs::remove_dir_all(&dir).unwrap();
 }
 
