@@ -127,7 +127,7 @@ def scenes():
            "layers": [{"name": "b", "image": "demo-layers/ui-button.png",
                        "cut": {"budget": 12, "filter": "nearest", "mip_levels": 2, "wrap": "xy",
                                "opaque_min": 200, "visible_min": 10},
-                       "position": [1.5, -2], "scale": 0.5, "parallax": 0.25, "repeat_x": True}]}
+                       "position": [1.5, -2], "scale": 0.5, "parallax": 0.25, "fill_width": True}]}
     put("scene_json", "one-layer-all-keys.json", json.dumps(one))
     one["layers"][0]["cut"] = {"visible_min": 250, "opaque_min": 100}
     put("scene_json", "bad-thresholds.json", json.dumps(one))

@@ -225,7 +225,7 @@ fn to_mesh(
         opaque_texels: s.opaque_texels,
         partial_texels: s.partial_texels,
         transparent_texels: s.transparent_texels,
-        interior_edge_length_earcut: t.interior_length_earcut,
+        interior_edge_length_unflipped: t.interior_length_earcut,
         interior_edge_length: t.interior_length,
     };
     LayerMesh {

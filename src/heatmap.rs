@@ -9,10 +9,11 @@
 //! it then rises strictly along the whole ramp, and more overdraw always
 //! reads brighter, in grey print too.
 //!
-//! The legend labels each colour with its count in a hand-made 3 x 5 pixel
-//! digit font, scaled up.
+//! The legend labels each colour with its count, drawn with the embedded
+//! font of [`crate::text`] at half the strip's height.
 
-use image::{DynamicImage, ImageBuffer, ImageFormat, Luma, Pixel, Rgb, RgbImage, RgbaImage};
+use crate::text::{draw_text, line_height, text_width};
+use image::{DynamicImage, ImageBuffer, ImageFormat, Luma, Rgb, RgbImage, RgbaImage};
 use std::io::Cursor;
 
 /// The ramp's anchors, evenly spaced from 0 to 1.
@@ -45,64 +46,6 @@ pub fn count_colour(count: u32, top: u32) -> [u8; 3] {
     ramp(count.min(top) as f64 / top.max(1) as f64)
 }
 
-/// 3 x 5 glyphs, a row per byte, the high of 3 bits leftmost: the digits,
-/// `+`, and the few letters and signs captions use (`B`, `V`, `C`, `E`,
-/// `%`, `.`); any other character is blank (a space).
-pub(crate) fn glyph(c: char) -> [u8; 5] {
-    match c {
-        '0' => [7, 5, 5, 5, 7],
-        '1' => [2, 6, 2, 2, 7],
-        '2' => [7, 1, 7, 4, 7],
-        '3' => [7, 1, 3, 1, 7],
-        '4' => [5, 5, 7, 1, 1],
-        '5' => [7, 4, 7, 1, 7],
-        '6' => [7, 4, 7, 5, 7],
-        '7' => [7, 1, 2, 2, 2],
-        '8' => [7, 5, 7, 5, 7],
-        '9' => [7, 5, 7, 1, 7],
-        '+' => [0, 2, 7, 2, 0],
-        'B' => [6, 5, 6, 5, 6],
-        'V' => [5, 5, 5, 5, 2],
-        'C' => [7, 4, 4, 4, 7],
-        'E' => [7, 4, 6, 4, 7],
-        '%' => [5, 1, 2, 4, 5],
-        '.' => [0, 0, 0, 0, 2],
-        _ => [0; 5],
-    }
-}
-
-/// Draws `text` with its top-left at (x, y), `px` image pixels per font
-/// pixel, each character 4 font pixels wide (3 and a gap); ink outside the
-/// image is dropped.
-pub(crate) fn draw_text<P: Pixel>(
-    img: &mut ImageBuffer<P, Vec<P::Subpixel>>,
-    text: &str,
-    x: u32,
-    y: u32,
-    px: u32,
-    colour: P,
-) {
-    for (n, c) in text.chars().enumerate() {
-        let g = glyph(c);
-        let gx = x + n as u32 * 4 * px;
-        for (row, bits) in g.iter().enumerate() {
-            for col in 0..3 {
-                if bits & (4 >> col) == 0 {
-                    continue;
-                }
-                for dy in 0..px {
-                    for dx in 0..px {
-                        let (ix, iy) = (gx + col * px + dx, y + row as u32 * px + dy);
-                        if ix < img.width() && iy < img.height() {
-                            img.put_pixel(ix, iy, colour);
-                        }
-                    }
-                }
-            }
-        }
-    }
-}
-
 /// Height of the legend strip below a heatmap of `height` pixels.
 pub fn legend_height(height: u32) -> u32 {
     (height / 14).clamp(24, 120)
@@ -121,7 +64,7 @@ pub fn heatmap(counts: &[u32], width: u32, height: u32, top: u32) -> RgbImage {
         img.put_pixel(x, y, Rgb(count_colour(c, top)));
     }
     let boxes = top + 1;
-    let px = (strip / 8).max(1);
+    let px = strip as f32 * 0.5;
     for b in 0..boxes {
         let (x0, x1) = (b * width / boxes, (b + 1) * width / boxes);
         let colour = count_colour(b, top);
@@ -135,15 +78,14 @@ pub fn heatmap(counts: &[u32], width: u32, height: u32, top: u32) -> RgbImage {
         } else {
             b.to_string()
         };
-        let text_w = label.len() as u32 * 4 * px - px;
         let ink = if luma(colour) > 110.0 {
             [0, 0, 0]
         } else {
             [255, 255, 255]
         };
-        let tx = x0 + (x1 - x0).saturating_sub(text_w) / 2;
-        let ty = height + strip.saturating_sub(5 * px) / 2;
-        draw_text(&mut img, &label, tx, ty, px, Rgb(ink));
+        let tx = x0 + (x1 - x0).saturating_sub(text_width(&label, px)) / 2;
+        let ty = height + strip.saturating_sub(line_height(px)) / 2;
+        draw_text(&mut img, &label, tx as i32, ty as i32, px, Rgb(ink));
     }
     img
 }
@@ -191,18 +133,6 @@ mod tests {
         }
         assert_eq!(count_colour(0, 8), [0, 0, 0]);
         assert_eq!(count_colour(99, 8), [255, 255, 255]);
-    }
-
-    /// Every glyph used in labels is distinct and inked.
-    #[test]
-    fn digits_are_distinct() {
-        let gs: Vec<[u8; 5]> = "0123456789+BVCE%.".chars().map(glyph).collect();
-        for (i, a) in gs.iter().enumerate() {
-            assert!(a.iter().any(|&r| r != 0));
-            for b in &gs[i + 1..] {
-                assert_ne!(a, b);
-            }
-        }
     }
 
     #[test]

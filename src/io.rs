@@ -157,7 +157,7 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         } else {
             (
                 format!("over the limit of {} texels in all", limits.max_pixels),
-                "split the layer into smaller tiles, or raise the limit with --max-pixels".into(),
+                "split the layer into smaller tiles, or raise the limit with --max-texels".into(),
             )
         };
         return Err(FileError::new(
@@ -179,7 +179,7 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         image::ImageError::Limits(_) => FileError::new(
             path,
             format!("is {w} x {h} texels, too large to decode within the limits"),
-            "split the layer into smaller tiles, or raise the limit with --max-pixels",
+            "split the layer into smaller tiles, or raise the limit with --max-texels",
         ),
         other => match chunks::diagnose(bytes) {
             Some(why) => FileError::new(
@@ -236,13 +236,35 @@ pub fn load_mesh(path: &Path) -> Result<LayerMesh, FileError> {
             "give a .mesh.json file written by `underdraw cut` (a few tens of kilobytes at most)",
         ));
     }
-    serde_json::from_slice::<LayerMesh>(&bytes).map_err(|e| {
+    let mesh = serde_json::from_slice::<LayerMesh>(&bytes).map_err(|e| {
         FileError::new(
             path,
             format!("is not a valid underdraw mesh file: {e}"),
             "give a .mesh.json file written by `underdraw cut`",
         )
-    })
+    })?;
+    // a key renamed since version 1 would otherwise be skipped in silence
+    // (`stats` takes unknown keys, so older readers can read newer files)
+    #[derive(serde::Deserialize)]
+    struct Probe {
+        #[serde(default)]
+        stats: std::collections::BTreeMap<String, serde::de::IgnoredAny>,
+    }
+    if let Ok(probe) = serde_json::from_slice::<Probe>(&bytes) {
+        for (old, new) in crate::mesh::RENAMED_STATS_KEYS {
+            if probe.stats.contains_key(old) {
+                return Err(FileError::new(
+                    path,
+                    format!(
+                        "has the key stats.{old}, which mesh file version {} renamed stats.{new}",
+                        crate::mesh::VERSION
+                    ),
+                    "cut the layer again with this underdraw (or rename the key and set \"version\" to 2)",
+                ));
+            }
+        }
+    }
+    Ok(mesh)
 }
 
 /// Writes `bytes` to `dest` atomically: a temporary file in the same folder,

@@ -55,10 +55,13 @@ pub mod mesh;
 pub mod outline;
 pub mod plot;
 pub mod preview;
+pub mod quality;
 pub mod raster;
 pub mod scene;
 pub mod settings;
 pub mod sweep;
+pub mod table;
+pub mod text;
 pub mod triangulate;
 
 #[cfg(test)]

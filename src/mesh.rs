@@ -11,7 +11,17 @@ use serde::{Deserialize, Serialize};
 /// The file format's name, the value of the `format` key.
 pub const FORMAT: &str = "underdraw.layer";
 /// The file format's version.
-pub const VERSION: u32 = 1;
+/// Version 2 renamed `stats.interior_edge_length_earcut` to
+/// `stats.interior_edge_length_unflipped` ([`RENAMED_STATS_KEYS`]).
+pub const VERSION: u32 = 2;
+
+/// Keys of `stats` renamed since version 1: (old name, new name). A mesh
+/// file with an old name is refused by [`crate::io::load_mesh`] with a
+/// message naming the new one.
+pub const RENAMED_STATS_KEYS: [(&str, &str); 1] = [(
+    "interior_edge_length_earcut",
+    "interior_edge_length_unflipped",
+)];
 
 /// A triangle list into the shared vertex array.
 #[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
@@ -63,9 +73,10 @@ pub struct MeshStats {
     #[serde(default)]
     pub transparent_texels: u64,
     /// Total length, in texels, of the edges shared by two triangles of one
-    /// mesh (opaque and blended summed), after plain ear clipping.
+    /// mesh (opaque and blended summed), as the ear clipping left them,
+    /// before any edge is flipped.
     #[serde(default)]
-    pub interior_edge_length_earcut: f64,
+    pub interior_edge_length_unflipped: f64,
     /// Total length, in texels, of the edges shared by two triangles of one
     /// mesh (opaque and blended summed), after flipping edges to shorter
     /// diagonals.

@@ -1,8 +1,12 @@
 //! The artist's preview of a cut: the layer over a checkerboard, the opaque
-//! and the blended mesh tinted over it, their triangle edges, the outlines
-//! of the safe-opaque and must-cover regions, and a caption strip below.
+//! and the blended mesh tinted lightly over it so the art stays readable,
+//! their triangle edges on top, the outlines of the safe-opaque and
+//! must-cover regions, and a caption in words below. A layer wider than
+//! tall is shown twice, the plain layer above its cut at the same scale,
+//! so a feature of the art and the mesh around it line up vertically
+//! (side by side, each would get half the width).
 //!
-//! How a pixel of the image part is made (preview pixel (px, py), scale
+//! How a pixel of a panel is made (panel pixel (px, py), scale
 //! `f` = min(1, `max_width` / layer width) preview pixels per texel):
 //!
 //! 1. the checkerboard: [`CHECKER_LIGHT`] where `(px / CHECKER_PX + py /
@@ -11,18 +15,27 @@
 //!    `floor((px + 0.5) / f)`, clamped to the layer) composited over it with
 //!    straight alpha `a` (the "over" operator of Porter and Duff,
 //!    "Compositing Digital Images", 1984), per channel
-//!    `base = round((a * layer + (255 - a) * checker) / 255)`;
-//! 3. where the pixel centre, in texels, lies in an opaque triangle (edges
-//!    included): `round(((255 - TINT_ALPHA) * base + TINT_ALPHA *
-//!    OPAQUE_TINT) / 255)`; in a blended triangle the same with
-//!    [`BLENDED_TINT`]; elsewhere `base`. Rounding is half up.
+//!    `base = round((a * layer + (255 - a) * checker) / 255)`; the plain
+//!    panel stops here;
+//! 3. in the cut panel, where the pixel centre, in texels, lies in an
+//!    opaque triangle (edges included): `round(((255 - TINT_ALPHA) * base +
+//!    TINT_ALPHA * OPAQUE_TINT) / 255)`, so the art keeps
+//!    (255 - [`TINT_ALPHA`]) / 255 of its weight (three quarters); in a
+//!    blended triangle the same with [`BLENDED_TINT`]; elsewhere `base`.
+//!    Rounding is half up.
 //!
-//! On top: every triangle edge as a 1-pixel line ([`OPAQUE_EDGE`],
-//! [`BLENDED_EDGE`]), then the region outlines as dotted 1-pixel lines: a
-//! half-texel cell of [`crate::alpha::Regions`] is on a region's outline
-//! when it is inside and a 4-neighbour (or the image edge) is not; it is
-//! drawn at its centre's preview pixel when that pixel's `px + py` is even
-//! ([`SAFE_OUTLINE`], [`COVER_OUTLINE`]). The image is fully opaque.
+//! On top of the cut panel: every triangle edge as a 1-pixel line
+//! ([`OPAQUE_EDGE`], [`BLENDED_EDGE`]), then the region outlines as dotted
+//! 1-pixel lines: a half-texel cell of [`crate::alpha::Regions`] is on a
+//! region's outline when it is inside and a 4-neighbour (or the image edge)
+//! is not; it is drawn at its centre's preview pixel when that pixel's
+//! `px + py` is even ([`SAFE_OUTLINE`], [`COVER_OUTLINE`]). Panels are
+//! [`PANEL_GAP`] pixels apart on [`CAPTION_BACK`]. The image is fully
+//! opaque.
+//!
+//! The caption ([`caption_items`]) is drawn with the embedded font of
+//! [`crate::text`] at [`caption_px`], so it stays legible when the report
+//! shows the preview at half its width.
 //!
 //! The colours are our own. The two tints are a blue and an orange: they
 //! differ mostly along the blue-yellow axis, which red-green colour
@@ -30,10 +43,11 @@
 //! keeps (common practice, no source).
 
 use crate::alpha::{AlphaMap, Regions};
-use crate::heatmap::draw_text;
 use crate::mask::Mask;
 use crate::mesh::{LayerMesh, TriangleList};
+use crate::quality::CutNumbers;
 use crate::settings::CutSettings;
+use crate::text::{draw_text, line_height, text_width};
 use image::{Rgba, RgbaImage};
 use imageproc::drawing::draw_line_segment_mut;
 
@@ -41,8 +55,9 @@ use imageproc::drawing::draw_line_segment_mut;
 pub const OPAQUE_TINT: [u8; 3] = [20, 100, 210];
 /// Tint of the blended mesh (an orange).
 pub const BLENDED_TINT: [u8; 3] = [245, 160, 20];
-/// Weight of a tint over the layer, out of 255.
-pub const TINT_ALPHA: u8 = 110;
+/// Weight of a tint over the layer, out of 255 (a quarter: the art keeps
+/// three quarters of its weight).
+pub const TINT_ALPHA: u8 = 64;
 /// Edges of the opaque triangles.
 pub const OPAQUE_EDGE: [u8; 3] = [10, 50, 120];
 /// Edges of the blended triangles.
@@ -61,6 +76,8 @@ pub const CHECKER_DARK: [u8; 3] = [180, 180, 180];
 pub const CAPTION_BACK: [u8; 3] = [30, 30, 30];
 /// Ink of the caption's text.
 pub const CAPTION_INK: [u8; 3] = [240, 240, 240];
+/// Pixels between the plain panel and the cut panel.
+pub const PANEL_GAP: u32 = 6;
 
 /// Width of a preview of a `width`-texel layer, at most `max_width`
 /// (at least 1): layers are scaled down, never up.
@@ -88,23 +105,37 @@ pub fn mix(a: [u8; 3], b: [u8; 3], w: u8) -> [u8; 3] {
     std::array::from_fn(|k| ((w * a[k] as u32 + (255 - w) * b[k] as u32 + 127) / 255) as u8)
 }
 
-/// The caption's items: budget, vertices, opaque capture and excess (share
-/// of the must-cover area), in the caption font's glyphs.
+/// The caption's items, in words: `budget 64`, `64 vertices`, `opaque
+/// capture 97.9%` (or `n/a (no opaque texels)`), `excess 11578 texels
+/// (1.1%)` (the share of the must-cover area); the budget only when
+/// recorded.
 pub fn caption_items(mesh: &LayerMesh) -> Vec<String> {
-    let s = &mesh.stats;
-    let excess = if s.must_cover_area > 0.0 {
-        100.0 * s.excess() / s.must_cover_area
-    } else {
-        0.0
-    };
+    let n = CutNumbers::of_mesh(&mesh.stats, mesh.budget, mesh.vertex_count());
     let mut items = Vec::new();
     if let Some(b) = mesh.budget {
-        items.push(format!("B {b}"));
+        items.push(format!("budget {b}"));
     }
-    items.push(format!("V {}", mesh.vertex_count()));
-    items.push(format!("C {:.1}%", 100.0 * s.opaque_capture()));
-    items.push(format!("E {:.1}%", excess));
+    items.push(format!("{} vertices", mesh.vertex_count()));
+    items.push(format!("opaque capture {}", n.capture_text()));
+    items.push(format!(
+        "excess {:.0} texels ({:.1}%)",
+        n.excess,
+        100.0 * n.excess_share()
+    ));
     items
+}
+
+/// The caption's text size for a preview `width` pixels wide: a 42nd of
+/// the width, at least 13 and at most 26 pixels (about 12 pixels when the
+/// report shows a 1024-pixel preview at half size).
+pub fn caption_px(width: u32) -> f32 {
+    (width as f32 / 42.0).clamp(13.0, 26.0)
+}
+
+/// Whether the preview shows the plain layer above its cut: the layer is
+/// wider than tall.
+pub fn shows_plain_panel(size: [u32; 2]) -> bool {
+    size[0] > size[1]
 }
 
 /// The preview of `mesh` over the layer it was cut from (`map_rgba`, the
@@ -120,31 +151,47 @@ pub fn render_preview(map_rgba: &RgbaImage, mesh: &LayerMesh, max_width: u32) ->
     let ph = ((h as f64 * f).round() as u32).max(1);
     let texel = |p: u32, n: u32| (((p as f64 + 0.5) / f).floor() as u32).min(n - 1);
 
-    // 1-3: checkerboard, layer, tints
-    let mut rgb: Vec<[u8; 3]> = Vec::with_capacity(pw as usize * ph as usize);
+    // 1-2: checkerboard and layer
+    let mut plain: Vec<[u8; 3]> = Vec::with_capacity(pw as usize * ph as usize);
     for py in 0..ph {
         for px in 0..pw {
             let t = map_rgba.get_pixel(texel(px, w), texel(py, h)).0;
-            rgb.push(mix([t[0], t[1], t[2]], checker(px, py), t[3]));
+            plain.push(mix([t[0], t[1], t[2]], checker(px, py), t[3]));
         }
     }
+    // 3: tints
+    let mut rgb = plain.clone();
     for (list, tint) in [(&mesh.opaque, OPAQUE_TINT), (&mesh.blended, BLENDED_TINT)] {
         fill_triangles(&mut rgb, pw, ph, f, mesh, list, tint);
     }
 
-    let caption = caption_lines(&caption_items(mesh), pw);
-    let cap_h = caption_height(caption.len());
-    let mut img = RgbaImage::new(pw, ph + cap_h);
+    let px_size = caption_px(pw);
+    let pair = shows_plain_panel(mesh.size);
+    let mut items = Vec::new();
+    if pair {
+        items.push("above: the layer; below: its cut".to_string());
+    }
+    let caption = caption_lines(&items, &caption_items(mesh), pw, px_size);
+    let cut_top = if pair { ph + PANEL_GAP } else { 0 };
+    let cap_top = cut_top + ph;
+    let cap_h = caption_height(caption.len(), px_size);
+    let mut img = RgbaImage::from_pixel(pw, cap_top + cap_h, rgba(CAPTION_BACK));
     for (i, c) in rgb.iter().enumerate() {
-        img.put_pixel(i as u32 % pw, i as u32 / pw, rgba(*c));
+        img.put_pixel(i as u32 % pw, cut_top + i as u32 / pw, rgba(*c));
+    }
+    if pair {
+        for (i, c) in plain.iter().enumerate() {
+            img.put_pixel(i as u32 % pw, i as u32 / pw, rgba(*c));
+        }
     }
 
-    // edges
+    // edges, on top of the tints
+    let dy = cut_top as f32;
     for (list, colour) in [(&mesh.opaque, OPAQUE_EDGE), (&mesh.blended, BLENDED_EDGE)] {
         for t in list.indices.chunks_exact(3) {
             for k in 0..3 {
                 let (a, b) = (mesh.position(t[k]), mesh.position(t[(k + 1) % 3]));
-                let s = |p: [f32; 2]| ((p[0] as f64 * f) as f32, (p[1] as f64 * f) as f32);
+                let s = |p: [f32; 2]| ((p[0] as f64 * f) as f32, (p[1] as f64 * f) as f32 + dy);
                 draw_line_segment_mut(&mut img, s(a), s(b), rgba(colour));
             }
         }
@@ -163,50 +210,53 @@ pub fn render_preview(map_rgba: &RgbaImage, mesh: &LayerMesh, max_width: u32) ->
         (&regions.cover, COVER_OUTLINE),
         (&regions.safe, SAFE_OUTLINE),
     ] {
-        draw_outline(&mut img, mask, f, pw, ph, colour);
+        draw_outline(&mut img, mask, f, pw, ph, cut_top, colour);
     }
 
     // caption
-    for y in ph..ph + cap_h {
-        for x in 0..pw {
-            img.put_pixel(x, y, rgba(CAPTION_BACK));
-        }
-    }
-    for (n, line) in caption.iter().enumerate() {
-        let y = ph + CAPTION_PAD + n as u32 * (5 * CAPTION_PX + CAPTION_PAD);
+    let line = line_height(px_size);
+    for (n, text) in caption.iter().enumerate() {
+        let y = cap_top + CAPTION_PAD + n as u32 * (line + CAPTION_LEADING);
         draw_text(
             &mut img,
-            line,
-            CAPTION_PAD,
-            y,
-            CAPTION_PX,
+            text,
+            CAPTION_PAD as i32,
+            y as i32,
+            px_size,
             rgba(CAPTION_INK),
         );
     }
     img
 }
 
-/// Font pixels of the caption, in image pixels, and the padding around lines.
-const CAPTION_PX: u32 = 2;
-const CAPTION_PAD: u32 = 4;
+/// Padding around the caption's lines, pixels.
+const CAPTION_PAD: u32 = 6;
+/// Pixels between two caption lines.
+const CAPTION_LEADING: u32 = 2;
+/// Between two caption items on one line.
+const SEPARATOR: &str = " · ";
 
-/// Height of a caption strip of `lines` lines.
-pub fn caption_height(lines: usize) -> u32 {
-    CAPTION_PAD + lines.max(1) as u32 * (5 * CAPTION_PX + CAPTION_PAD)
+/// Height of a caption strip of `lines` lines of text size `px`.
+pub fn caption_height(lines: usize, px: f32) -> u32 {
+    let n = lines.max(1) as u32;
+    2 * CAPTION_PAD + n * line_height(px) + (n - 1) * CAPTION_LEADING
 }
 
-/// The caption's items laid out in lines that fit `width` pixels (an item
-/// too wide alone gets a line of its own), two spaces between items.
-fn caption_lines(items: &[String], width: u32) -> Vec<String> {
-    let fits = |s: &str| 2 * CAPTION_PAD + s.chars().count() as u32 * 4 * CAPTION_PX <= width;
-    let mut lines: Vec<String> = Vec::new();
+/// The caption laid out in lines that fit `width` pixels at text size
+/// `px`: each of `first` on a line of its own, then `items` joined by
+/// " · " (an item too wide alone gets a line of its own).
+fn caption_lines(first: &[String], items: &[String], width: u32, px: f32) -> Vec<String> {
+    let fits = |s: &str| 2 * CAPTION_PAD + text_width(s, px) <= width;
+    let mut lines: Vec<String> = first.to_vec();
+    let mut open = false;
     for item in items {
         match lines.last_mut() {
-            Some(last) if fits(&format!("{last}  {item}")) => {
-                *last = format!("{last}  {item}");
+            Some(last) if open && fits(&format!("{last}{SEPARATOR}{item}")) => {
+                *last = format!("{last}{SEPARATOR}{item}");
             }
             _ => lines.push(item.clone()),
         }
+        open = true;
     }
     lines
 }
@@ -257,8 +307,17 @@ fn inside(v: &[[f64; 2]; 3], q: [f64; 2]) -> bool {
     s.iter().all(|&x| x >= 0.0) || s.iter().all(|&x| x <= 0.0)
 }
 
-/// Dots the outline cells of a half-texel `mask` (see the module documentation).
-fn draw_outline(img: &mut RgbaImage, mask: &Mask, f: f64, pw: u32, ph: u32, colour: [u8; 3]) {
+/// Dots the outline cells of a half-texel `mask` on the panel starting at
+/// row `top` (see the module documentation).
+fn draw_outline(
+    img: &mut RgbaImage,
+    mask: &Mask,
+    f: f64,
+    pw: u32,
+    ph: u32,
+    top: u32,
+    colour: [u8; 3],
+) {
     for y in 0..mask.height {
         for x in 0..mask.width {
             if !mask.get(x, y) {
@@ -279,7 +338,7 @@ fn draw_outline(img: &mut RgbaImage, mask: &Mask, f: f64, pw: u32, ph: u32, colo
             let px = ((x as f64 + 0.5) * 0.5 * f) as u32;
             let py = ((y as f64 + 0.5) * 0.5 * f) as u32;
             if px < pw && py < ph && (px + py) % 2 == 0 {
-                img.put_pixel(px, py, rgba(colour));
+                img.put_pixel(px, top + py, rgba(colour));
             }
         }
     }

@@ -111,6 +111,13 @@ const CASES: &[(&str, Via, i32, &str)] = &[
         2,
         "is not a positive number",
     ),
+    // the key renamed in issue 23: the message names the new key
+    (
+        "old-fill-key.scene.json",
+        Via::Scene,
+        2,
+        "the key \"repeat_x\" is now called \"fill_width\"",
+    ),
     (
         "zero-samples.scene.json",
         Via::Scene,
@@ -171,6 +178,12 @@ const CASES: &[(&str, Via, i32, &str)] = &[
     ),
     ("block-7x7.astc", Via::Cut, 2, "its ASTC block size is 7x7"),
     ("astc-4x4.ktx2", Via::Cut, 0, ""),
+    (
+        "old-stats-key.mesh.json",
+        Via::Check("rgb.png"),
+        2,
+        "renamed stats.interior_edge_length_unflipped",
+    ),
 ];
 
 #[test]
@@ -376,7 +389,7 @@ fn the_pixel_limit_is_checked_from_the_header() {
         e.problem.contains("over the limit of 119 texels in all"),
         "{e}"
     );
-    assert!(e.hint.contains("--max-pixels"), "{e}");
+    assert!(e.hint.contains("--max-texels"), "{e}");
     // 100000 x 100000 RGBA8 would take 40 GB decoded; it is refused from
     // the header (this process would otherwise fail to allocate it)
     let huge = corpus_dir().join("huge-header.png");

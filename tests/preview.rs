@@ -1,14 +1,17 @@
 //! The preview's pixels inside the meshes, against the formula in
 //! `underdraw::preview`'s documentation: the layer composited over the
 //! checkerboard with straight alpha ("over", Porter and Duff, "Compositing
-//! Digital Images", 1984), then the mesh's tint mixed in at TINT_ALPHA/255.
+//! Digital Images", 1984), then the mesh's tint mixed in at TINT_ALPHA/255,
+//! so a pixel inside the opaque mesh is closer to the art's colour than to
+//! the tint; a layer wider than tall also shows the plain layer above.
 
 use image::{Rgba, RgbaImage};
 use underdraw::alpha::AlphaMap;
 use underdraw::cut::cut_layer;
 use underdraw::mesh::LayerMesh;
 use underdraw::preview::{
-    render_preview, BLENDED_TINT, CHECKER_DARK, CHECKER_LIGHT, CHECKER_PX, OPAQUE_TINT, TINT_ALPHA,
+    render_preview, BLENDED_TINT, CHECKER_DARK, CHECKER_LIGHT, CHECKER_PX, OPAQUE_TINT, PANEL_GAP,
+    TINT_ALPHA,
 };
 use underdraw::settings::CutSettings;
 
@@ -16,10 +19,17 @@ use underdraw::settings::CutSettings;
 /// (n/16 * 5 .. n/16 * 11), a soft rim of alpha 128 around it out to n/8
 /// from the edges, transparent beyond; colour varies over the layer.
 fn layer(n: u32) -> RgbaImage {
+    layer_wide(n, n)
+}
+
+/// `layer(n)` in the left of a `w` x n image, transparent to its right.
+fn layer_wide(n: u32, w: u32) -> RgbaImage {
     let (o0, o1) = (n / 16 * 5, n / 16 * 11);
     let (r0, r1) = (n / 8, n - n / 8);
-    RgbaImage::from_fn(n, n, |x, y| {
-        let a = if (o0..o1).contains(&x) && (o0..o1).contains(&y) {
+    RgbaImage::from_fn(w, n, |x, y| {
+        let a = if x >= n {
+            0
+        } else if (o0..o1).contains(&x) && (o0..o1).contains(&y) {
             255
         } else if (r0..r1).contains(&x) && (r0..r1).contains(&y) {
             128
@@ -107,7 +117,8 @@ fn over(a: u8, b: u8, w: u8) -> u8 {
     ((w as f64 * a as f64 + (255.0 - w as f64) * b as f64) / 255.0 + 0.5).floor() as u8
 }
 
-fn expected(img: &RgbaImage, px: u32, py: u32, f: f64, tint: [u8; 3]) -> [u8; 4] {
+/// The layer over the checkerboard at preview pixel (px, py).
+fn base(img: &RgbaImage, px: u32, py: u32, f: f64) -> [u8; 3] {
     let t = img
         .get_pixel(
             ((px as f64 + 0.5) / f) as u32,
@@ -119,14 +130,25 @@ fn expected(img: &RgbaImage, px: u32, py: u32, f: f64, tint: [u8; 3]) -> [u8; 4]
     } else {
         CHECKER_DARK
     };
-    let c: [u8; 3] = std::array::from_fn(|i| over(t[i], k[i], t[3]));
+    std::array::from_fn(|i| over(t[i], k[i], t[3]))
+}
+
+fn expected(img: &RgbaImage, px: u32, py: u32, f: f64, tint: [u8; 3]) -> [u8; 4] {
+    let c = base(img, px, py, f);
     let c: [u8; 3] = std::array::from_fn(|i| over(tint[i], c[i], TINT_ALPHA));
     [c[0], c[1], c[2], 255]
 }
 
-fn check_preview(n: u32, max_width: u32, budget: usize) {
-    let img = layer(n);
-    let map = AlphaMap::from_raw(n, n, img.pixels().map(|p| p.0[3]).collect());
+fn distance(a: [u8; 3], b: [u8; 3]) -> f64 {
+    (0..3)
+        .map(|k| (a[k] as f64 - b[k] as f64).powi(2))
+        .sum::<f64>()
+        .sqrt()
+}
+
+fn check_preview(img: RgbaImage, max_width: u32, budget: usize) {
+    let (n, hgt) = img.dimensions();
+    let map = AlphaMap::from_raw(n, hgt, img.pixels().map(|p| p.0[3]).collect());
     let out = cut_layer(
         &map,
         "test.png",
@@ -139,9 +161,27 @@ fn check_preview(n: u32, max_width: u32, budget: usize) {
     let mesh = &out.mesh;
     let preview = render_preview(&img, mesh, max_width);
     let f = max_width.min(n) as f64 / n as f64;
-    let ph = (n as f64 * f) as u32;
+    let (pw, ph) = ((n as f64 * f) as u32, (hgt as f64 * f) as u32);
+    let wide = n > hgt;
+    // a layer wider than tall: the plain layer above, its cut below
+    let top = if wide { ph + PANEL_GAP } else { 0 };
     assert_eq!(preview.width(), max_width.min(n));
-    assert!(preview.height() > ph, "a caption strip below the layer");
+    assert!(
+        preview.height() > top + ph,
+        "a caption strip below the layer"
+    );
+    if wide {
+        for py in (0..ph).step_by(3) {
+            for px in (0..pw).step_by(3) {
+                let c = base(&img, px, py, f);
+                assert_eq!(
+                    preview.get_pixel(px, py).0,
+                    [c[0], c[1], c[2], 255],
+                    "plain panel at ({px}, {py})"
+                );
+            }
+        }
+    }
     for (indices, tint, what) in [
         (&mesh.opaque.indices, OPAQUE_TINT, "opaque"),
         (&mesh.blended.indices, BLENDED_TINT, "blended"),
@@ -149,15 +189,22 @@ fn check_preview(n: u32, max_width: u32, budget: usize) {
         let pixels = deep_pixels(&img, mesh, indices, f);
         assert!(!pixels.is_empty(), "{n}: no deep {what} pixel to test");
         for (px, py) in pixels {
+            let got = preview.get_pixel(px, top + py).0;
             assert_eq!(
-                preview.get_pixel(px, py).0,
+                got,
                 expected(&img, px, py, f, tint),
                 "{n}px layer, {what} pixel ({px}, {py})"
+            );
+            // the art shows through: nearer the layer's colour than the tint's
+            let (art, rgb) = (base(&img, px, py, f), [got[0], got[1], got[2]]);
+            assert!(
+                distance(rgb, art) < distance(rgb, tint),
+                "{what} pixel ({px}, {py}): {rgb:?} hides the art {art:?} under {tint:?}"
             );
         }
     }
     // the caption has ink of its own colour on its background
-    let strip: Vec<[u8; 4]> = (ph..preview.height())
+    let strip: Vec<[u8; 4]> = (top + ph..preview.height())
         .flat_map(|y| (0..preview.width()).map(move |x| (x, y)))
         .map(|(x, y)| preview.get_pixel(x, y).0)
         .collect();
@@ -166,12 +213,18 @@ fn check_preview(n: u32, max_width: u32, budget: usize) {
 
 #[test]
 fn mesh_pixels_are_the_tints_over_the_layer_at_full_size() {
-    check_preview(64, 1024, 16);
+    check_preview(layer(64), 1024, 16);
 }
 
 #[test]
 fn mesh_pixels_are_the_tints_over_the_layer_scaled_down() {
-    check_preview(128, 64, 16);
+    check_preview(layer(128), 64, 16);
+}
+
+#[test]
+fn a_wide_layer_shows_the_plain_layer_above_its_cut() {
+    check_preview(layer_wide(64, 160), 1024, 16);
+    check_preview(layer_wide(128, 320), 200, 16);
 }
 
 /// `cut --preview` writes the preview beside the mesh file.

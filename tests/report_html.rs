@@ -45,7 +45,7 @@ fn the_report_page_is_self_contained_and_shows_the_scene() {
         &scene,
         r#"{"viewport": [160, 90], "camera": {"travel": 40, "samples": 3},
             "layers": [
-              {"name": "back", "image": "a.png", "cut": {"budget": 12}, "scale": 1.5, "repeat_x": true, "parallax": 0.5},
+              {"name": "back", "image": "a.png", "cut": {"budget": 12}, "scale": 1.5, "fill_width": true, "parallax": 0.5},
               {"name": "front", "image": "b.png", "cut": {"budget": 4}, "position": [20, 20]}]}"#,
     )
     .unwrap();

@@ -118,7 +118,7 @@ fn rect_fragments_are_the_clipped_rectangle_areas() {
                 l["position"][0].as_f64().unwrap() - cam * l["parallax"].as_f64().unwrap_or(1.0);
             let y = l["position"][1].as_f64().unwrap();
             let rows = (y + h).min(vh) - y.max(0.0);
-            let cols = if l["repeat_x"].as_bool().unwrap_or(false) {
+            let cols = if l["fill_width"].as_bool().unwrap_or(false) {
                 vw
             } else {
                 (x + w).min(vw) - x.max(0.0)
@@ -356,7 +356,7 @@ fn a_small_scene_runs_and_protects_its_inputs() {
         .output()
         .unwrap();
     assert!(cut.status.success());
-    let layers = r#"    {"name": "a", "image": "a.png", "scale": 4, "repeat_x": true},
+    let layers = r#"    {"name": "a", "image": "a.png", "scale": 4, "fill_width": true},
     {"name": "b", "image": "a.png", "mesh": "a.mesh.json", "position": [10, 10], "parallax": 0}"#;
     let scene = dir.0.join("small.scene.json");
     fs::write(&scene, scene_text(CAMERA, layers)).unwrap();

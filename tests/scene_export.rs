@@ -44,8 +44,8 @@ fn write_scene(dir: &Path) -> PathBuf {
     let text = format!(
         r#"{{"viewport": [960, 540], "camera": {{"travel": 600, "samples": 4}},
   "layers": [
-    {{"name": "pier", "image": "{}", "cut": {{"budget": 24}}, "position": [0, 300], "scale": 0.5, "parallax": 1.0, "repeat_x": true}},
-    {{"name": "fog", "image": "{}", "cut": {{"budget": 12}}, "position": [0, 200], "scale": 0.5, "parallax": 0.8, "repeat_x": true}},
+    {{"name": "pier", "image": "{}", "cut": {{"budget": 24}}, "position": [0, 300], "scale": 0.5, "parallax": 1.0, "fill_width": true}},
+    {{"name": "fog", "image": "{}", "cut": {{"budget": 12}}, "position": [0, 200], "scale": 0.5, "parallax": 0.8, "fill_width": true}},
     {{"name": "panel", "image": "{}", "cut": {{"budget": 16}}, "position": [20, 20], "parallax": 0.0}},
     {{"name": "button-a", "image": "{}", "cut": {{"budget": 12}}, "position": [700, 400], "parallax": 0.0}},
     {{"name": "button-b", "image": "{}", "cut": {{"budget": 12}}, "position": [820, 400], "parallax": 0.0}}

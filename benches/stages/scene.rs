@@ -42,7 +42,7 @@ pub struct SceneTimes {
 
 /// Writes the scene into `dir` and times it.
 pub fn run(dir: &Path, runs: usize, one: &ThreadPool, many: &ThreadPool) -> SceneTimes {
-    // (name, image, position, scale, parallax, repeat_x), back to front
+    // (name, image, position, scale, parallax, fill_width), back to front
     let images: Vec<(&str, super::layers::Rgba)> = vec![
         ("sky", backdrop(1024, 540)),
         ("clouds", generate(Kind::Clouds, 2048, 512, 11)),
@@ -74,7 +74,7 @@ pub fn run(dir: &Path, runs: usize, one: &ThreadPool, many: &ThreadPool) -> Scen
         pngs.push(png);
         entries.push(serde_json::json!({
             "name": name, "image": file, "cut": {"budget": 64},
-            "position": pos, "scale": scale, "parallax": parallax, "repeat_x": repeat,
+            "position": pos, "scale": scale, "parallax": parallax, "fill_width": repeat,
         }));
     }
     let scene_json = serde_json::json!({

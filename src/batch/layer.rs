@@ -308,6 +308,8 @@ pub(crate) fn run_layer(
             opaque_capture: s.opaque_capture(),
             excess: s.excess(),
             must_cover_area: s.must_cover_area,
+            safe_opaque_area: Some(s.safe_opaque_area),
+            opaque_texels: Some(s.opaque_texels),
             notes: notes.into_iter().chain(outcome.notes).collect(),
             warnings,
         },

@@ -63,6 +63,12 @@ pub struct LayerResult {
     pub excess: f64,
     /// The must-cover area, texels.
     pub must_cover_area: f64,
+    /// The safe-opaque area, texels (absent from older manifests).
+    #[serde(default)]
+    pub safe_opaque_area: Option<f64>,
+    /// Texels with alpha at least `opaque_min` (absent from older manifests).
+    #[serde(default)]
+    pub opaque_texels: Option<u64>,
     /// The cutter's notes.
     pub notes: Vec<String>,
     /// Warnings about the input file.

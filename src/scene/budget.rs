@@ -431,7 +431,13 @@ mod tests {
         AlphaMap::from_raw(w, h, a)
     }
 
-    fn layer(name: &str, m: AlphaMap, position: [f64; 2], parallax: f64, repeat_x: bool) -> Layer {
+    fn layer(
+        name: &str,
+        m: AlphaMap,
+        position: [f64; 2],
+        parallax: f64,
+        fill_width: bool,
+    ) -> Layer {
         let settings = CutSettings {
             budget: 8,
             ..Default::default()
@@ -445,7 +451,7 @@ mod tests {
                 position,
                 scale: 1.0,
                 parallax,
-                repeat_x,
+                fill_width,
             },
             mesh,
             alpha: Some(Arc::new(m)),

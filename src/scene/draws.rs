@@ -9,7 +9,7 @@
 //!   write, then the blended meshes back to front with depth test, no write.
 //!
 //! Each layer has its own depth, the front layer nearest ([`layer_depth`]).
-//! A layer with `repeat_x` is drawn as copies side by side, one period
+//! A layer with `fill_width` is drawn as copies side by side, one period
 //! (`scale * width`) apart, as many as reach into the viewport; its copies
 //! go in one draw (the layer's vertices repeated per copy). A draw with no
 //! triangle is left out, and so is a layer with no copy on screen.
@@ -69,7 +69,7 @@ pub fn copy_origins(
     if y0 + h <= 0.0 || y0 >= vh || w <= 0.0 {
         return Vec::new();
     }
-    if !spec.repeat_x {
+    if !spec.fill_width {
         return if x0 + w > 0.0 && x0 < vw {
             vec![[x0, y0]]
         } else {
@@ -228,7 +228,7 @@ mod tests {
     use crate::scene::file::MeshSource;
     use crate::settings::CutSettings;
 
-    fn spec(x: f64, scale: f64, parallax: f64, repeat_x: bool) -> LayerSpec {
+    fn spec(x: f64, scale: f64, parallax: f64, fill_width: bool) -> LayerSpec {
         LayerSpec {
             name: "l".into(),
             image: "l.png".into(),
@@ -236,7 +236,7 @@ mod tests {
             position: [x, 10.0],
             scale,
             parallax,
-            repeat_x,
+            fill_width,
         }
     }
 

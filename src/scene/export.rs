@@ -33,8 +33,9 @@ use std::path::Path;
 
 /// The draw list's `format` value.
 pub const DRAW_LIST_FORMAT: &str = "underdraw.draw-list";
-/// The draw list's `version` value.
-pub const DRAW_LIST_VERSION: u32 = 1;
+/// The draw list's `version` value. Version 2 renamed the layers'
+/// `repeat_x` to `fill_width`.
+pub const DRAW_LIST_VERSION: u32 = 2;
 
 /// The draw list file: the scene's layers and the two passes.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -90,7 +91,7 @@ pub struct ExportedLayer {
     /// Screen pixels the layer moves left per pixel of camera travel.
     pub parallax: f64,
     /// Tiled horizontally to fill the screen's width.
-    pub repeat_x: bool,
+    pub fill_width: bool,
     /// Its depth, 0 nearest ([`layer_depth`]).
     pub depth: f32,
 }
@@ -261,7 +262,7 @@ pub fn export_scene(
             position: s.position,
             scale: s.scale,
             parallax: s.parallax,
-            repeat_x: s.repeat_x,
+            fill_width: s.fill_width,
             depth: layer_depth(i, n),
         });
     }
@@ -275,6 +276,21 @@ pub fn export_scene(
 pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
     let text = std::fs::read_to_string(path)
         .map_err(|e| FileError::new(path, format!("cannot be read ({e})"), "check the path"))?;
+    // a version 1 list names `fill_width` by its old name
+    #[derive(Deserialize)]
+    struct Probe {
+        #[serde(default)]
+        layers: Vec<std::collections::BTreeMap<String, serde::de::IgnoredAny>>,
+    }
+    if let Ok(p) = serde_json::from_str::<Probe>(&text) {
+        if p.layers.iter().any(|l| l.contains_key("repeat_x")) {
+            return Err(FileError::new(
+                path,
+                format!("has the layer key \"repeat_x\", which draw list version {DRAW_LIST_VERSION} renamed \"fill_width\""),
+                "export the scene again with this underdraw (or rename the key and set \"version\" to 2)",
+            ));
+        }
+    }
     let list: DrawList = serde_json::from_str(&text).map_err(|e| {
         FileError::new(
             path,

@@ -8,7 +8,7 @@
 //!    {"name": "sky", "image": "sky.png",        // relative to the scene file
 //!     "cut": {"budget": 8, "wrap": "x"},        // or "mesh": "sky.mesh.json"
 //!     "position": [0, 0], "scale": 1.06,        // top-left on screen at camera 0
-//!     "parallax": 0.1, "repeat_x": true}]}
+//!     "parallax": 0.1, "fill_width": true}]}
 //! ```
 //!
 //! A texel (tx, ty) of a layer lands on screen at
@@ -74,7 +74,10 @@ struct LayerJson {
     #[serde(default = "one")]
     parallax: f64,
     #[serde(default)]
-    repeat_x: bool,
+    fill_width: bool,
+    /// The old name of `fill_width`, refused with a message naming the new one.
+    #[serde(default)]
+    repeat_x: Option<serde::de::IgnoredAny>,
 }
 
 fn one() -> f64 {
@@ -135,7 +138,7 @@ pub struct LayerSpec {
     /// Screen pixels the layer moves left per pixel of camera travel.
     pub parallax: f64,
     /// Tile horizontally to fill the viewport's width.
-    pub repeat_x: bool,
+    pub fill_width: bool,
 }
 
 /// A loaded, validated scene.
@@ -290,6 +293,12 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
     let mut layers = Vec::with_capacity(json.layers.len());
     for (i, l) in json.layers.into_iter().enumerate() {
         let at = format!("layers[{i}] (\"{}\")", l.name);
+        if l.repeat_x.is_some() {
+            return bad(
+                format!("{at}: the key \"repeat_x\" is now called \"fill_width\""),
+                "rename the key to \"fill_width\" (same meaning: copies side by side to fill the viewport's width)",
+            );
+        }
         if !valid_name(&l.name) {
             return bad(
                 format!("layers[{i}]: name \"{}\" cannot name a mesh file", l.name),
@@ -356,7 +365,7 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
             position: l.position,
             scale: l.scale,
             parallax: l.parallax,
-            repeat_x: l.repeat_x,
+            fill_width: l.fill_width,
         });
     }
     Ok(Scene {
@@ -429,7 +438,7 @@ mod tests {
         let s = parse_scene(&here(), &scene_with(r#"{"name": "a", "image": "sky.png"}"#)).unwrap();
         let l = &s.layers[0];
         assert_eq!(
-            (l.scale, l.parallax, l.position, l.repeat_x),
+            (l.scale, l.parallax, l.position, l.fill_width),
             (1.0, 1.0, [0.0, 0.0], false)
         );
         assert_eq!(l.mesh, MeshSource::Cut(CutSettings::default()));

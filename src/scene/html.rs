@@ -72,12 +72,12 @@ pub fn index_html(
     let _ = writeln!(s, "<h2>Strategies</h2>");
     let _ = writeln!(
         s,
-        "<table id=\"strategies\"><tr><th>strategy</th><th>mean overdraw</th><th>peak overdraw (sample)</th><th>shader lanes / frame</th><th>vertices / frame</th><th>draws / frame</th></tr>"
+        "<table id=\"strategies\"><tr><th>strategy</th><th>overdraw (mean)</th><th>overdraw peak (sample)</th><th>shader lanes</th><th>vertices</th><th>draws</th></tr>"
     );
     for r in &report.strategies {
         let _ = writeln!(
             s,
-            "<tr class=\"strategy\" data-strategy=\"{0}\" data-mean-overdraw=\"{1}\"><td>{0}</td><td>{1:.3}</td><td>{2:.3} ({3})</td><td>{4:.0}</td><td>{5:.0}</td><td>{6:.1}</td></tr>",
+            "<tr class=\"strategy\" data-strategy=\"{0}\" data-mean-overdraw=\"{1}\"><td>{0}</td><td>{1:.3}</td><td>{2:.3} ({3})</td><td>{4:.0}</td><td>{5:.0}</td><td>{6:.0}</td></tr>",
             r.strategy.name(),
             r.mean_overdraw,
             r.peak_overdraw,
@@ -87,7 +87,10 @@ pub fn index_html(
             r.per_frame.draws
         );
     }
-    let _ = writeln!(s, "</table>");
+    let _ = writeln!(
+        s,
+        "</table>\n<p>Shader lanes (four per 2x2 quad shaded), vertices (vertex shader runs) and draws are per frame, the mean over the camera samples.</p>"
+    );
 
     if !heatmaps.is_empty() {
         let _ = writeln!(s, "<h2>Overdraw heatmaps</h2>\n<div class=\"pair\">");
@@ -109,7 +112,7 @@ pub fn index_html(
     let _ = writeln!(s, "<h2>Layers</h2>");
     let _ = writeln!(
         s,
-        "<p>Previews: <span class=\"swatch\" style=\"background: {}\"></span> opaque mesh (drawn with blending off), <span class=\"swatch\" style=\"background: {}\"></span> blended mesh, over the layer on a checkerboard; dotted white: the safe-opaque outline, dotted black: the must-cover outline. Caption: B budget, V vertices, C opaque capture, E excess.</p>",
+        "<p>Previews: <span class=\"swatch\" style=\"background: {}\"></span> opaque mesh (drawn with blending off), <span class=\"swatch\" style=\"background: {}\"></span> blended mesh, over the layer on a checkerboard; dotted white: the safe-opaque outline, dotted black: the must-cover outline. A layer wider than tall is shown plain above its cut.</p>",
         hex(crate::preview::OPAQUE_TINT),
         hex(crate::preview::BLENDED_TINT)
     );

@@ -12,7 +12,7 @@ pub struct HeatmapInfo {
     /// `heatmap-split.png`).
     pub file: String,
     /// The camera sample shown (index into [`SceneReport::camera_positions`]):
-    /// the one where the strategy's overdraw peaks.
+    /// [`SceneReport::heatmap_sample`], the same for every heatmap.
     pub sample: usize,
     /// The camera's x position at that sample, in screen pixels.
     pub camera_x: f64,
@@ -34,8 +34,12 @@ pub struct SceneReport {
     pub strategies: Vec<StrategyReport>,
     /// Each layer's numbers, in the scene's order (back to front).
     pub layers: Vec<LayerReport>,
-    /// The overdraw heatmaps written (rect and split, each at its peak sample,
-    /// on one colour scale).
+    /// The camera sample every heatmap shows: where the rect strategy's
+    /// overdraw peaks, the frame that costs most drawn the plain way, so
+    /// the maps compare the same view.
+    pub heatmap_sample: usize,
+    /// The overdraw heatmaps written (rect and split, both at
+    /// [`SceneReport::heatmap_sample`], on one colour scale).
     pub heatmaps: Vec<HeatmapInfo>,
     /// The split of a vertex total over the layers, when one was asked for
     /// (`--vertex-total`); left out of the JSON otherwise.
@@ -65,12 +69,18 @@ impl SceneReport {
             self.camera_positions.last().copied().unwrap_or(0.0),
         );
         s += &format!(
-            "{:<8} {:>9} {:>14} {:>12} {:>9} {:>6} {:>8}\n",
-            "strategy", "overdraw", "peak (sample)", "lanes", "vertices", "draws", "vert/tri"
+            "{:<8} {:>15} {:>22} {:>12} {:>9} {:>6} {:>21}\n",
+            "strategy",
+            "overdraw (mean)",
+            "overdraw peak (sample)",
+            "shader lanes",
+            "vertices",
+            "draws",
+            "vertices per triangle"
         );
         for r in &self.strategies {
             s += &format!(
-                "{:<8} {:>9.3} {:>9.3} ({:>2}) {:>12.0} {:>9.0} {:>6.1} {:>8.2}\n",
+                "{:<8} {:>15.3} {:>16.3} ({:>3}) {:>12.0} {:>9.0} {:>6.0} {:>21.2}\n",
                 r.strategy.name(),
                 r.mean_overdraw,
                 r.peak_overdraw,
@@ -81,21 +91,21 @@ impl SceneReport {
                 r.vertices_per_triangle
             );
         }
-        s += "(overdraw: fragments per pixel, mean over the samples; lanes, vertices, draws: per frame)\n\n";
+        s += "(overdraw: fragments shaded per pixel of a frame, the mean over the camera samples and the peak; shader lanes (four per 2x2 quad shaded), vertices (vertex shader runs) and draws: per frame, mean over the samples)\n\n";
         s += &format!(
-            "{:<16} {:>6} {:>8} {:>14} {:>14} {:>9} {:>11}\n",
+            "{:<16} {:>6} {:>8} {:>16} {:>14} {:>14} {:>16}\n",
             "layer",
             "budget",
             "vertices",
-            "saved vs outl.",
+            "saved vs outline",
             "saved vs rect",
-            "+vertices",
-            "saved/vert."
+            "vertices added",
+            "saved per vertex"
         );
         for l in &self.layers {
             s += &format!(
-                "{:<16} {:>6} {:>8} {:>14.0} {:>14.0} {:>9.0} {:>11}\n",
-                l.name,
+                "{:<16} {:>6} {:>8} {:>16.0} {:>14.0} {:>14.0} {:>16}\n",
+                crate::table::shorten_middle(&l.name, 16),
                 opt(l.budget),
                 l.mesh_vertices,
                 l.saved_vs_outline,
@@ -105,7 +115,7 @@ impl SceneReport {
                     .map_or("-".to_string(), |v| format!("{v:.0}"))
             );
         }
-        s += "(split against outline and rect: fragments saved and vertices added per frame)\n";
+        s += "(per frame, the split strategy against outline and rect: fragments saved, and vertices added against rect; saved per vertex: fragments saved vs rect per vertex added; budget \"file\": a mesh read from a file)\n";
         if let Some(a) = &self.allocation {
             s += &format!(
                 "\nallocation of {} vertices (split strategy, scored on every sample):\n",

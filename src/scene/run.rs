@@ -177,16 +177,15 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     );
     let (strategies, layer_reports) = summarize(&frames, &specs, &meshes, scene.viewport);
 
-    // heatmaps of rect and split, each at its peak sample, on one colour scale
+    // heatmaps of rect and split at one camera sample, on one colour scale:
+    // the sample where plain rectangles peak, the frame that costs most when
+    // drawn the plain way, so the split map shows what the meshes do to it
     let [w, h] = scene.viewport;
+    let sample = heatmap_sample(&strategies);
     let shown: Vec<(Strategy, usize)> = [Strategy::Rect, Strategy::Split]
         .iter()
-        .filter_map(|&s| {
-            strategies
-                .iter()
-                .find(|r| r.strategy == s)
-                .map(|r| (s, r.peak_sample))
-        })
+        .filter(|&&s| strategies.iter().any(|r| r.strategy == s))
+        .map(|&s| (s, sample))
         .collect();
     let rendered: Vec<_> = shown
         .iter()
@@ -275,6 +274,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         camera_positions: cams,
         strategies,
         layers: layer_reports,
+        heatmap_sample: sample,
         heatmaps,
         allocation,
         notes,
@@ -289,6 +289,15 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         write_report_page(dir, &scene, &layers, &report, &heatmap_files, opts)?;
     }
     Ok(report)
+}
+
+/// The camera sample both heatmaps show: where the rect strategy's
+/// overdraw peaks (the first such sample), else sample 0.
+pub fn heatmap_sample(strategies: &[super::score::StrategyReport]) -> usize {
+    strategies
+        .iter()
+        .find(|r| r.strategy == Strategy::Rect)
+        .map_or(0, |r| r.peak_sample)
 }
 
 /// Writes the web page report into `dir`: `index.html`, the heatmaps, and
@@ -326,7 +335,7 @@ fn write_report_page(
         shown.push((
             file.clone(),
             format!(
-                "{strategy}: camera sample {} (x = {}), where it peaks",
+                "{strategy}: camera sample {} (x = {}), where plain rectangles peak",
                 info.sample, info.camera_x
             ),
         ));
@@ -382,70 +391,66 @@ fn write_report_page(
             out.write(&file, svg.as_bytes())?;
             card.plot = Some(file);
         }
-        let excess_share = if s.must_cover_area > 0.0 {
-            100.0 * s.excess() / s.must_cover_area
-        } else {
-            0.0
-        };
+        let n = crate::quality::CutNumbers::of_mesh(s, mesh.budget, mesh.vertex_count());
         let opt = |v: Option<usize>| v.map_or("-".to_string(), |b| b.to_string());
         card.numbers = vec![
             ("budget".into(), opt(mesh.budget)),
             ("vertices".into(), mesh.vertex_count().to_string()),
             (
-                "triangles, opaque / blended".into(),
+                "triangles, opaque and blended".into(),
                 format!(
-                    "{} / {}",
+                    "{} and {}",
                     mesh.opaque.triangle_count(),
                     mesh.blended.triangle_count()
                 ),
             ),
-            (
-                "opaque capture".into(),
-                format!("{:.1}%", 100.0 * s.opaque_capture()),
-            ),
+            ("opaque capture".into(), n.capture_text()),
             (
                 "excess".into(),
-                format!("{:.0} texels ({excess_share:.1}%)", s.excess()),
+                format!(
+                    "{:.0} texels ({:.1}% of the must-cover area)",
+                    n.excess,
+                    100.0 * n.excess_share()
+                ),
             ),
             (
-                "fragments saved per frame vs rect".into(),
+                "saved vs rect (fragments per frame)".into(),
                 format!("{:.0}", lr.saved_vs_rect),
             ),
             (
-                "fragments saved per frame vs outline".into(),
+                "saved vs outline (fragments per frame)".into(),
                 format!("{:.0}", lr.saved_vs_outline),
             ),
             (
-                "saved per vertex added".into(),
+                "saved per vertex added (fragments per frame)".into(),
                 lr.saved_per_vertex
                     .map_or("-".to_string(), |v| format!("{v:.0}")),
             ),
             ("knee (80% of the largest saving)".into(), opt(knee_budget)),
             (
                 "filter".into(),
-                format!(
-                    "{:?}, mip levels 0 to {}",
-                    mesh.filter.mode, mesh.filter.mip_levels
-                )
+                match mesh.filter.mip_levels {
+                    0 => format!("{:?}, no mip levels", mesh.filter.mode),
+                    l => format!("{:?}, mip levels 0 to {l}", mesh.filter.mode),
+                }
                 .to_lowercase(),
             ),
             ("wrap".into(), mesh.wrap.as_str().to_string()),
             (
-                "alpha: opaque from / visible from".into(),
-                format!("{} / {}", mesh.alpha.opaque_min, mesh.alpha.visible_min),
+                "alpha".into(),
+                format!(
+                    "opaque from {}, visible from {}",
+                    mesh.alpha.opaque_min, mesh.alpha.visible_min
+                ),
             ),
         ];
         if mesh.opaque.indices.is_empty() && s.safe_opaque_area > 0.0 {
-            card.warnings
-                .push("opaque mesh empty at this budget: the layer hides nothing behind it".into());
+            card.warnings.push(
+                "opaque mesh empty at this budget: the layer hides nothing behind it; try a larger budget"
+                    .into(),
+            );
         }
-        if let (Some(k), Some(b)) = (knee_budget, mesh.budget) {
-            if b < k {
-                card.warnings.push(format!(
-                    "budget {b} is below the knee ({k}): more vertices would still save much"
-                ));
-            }
-        }
+        card.warnings.extend(n.warnings(knee_budget));
         card.warnings.extend(layer.notes.iter().cloned());
         cards.push(card);
     }

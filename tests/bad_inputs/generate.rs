@@ -487,6 +487,13 @@ fn scenes() -> Vec<Entry> {
         ),
     );
     add(
+        "old-fill-key.scene.json",
+        scene(
+            cam,
+            &[back.clone(), front.replace("}}", "}, \"repeat_x\": true}")],
+        ),
+    );
+    add(
         "zero-samples.scene.json",
         scene(r#"{"travel": 8, "samples": 0}"#, &ok),
     );
@@ -508,7 +515,7 @@ fn scenes() -> Vec<Entry> {
 fn mesh(size: [u32; 2], index: u32) -> Vec<u8> {
     let [w, h] = size.map(|s| s as f32);
     let m = serde_json::json!({
-        "format": "underdraw.layer", "version": 1, "source": "rgb.png",
+        "format": "underdraw.layer", "version": 2, "source": "rgb.png",
         "size": size,
         "filter": {"mode": "bilinear", "mip_levels": 0},
         "alpha": {"opaque_min": 255, "visible_min": 1},
@@ -526,6 +533,16 @@ fn mesh(size: [u32; 2], index: u32) -> Vec<u8> {
     text
 }
 
+/// A version 1 mesh file: `stats` has the key version 2 renamed.
+fn old_mesh() -> Vec<u8> {
+    let mut m: serde_json::Value = serde_json::from_slice(&mesh([W, H], 3)).unwrap();
+    m["version"] = 1.into();
+    m["stats"]["interior_edge_length_earcut"] = 16.0.into();
+    let mut text = serde_json::to_vec_pretty(&m).unwrap();
+    text.push(b'\n');
+    text
+}
+
 fn meshes() -> Vec<Entry> {
     let e = |name, bytes| Entry {
         name,
@@ -536,6 +553,7 @@ fn meshes() -> Vec<Entry> {
         e("rgb-rectangle.mesh.json", mesh([W, H], 3)),
         e("index-out-of-range.mesh.json", mesh([W, H], 7)),
         e("wrong-size.mesh.json", mesh([64, 48], 3)),
+        e("old-stats-key.mesh.json", old_mesh()),
     ]
 }
 

@@ -72,6 +72,8 @@ pub(crate) fn check(
             "safe_area": report.safe_area,
             "covered_area": report.covered_area,
             "must_cover_area": report.must_cover_area,
+            "must_cover_covered": report.must_cover_area - report.uncovered,
+            "beyond_must_cover": report.covered_area - (report.must_cover_area - report.uncovered),
             "violations": violations,
         });
         if let Some(d) = &described {
@@ -104,8 +106,8 @@ pub(crate) fn check(
     }
     if report.holds() {
         println!(
-            "contract holds: opaque mesh {:.1} of {:.1} safe texels, meshes cover {:.1} of {:.1} must-cover texels, no overlap",
-            report.opaque_area, report.safe_area, report.covered_area, report.must_cover_area
+            "contract holds: {}; no overlap",
+            underdraw::quality::check_summary(&report)
         );
     } else {
         println!("contract violated:");

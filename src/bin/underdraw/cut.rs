@@ -8,7 +8,9 @@ use std::path::PathBuf;
 use std::process::ExitCode;
 use underdraw::batch::{self, settings_file::Values, LayerReport, Outputs, Status};
 use underdraw::io::ImageLimits;
+use underdraw::quality::CutNumbers;
 use underdraw::settings::{FilterMode, Wrap};
+use underdraw::table;
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum FormatArg {
@@ -77,9 +79,10 @@ pub(crate) struct CutArgs {
     #[arg(long)]
     glb: bool,
     /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
-    /// with the opaque mesh tinted blue and the blended one orange, their
-    /// edges, the regions' outlines dotted, and a caption (B budget, V
-    /// vertices, C opaque capture, E excess); at most 1024 pixels wide.
+    /// with the opaque mesh tinted blue and the blended one orange (lightly,
+    /// so the art shows), their edges on top, the regions' outlines dotted,
+    /// and a caption in words; a layer wider than tall is shown plain above
+    /// its cut. At most 1024 pixels wide.
     #[arg(long)]
     preview: bool,
     /// The compressed texture that ships for the one PNG layer given (KTX
@@ -255,42 +258,38 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
 }
 
 fn print_table(layers: &[LayerReport]) {
-    // the status in a column of its own, last, so the numbers stay aligned
-    let rows: Vec<(&LayerReport, &batch::manifest::LayerResult)> = layers
+    let shown: Vec<&LayerReport> = layers.iter().filter(|l| l.result.is_some()).collect();
+    let cwd = std::env::current_dir().unwrap_or_default();
+    let paths: Vec<PathBuf> = shown.iter().map(|l| l.input.clone()).collect();
+    let names = table::display_paths(&paths, &cwd);
+    let rows: Vec<table::CutRow> = shown
         .iter()
-        .filter_map(|l| l.result.as_ref().map(|r| (l, r)))
+        .zip(names)
+        .map(|(l, layer)| {
+            let r = l.result.as_ref().expect("filtered above");
+            let numbers = CutNumbers::of_result(r);
+            table::CutRow {
+                layer,
+                status: status_word(l.status).into(),
+                numbers,
+                warnings: r
+                    .warnings
+                    .iter()
+                    .cloned()
+                    .chain(numbers.warnings(None))
+                    .collect(),
+                notes: r.notes.clone(),
+            }
+        })
         .collect();
-    let width = rows
-        .iter()
-        .map(|(l, _)| l.input.display().to_string().chars().count())
-        .max()
-        .unwrap_or(0)
-        .max(28);
-    println!(
-        "{:<width$} {:>8} {:>9} {:>20}  status",
-        "layer", "vertices", "capture", "excess"
-    );
-    for (l, r) in rows {
-        let share = if r.must_cover_area > 0.0 {
-            100.0 * r.excess / r.must_cover_area
-        } else {
-            0.0
-        };
-        let excess = format!("{:.0} tx ({share:.1}%)", r.excess);
-        let status = match l.status {
-            Status::Cut => "cut",
-            Status::Unchanged => "unchanged",
-            Status::Failed => "failed",
-        };
-        println!(
-            "{:<width$} {:>8} {:>8.1}% {excess:>20}  {status}",
-            l.input.display().to_string(),
-            r.vertices,
-            100.0 * r.opaque_capture,
-        );
-        for n in r.warnings.iter().chain(&r.notes) {
-            println!("  note: {n}");
-        }
+    print!("{}", table::cut_table(&rows));
+}
+
+fn status_word(s: Status) -> &'static str {
+    match s {
+        Status::Cut => "cut",
+        Status::Unchanged => "unchanged",
+        Status::Failed => "failed",
     }
 }
 
@@ -301,11 +300,16 @@ fn json_line(l: &LayerReport) -> serde_json::Value {
         "outputs": l.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
     });
     if let Some(r) = &l.result {
+        let n = CutNumbers::of_result(r);
         o["vertices"] = r.vertices.into();
-        o["opaque_capture"] = r.opaque_capture.into();
+        // null where the safe-opaque region is empty
+        o["opaque_capture"] = n.capture().into();
         o["excess"] = r.excess.into();
+        o["excess_share"] = n.excess_share().into();
+        o["must_cover_area"] = r.must_cover_area.into();
         o["notes"] = serde_json::json!(r.notes);
-        o["warnings"] = serde_json::json!(r.warnings);
+        let warnings: Vec<String> = r.warnings.iter().cloned().chain(n.warnings(None)).collect();
+        o["warnings"] = serde_json::json!(warnings);
     }
     if let Some(e) = &l.error {
         o["error"] = e.to_string().into();

@@ -44,7 +44,10 @@ struct Cli {
     /// PNG header before decoding. Each side is also limited to 16384
     /// texels, the largest texture GPUs commonly accept: tile wider layers.
     #[arg(long, global = true, value_name = "N", default_value_t = underdraw::io::MAX_PIXELS)]
-    max_pixels: u64,
+    max_texels: u64,
+    /// The old name of --max-texels, refused with a message naming it.
+    #[arg(long, global = true, value_name = "N", hide = true)]
+    max_pixels: Option<u64>,
 }
 
 /// How much to print.
@@ -235,8 +238,12 @@ fn main() -> ExitCode {
 fn run() -> ExitCode {
     let matches = Cli::command().get_matches();
     let cli = Cli::from_arg_matches(&matches).unwrap_or_else(|e| e.exit());
+    if cli.max_pixels.is_some() {
+        error("--max-pixels is now called --max-texels\n  hint: give --max-texels N (the most texels, width x height, of a layer)");
+        return ExitCode::from(2);
+    }
     let limits = underdraw::io::ImageLimits {
-        max_pixels: cli.max_pixels,
+        max_pixels: cli.max_texels,
         ..Default::default()
     };
     let print = Print {
