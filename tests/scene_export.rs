@@ -183,6 +183,43 @@ fn the_list_is_the_scored_split_frame() {
     assert_eq!(scored, listed);
 }
 
+/// The `layered` order is the scored layered frame: per layer, back to
+/// front, its opaque draw (blending off) then its blended one, no depth
+/// test or write (drawing back to front with "over" needs no depth buffer:
+/// common practice, no source).
+#[test]
+fn the_layered_order_is_the_scored_layered_frame() {
+    let e = exported("layered", &[]);
+    let dump = load_frame_dump(&e.out.join("frame-0.json")).unwrap();
+    let scored: Vec<_> = dump.strategies["layered"]
+        .draws
+        .iter()
+        .map(|d| (d.layer.clone(), d.blend, d.depth_test, d.depth_write))
+        .collect();
+    let listed: Vec<_> = e
+        .list
+        .layered
+        .draws
+        .iter()
+        .map(|d| {
+            (
+                d.layer.clone(),
+                d.blend.enabled,
+                d.depth_test,
+                d.depth_write,
+            )
+        })
+        .collect();
+    assert_eq!(scored, listed);
+    assert_eq!(e.list.layered.name, "layered");
+    // every draw of the two passes is in the layered order once
+    let n: usize = e.list.passes.iter().map(|p| p.draws.len()).sum();
+    assert_eq!(n, e.list.layered.draws.len());
+    for d in &e.list.layered.draws {
+        assert_eq!(d.blend.enabled, d.triangles == "blended", "{d:?}");
+    }
+}
+
 #[test]
 fn each_entry_names_its_triangles_in_the_mesh_file_and_the_gltf() {
     let e = exported("files", &[]);

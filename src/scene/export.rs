@@ -13,7 +13,13 @@
 //!    so a blended fragment behind an opaque one is rejected and the others
 //!    composite in painter's order.
 //!
-//! Invariants: the entries are exactly the non-empty draws of the
+//! Beside the passes, `layered` is another order an engine can choose
+//! instead of them, for a renderer without a depth buffer: per layer, back
+//! to front, its opaque draw (blending off) then its blended draw, no depth
+//! test or write (the [`Strategy::Layered`] frame; on a GPU with
+//! hidden-surface removal it shades what the passes shade).
+//!
+//! Invariants: the entries of `passes` are exactly the non-empty draws of the
 //! [`Strategy::Split`] frame in the same order (the scorer's model, so the
 //! report's numbers are the numbers of this list); each layer's depth is
 //! [`layer_depth`], the front layer nearest; each entry names a mesh file
@@ -52,6 +58,11 @@ pub struct DrawList {
     pub layers: Vec<ExportedLayer>,
     /// The passes in submission order: `opaque`, then `blended`.
     pub passes: Vec<Pass>,
+    /// The other order, instead of `passes` (name `"layered"`, order
+    /// `"back-to-front"`): per layer its opaque then its blended draw, no
+    /// depth. Empty in lists written before it existed.
+    #[serde(default)]
+    pub layered: Pass,
 }
 
 /// The depth buffer's setup for the frame.
@@ -96,7 +107,7 @@ pub struct ExportedLayer {
 }
 
 /// One pass of the frame.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Pass {
     /// `"opaque"` or `"blended"`.
@@ -187,6 +198,16 @@ pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh])
     // the order of Strategy::Split's frame (see scene::draws::frame_draws)
     let opaque = (0..n).rev().filter_map(|i| entry(i, true)).collect();
     let blended = (0..n).filter_map(|i| entry(i, false)).collect();
+    // the order of Strategy::Layered's frame, without depth
+    let layered = (0..n)
+        .flat_map(|i| [entry(i, true), entry(i, false)])
+        .flatten()
+        .map(|e| DrawEntry {
+            depth_test: false,
+            depth_write: false,
+            ..e
+        })
+        .collect();
     DrawList {
         format: DRAW_LIST_FORMAT.into(),
         version: DRAW_LIST_VERSION,
@@ -209,6 +230,11 @@ pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh])
                 draws: blended,
             },
         ],
+        layered: Pass {
+            name: "layered".into(),
+            order: "back-to-front".into(),
+            draws: layered,
+        },
     }
 }
 
