@@ -142,6 +142,7 @@ impl SpanBuffer {
             }
             let mut st = DrawStats {
                 vertices: d.distinct_vertices(),
+                vertices_in_groups: d.vertices_in_groups(super::VERTEX_GROUP),
                 triangles: (d.indices.len() / 3) as u64,
                 ..DrawStats::default()
             };

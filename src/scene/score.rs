@@ -30,6 +30,10 @@ pub struct Work {
     pub lanes: f64,
     /// Vertex shader invocations: distinct indices referenced, per draw.
     pub vertices: f64,
+    /// Vertices shaded on a GPU that shades groups of 4 consecutive indices
+    /// ([`crate::frame::Draw::vertices_in_groups`]).
+    #[serde(default)]
+    pub vertices_in_groups: f64,
     /// Triangles submitted, drawn or not.
     pub triangles: f64,
     /// Draw calls.
@@ -41,6 +45,7 @@ impl Work {
         self.fragments += o.fragments;
         self.lanes += o.lanes;
         self.vertices += o.vertices;
+        self.vertices_in_groups += o.vertices_in_groups;
         self.triangles += o.triangles;
         self.draws += o.draws;
     }
@@ -48,6 +53,7 @@ impl Work {
         self.fragments *= k;
         self.lanes *= k;
         self.vertices *= k;
+        self.vertices_in_groups *= k;
         self.triangles *= k;
         self.draws *= k;
         self
@@ -182,6 +188,13 @@ fn score_with(
                     fragments: st.fragments as f64,
                     lanes: st.lanes as f64,
                     vertices: vertices as f64,
+                    // the exact floor's rectangles are no real vertex array:
+                    // its corners, as if each were used (a lower bound)
+                    vertices_in_groups: if exact.is_some() {
+                        vertices as f64
+                    } else {
+                        st.vertices_in_groups as f64
+                    },
                     triangles: st.triangles as f64,
                     draws: 1.0,
                 });
@@ -258,6 +271,12 @@ pub struct StrategyReport {
     pub per_frame: Work,
     /// Vertices / triangles, over all frames.
     pub vertices_per_triangle: f64,
+    /// Vertex bytes fetched per frame (mean over the samples) with each
+    /// vertex format, by its name (`f32`, `u16`): the vertices shaded in
+    /// groups of 4 times the bytes of a vertex
+    /// ([`crate::mesh::VertexFormat::bytes_per_vertex`]).
+    #[serde(default)]
+    pub vertex_bytes: std::collections::BTreeMap<String, f64>,
 }
 
 /// One layer's numbers, per frame (means over the samples).
@@ -353,6 +372,15 @@ pub fn summarize(
             } else {
                 0.0
             },
+            vertex_bytes: crate::mesh::VertexFormat::ALL
+                .iter()
+                .map(|f| {
+                    (
+                        f.name().to_string(),
+                        sum.vertices_in_groups * k * f.bytes_per_vertex() as f64,
+                    )
+                })
+                .collect(),
         });
         layer_means.insert(s, layers.into_iter().map(|w| w.scaled(k)).collect());
     }
