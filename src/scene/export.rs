@@ -31,9 +31,10 @@ use super::draws::Strategy; // named in the docs
 use super::file::Scene;
 use super::prepare::Layer;
 use crate::error::FileError;
-use crate::export::gltf::{relative_uri, write_gltf};
+use crate::export::gltf::{relative_uri, write_gltf_with};
 use crate::io::write_atomic;
 use crate::mesh::LayerMesh;
+use crate::mesh::VertexFormat;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
 
@@ -249,6 +250,19 @@ pub fn export_scene(
     meshes: &[&LayerMesh],
     write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
 ) -> Result<DrawList, FileError> {
+    export_scene_with(dir, scene, layers, meshes, VertexFormat::F32, write)
+}
+
+/// [`export_scene`] with the glTF assets' vertices in `format`
+/// ([`crate::export::gltf::build_with`]; the mesh files are the same).
+pub fn export_scene_with(
+    dir: &Path,
+    scene: &Scene,
+    layers: &[Layer],
+    meshes: &[&LayerMesh],
+    format: VertexFormat,
+    write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
+) -> Result<DrawList, FileError> {
     std::fs::create_dir_all(dir).map_err(|e| {
         FileError::new(
             dir,
@@ -275,7 +289,7 @@ pub fn export_scene(
             &mesh_file,
             &serde_json::to_vec_pretty(mesh).expect("a mesh serializes"),
         )?;
-        write_gltf(mesh, &uri, dir, name)?;
+        write_gltf_with(mesh, &uri, dir, name, format)?;
         let s = &layer.spec;
         exported.push(ExportedLayer {
             name: name.clone(),

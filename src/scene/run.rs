@@ -40,6 +40,8 @@ pub struct SceneOptions {
     pub report: Option<PathBuf>,
     /// Folder for every layer's meshes (JSON and glTF) and the draw list.
     pub export: Option<PathBuf>,
+    /// The vertex format of the exported glTF assets.
+    pub vertex_format: crate::mesh::VertexFormat,
     /// The largest image accepted.
     pub limits: crate::io::ImageLimits,
     /// Told how far the long steps are (the command line draws a bar).
@@ -277,9 +279,14 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             inputs: scene.inputs(),
             written: Vec::new(),
         };
-        super::export::export_scene(dir, &scene, &layers, &exported, &mut |name, bytes| {
-            to.write(name, bytes)
-        })?;
+        super::export::export_scene_with(
+            dir,
+            &scene,
+            &layers,
+            &exported,
+            opts.vertex_format,
+            &mut |name, bytes| to.write(name, bytes),
+        )?;
         out.written.extend(to.written);
     }
 
