@@ -44,7 +44,7 @@ fn sort_for_locality(pos: &[Point], tris: &mut [[u32; 3]]) {
     tris.sort_by_cached_key(|t| {
         let c = |k: usize| {
             t.iter()
-                .map(|&i| pos[i as usize][k] as i64)
+                .map(|&i| pos[i as usize][k])
                 .sum::<i64>()
                 .clamp(0, u32::MAX as i64) as u32
         };
@@ -238,8 +238,8 @@ mod tests {
                 let shift = [0.25 + rng.unit() as f32 * 3.0, rng.unit() as f32 * 3.0];
                 let (db, da) = (draw(&b.positions, tb, shift), draw(&a.positions, ta, shift));
                 let (mb, ma) = (
-                    measure([80, 80], &[db.clone()]),
-                    measure([80, 80], &[da.clone()]),
+                    measure([80, 80], std::slice::from_ref(&db)),
+                    measure([80, 80], std::slice::from_ref(&da)),
                 );
                 assert_eq!(mb.total.fragments, ma.total.fragments, "case {case}");
                 assert_eq!(mb.total.lanes, ma.total.lanes, "case {case}");
