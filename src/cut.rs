@@ -1,5 +1,6 @@
 //! The whole cut of one layer: alpha analysis → outline tracing → fitting to
-//! the budget → triangulation → the mesh file's value, self-checked.
+//! the budget → triangulation → vertex ordering → the mesh file's value,
+//! self-checked.
 //!
 //! Invariant: a [`LayerMesh`] returned by [`cut_layer`] satisfies the
 //! contract (as verified by the independent [`crate::check`]); when a step
@@ -16,6 +17,7 @@ use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
 use crate::triangulate::{triangulate, Triangulation};
+use crate::vertex_order::order_vertices;
 use rayon::prelude::*;
 
 /// A cut layer and what the user should know about it.
@@ -133,7 +135,8 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
     if fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
     }
-    let attempt = triangulate(&fit).and_then(|t| {
+    let attempt = triangulate(&fit).and_then(|mut t| {
+        order_vertices(&mut t);
         if t.positions.len() > settings.budget {
             return Err(format!(
                 "{} vertices after triangulation, over the budget of {}",
@@ -162,7 +165,8 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
                 cover: fit.cover.clone(),
                 vertices: fit.outline_vertices(Class::Cover),
             };
-            let t = triangulate(&plain).unwrap_or_default();
+            let mut t = triangulate(&plain).unwrap_or_default();
+            order_vertices(&mut t);
             to_mesh(map, source, settings, &regions, &plain, &t)
         }
     };

@@ -12,7 +12,9 @@
 //!    rings only grow outside the must-cover region.
 //! 4. [`triangulate`]: fitted rings → an opaque and a blended triangle list
 //!    over one vertex array.
-//! 5. [`mesh`]: the mesh file's value, [`mesh::LayerMesh`].
+//! 5. [`vertex_order`]: the vertex array renumbered (opaque-only, shared,
+//!    blended-only) and the triangles sorted for locality; same geometry.
+//! 6. [`mesh`]: the mesh file's value, [`mesh::LayerMesh`].
 //!
 //! [`cut::cut_layer`] runs them all and verifies the result with
 //! [`check::check_mesh`], which recomputes the contract from its definition
@@ -63,6 +65,7 @@ pub mod sweep;
 pub mod table;
 pub mod text;
 pub mod triangulate;
+pub mod vertex_order;
 
 #[cfg(test)]
 mod test_rng;

@@ -99,6 +99,40 @@ impl MeshStats {
     }
 }
 
+/// How a vertex is stored for the GPU: a position and a texture coordinate.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[serde(rename_all = "lowercase")]
+pub enum VertexFormat {
+    /// 32-bit floats: position x, y and texture coordinate u, v (16 bytes).
+    #[default]
+    F32,
+    /// Unsigned 16-bit integers: position in half-texel units, texture
+    /// coordinate normalized (8 bytes). Exact: every position lies on a
+    /// multiple of half a texel.
+    U16,
+}
+
+impl VertexFormat {
+    /// Both formats, f32 first.
+    pub const ALL: [VertexFormat; 2] = [VertexFormat::F32, VertexFormat::U16];
+
+    /// Bytes of one vertex: a 2D position and a 2D texture coordinate.
+    pub fn bytes_per_vertex(self) -> u64 {
+        match self {
+            VertexFormat::F32 => 16,
+            VertexFormat::U16 => 8,
+        }
+    }
+
+    /// `f32` or `u16`.
+    pub fn name(self) -> &'static str {
+        match self {
+            VertexFormat::F32 => "f32",
+            VertexFormat::U16 => "u16",
+        }
+    }
+}
+
 /// Triangle winding as seen on screen with y down.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "lowercase")]

@@ -100,6 +100,10 @@ fn cut_json_matches_the_mesh_files() {
         // vertices: the shared vertex array's length
         assert_eq!(l["vertices"].as_u64().unwrap() as usize, pos.len() / 2);
         assert!(pos.len() / 2 <= 20);
+        // vertex bytes: x, y, u, v as 4-byte floats (16) or 2-byte shorts (8)
+        let n = pos.len() as u64 / 2;
+        assert_eq!(l["vertex_bytes"]["f32"].as_u64(), Some(16 * n));
+        assert_eq!(l["vertex_bytes"]["u16"].as_u64(), Some(8 * n));
         let st = &m["stats"];
         let opaque = area(&pos, &idx("opaque"));
         let covered = opaque + area(&pos, &idx("blended"));
@@ -197,7 +201,8 @@ fn scene_json_is_the_report_file() {
     let file: serde_json::Value =
         serde_json::from_str(&fs::read_to_string(out.join("scene-report.json")).unwrap()).unwrap();
     assert_eq!(printed, file);
-    assert_eq!(printed["strategies"].as_array().unwrap().len(), 3);
+    // rect, outline, split, exact, layered, layered-hsr
+    assert_eq!(printed["strategies"].as_array().unwrap().len(), 6);
     // both heatmaps show one camera sample, named in the report: the one
     // where the rect strategy peaks
     let sample = printed["heatmap_sample"].as_u64().unwrap();

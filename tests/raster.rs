@@ -429,6 +429,16 @@ fn brute_render(viewport: [u32; 2], draws: &[Draw]) -> (Vec<u32>, Vec<DrawStats>
     for d in draws {
         let mut s = DrawStats {
             vertices: d.indices.iter().collect::<BTreeSet<_>>().len() as u64,
+            // groups of 4 consecutive indices (common practice on tile-based
+            // GPUs, no source), the last group only as long as the array
+            vertices_in_groups: d
+                .indices
+                .iter()
+                .map(|i| i / 4)
+                .collect::<BTreeSet<_>>()
+                .iter()
+                .map(|&g| (d.positions.len() as u64 / 2 - 4 * g as u64).min(4))
+                .sum(),
             triangles: d.indices.len() as u64 / 3,
             ..DrawStats::default()
         };

@@ -90,6 +90,38 @@ fn split_shades_less_than_outline_and_outline_less_than_rect() {
     }
 }
 
+/// The exact floor shades no more than split, and the share of the
+/// possible saving is (rect - split) / (rect - exact), overall, per layer
+/// and for the allocated budgets; the layered order shades outline's
+/// fragments without hidden-surface removal and split's with the ideal one
+/// (the same triangles; a fragment survives the ideal removal exactly when
+/// no nearer layer's opaque mesh covers it, which is split's depth test).
+#[test]
+fn the_floor_and_the_layered_order_on_the_demo() {
+    let r = &demo().report;
+    let frags = |s| strategy(r, s)["per_frame"]["fragments"].as_f64().unwrap();
+    let (rect, split, exact) = (frags("rect"), frags("split"), frags("exact"));
+    assert!(exact <= split, "exact {exact} > split {split}");
+    let share = r["saving_share"].as_f64().unwrap();
+    assert!((share - (rect - split) / (rect - exact)).abs() < 1e-12);
+    assert!(share > 0.0 && share <= 1.0, "{share}");
+    let allocated = r["allocation"]["allocated"]["fragments"].as_f64().unwrap();
+    let a_share = r["allocation_saving_share"].as_f64().unwrap();
+    assert!((a_share - (rect - allocated) / (rect - exact)).abs() < 1e-12);
+    assert_eq!(frags("layered"), frags("outline"));
+    assert_eq!(frags("layered-hsr"), split);
+    for l in r["layers"].as_array().unwrap() {
+        let f = |k: &str| l[k]["fragments"].as_f64().unwrap();
+        assert!(f("exact") <= f("rect"));
+        assert_eq!(f("layered"), f("outline"), "{}", l["name"]);
+        assert_eq!(f("layered_hsr"), f("split"), "{}", l["name"]);
+        if let Some(s) = l["saving_share"].as_f64() {
+            let want = (f("rect") - f("split")) / (f("rect") - f("exact"));
+            assert!((s - want).abs() < 1e-12, "{}", l["name"]);
+        }
+    }
+}
+
 /// With rect, every layer copy shades every pixel centre of its rectangle
 /// on screen: the rect strategy's fragments are the rectangles' areas
 /// clipped to the viewport, computed here from the scene file and the PNG
@@ -183,7 +215,8 @@ fn allocation_beats_the_even_spread() {
 fn dumped_counts_are_the_replayed_draws() {
     let run = demo();
     let dump = load_frame_dump(&run.out.join(format!("frame-{DUMPED}.json"))).unwrap();
-    assert_eq!(dump.strategies.len(), 3);
+    // rect, outline, split, layered, layered-hsr
+    assert_eq!(dump.strategies.len(), 5);
     for (name, frame) in &dump.strategies {
         let png = image::open(run.out.join(format!("counts-{DUMPED}-{name}.png")))
             .unwrap()

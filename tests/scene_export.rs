@@ -183,6 +183,43 @@ fn the_list_is_the_scored_split_frame() {
     assert_eq!(scored, listed);
 }
 
+/// The `layered` order is the scored layered frame: per layer, back to
+/// front, its opaque draw (blending off) then its blended one, no depth
+/// test or write (drawing back to front with "over" needs no depth buffer:
+/// common practice, no source).
+#[test]
+fn the_layered_order_is_the_scored_layered_frame() {
+    let e = exported("layered", &[]);
+    let dump = load_frame_dump(&e.out.join("frame-0.json")).unwrap();
+    let scored: Vec<_> = dump.strategies["layered"]
+        .draws
+        .iter()
+        .map(|d| (d.layer.clone(), d.blend, d.depth_test, d.depth_write))
+        .collect();
+    let listed: Vec<_> = e
+        .list
+        .layered
+        .draws
+        .iter()
+        .map(|d| {
+            (
+                d.layer.clone(),
+                d.blend.enabled,
+                d.depth_test,
+                d.depth_write,
+            )
+        })
+        .collect();
+    assert_eq!(scored, listed);
+    assert_eq!(e.list.layered.name, "layered");
+    // every draw of the two passes is in the layered order once
+    let n: usize = e.list.passes.iter().map(|p| p.draws.len()).sum();
+    assert_eq!(n, e.list.layered.draws.len());
+    for d in &e.list.layered.draws {
+        assert_eq!(d.blend.enabled, d.triangles == "blended", "{d:?}");
+    }
+}
+
 #[test]
 fn each_entry_names_its_triangles_in_the_mesh_file_and_the_gltf() {
     let e = exported("files", &[]);
@@ -314,14 +351,20 @@ fn export_never_overwrites_a_mesh_the_scene_reads() {
 #[test]
 fn khronos_validator_accepts_the_exported_assets() {
     let e = exported("validator", &[]);
-    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/gltf_validate.js");
     let files: Vec<PathBuf> = e
         .list
         .layers
         .iter()
         .map(|l| e.export.join(&l.gltf))
         .collect();
-    let out = match Command::new("node").arg(&script).args(&files).output() {
+    validate(&files);
+}
+
+/// The Khronos glTF Validator reports 0 errors on every file (skipped with
+/// a message when it is not installed, failing under CI).
+fn validate(files: &[PathBuf]) {
+    let script = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/gltf_validate.js");
+    let out = match Command::new("node").arg(&script).args(files).output() {
         Ok(o) => o,
         Err(err) => {
             assert!(std::env::var_os("CI").is_none(), "CI needs node: {err}");
@@ -340,7 +383,7 @@ fn khronos_validator_accepts_the_exported_assets() {
     let stdout = String::from_utf8_lossy(&out.stdout);
     println!("{stdout}");
     assert!(out.status.success(), "validator errors:\n{stdout}");
-    for f in &files {
+    for f in files {
         assert!(
             stdout
                 .lines()
@@ -348,4 +391,81 @@ fn khronos_validator_accepts_the_exported_assets() {
             "no clean report for {f:?}:\n{stdout}"
         );
     }
+}
+
+/// `--vertex-format u16` writes glTF's KHR_mesh_quantization (the
+/// extension's specification, from memory): positions UNSIGNED_SHORT,
+/// texture coordinates normalized UNSIGNED_SHORT, the extension required.
+/// The Khronos validator accepts every asset. The `gltf` crate (a
+/// general-purpose reader; it does not list the extension as supported, so
+/// it is read without its validation) gives the accessors, buffer views and
+/// the node's transform: the positions dequantized by the node's scale are
+/// exactly the mesh file's positions, as the f32 export writes them
+/// ((x, y) to (x, -y, 0)), and the texture coordinates are within half a
+/// step (1 / 65535) of the mesh file's.
+#[test]
+fn quantized_export_dequantizes_to_the_mesh_positions() {
+    let e = exported("quantized", &["--vertex-format", "u16"]);
+    let files: Vec<PathBuf> = e
+        .list
+        .layers
+        .iter()
+        .map(|l| e.export.join(&l.gltf))
+        .collect();
+    validate(&files);
+    let mut checked = 0;
+    for l in &e.list.layers {
+        let mesh = load_mesh(&e.export.join(&l.mesh)).unwrap();
+        let path = e.export.join(&l.gltf);
+        let doc = gltf::Gltf::from_slice_without_validation(&fs::read(&path).unwrap()).unwrap();
+        assert!(doc
+            .extensions_required()
+            .any(|x| x == "KHR_mesh_quantization"));
+        let node = doc.nodes().next().unwrap();
+        let (_, _, scale) = node.transform().decomposed();
+        let Some(gmesh) = node.mesh() else {
+            continue;
+        };
+        let bin = fs::read(path.with_extension("bin")).unwrap();
+        let prim = gmesh.primitives().next().unwrap();
+        let read = |semantic: gltf::Semantic, dims: usize| -> Vec<Vec<u16>> {
+            let acc = prim.get(&semantic).unwrap();
+            assert_eq!(acc.data_type(), gltf::accessor::DataType::U16);
+            let view = acc.view().unwrap();
+            let stride = view.stride().unwrap_or(2 * dims);
+            let base = view.offset() + acc.offset();
+            (0..acc.count())
+                .map(|i| {
+                    (0..dims)
+                        .map(|k| {
+                            let at = base + i * stride + 2 * k;
+                            u16::from_le_bytes([bin[at], bin[at + 1]])
+                        })
+                        .collect()
+                })
+                .collect()
+        };
+        assert!(prim
+            .get(&gltf::Semantic::TexCoords(0))
+            .unwrap()
+            .normalized());
+        let positions = read(gltf::Semantic::Positions, 3);
+        let uvs = read(gltf::Semantic::TexCoords(0), 2);
+        assert_eq!(positions.len(), mesh.vertex_count());
+        for (i, (p, t)) in positions.iter().zip(&uvs).enumerate() {
+            let world = [
+                p[0] as f32 * scale[0],
+                p[1] as f32 * scale[1],
+                p[2] as f32 * scale[2],
+            ];
+            let [x, y] = mesh.position(i as u32);
+            assert_eq!(world, [x, 0.0 - y, 0.0], "{} vertex {i}", l.name);
+            for k in 0..2 {
+                let u = t[k] as f64 / 65535.0;
+                assert!((u - mesh.uvs[2 * i + k] as f64).abs() <= 0.5 / 65535.0 + 1e-9);
+            }
+        }
+        checked += 1;
+    }
+    assert!(checked > 0);
 }

@@ -39,6 +39,14 @@
 //! equivalent), which the mesh's `extras.underdraw` records with the rest of
 //! the cut settings.
 //!
+//! **16-bit vertices** ([`build_with`], [`VertexFormat::U16`]): glTF's
+//! `KHR_mesh_quantization` extension, required by the asset: `POSITION`
+//! VEC3 UNSIGNED_SHORT in half-texel units (x, y, 0), the node scaled by
+//! (0.5, -0.5, 1) so that it lands on the f32 asset's (x, -y, 0) exactly
+//! (the mirror's negative determinant keeps the same front faces), and
+//! `TEXCOORD_0` VEC2 normalized UNSIGNED_SHORT. Layers up to
+//! [`MAX_U16_SIDE`] texels a side.
+//!
 //! **Empty meshes.** A primitive must have at least one index (Accessors:
 //! count >= 1), so a mesh with no triangles of one kind has no primitive of
 //! that kind, and a fully transparent layer has a node without a mesh and no
@@ -47,7 +55,7 @@
 
 use crate::error::FileError;
 use crate::io::write_if_changed;
-use crate::mesh::{LayerMesh, Winding};
+use crate::mesh::{LayerMesh, VertexFormat, Winding};
 use crate::settings::FilterMode;
 use serde_json::{json, Value};
 use std::path::{Component, Path, PathBuf};
@@ -135,6 +143,36 @@ pub fn glb_path(dir: &Path, stem: &str) -> PathBuf {
 /// assert_eq!(j["accessors"][0]["max"][1], 0.0);
 /// ```
 pub fn build(mesh: &LayerMesh, image_uri: &str, name: &str) -> Asset {
+    build_with(mesh, image_uri, name, VertexFormat::F32)
+}
+
+/// Largest layer side, in texels, whose positions fit unsigned 16-bit
+/// half-texel units (2 x 32767 = 65534).
+pub const MAX_U16_SIDE: u32 = 32767;
+
+/// Why `mesh` cannot be written with `format`, if it cannot: a layer side
+/// over [`MAX_U16_SIDE`] texels for [`VertexFormat::U16`].
+pub fn format_refusal(mesh: &LayerMesh, format: VertexFormat) -> Option<String> {
+    (format == VertexFormat::U16 && (mesh.size[0] > MAX_U16_SIDE || mesh.size[1] > MAX_U16_SIDE))
+        .then(|| {
+            format!(
+                "the layer is {} x {} texels; 16-bit vertices hold positions in half texels up to {MAX_U16_SIDE} texels a side",
+                mesh.size[0], mesh.size[1]
+            )
+        })
+}
+
+/// [`build`] with the vertices in `format`. With [`VertexFormat::U16`] the
+/// asset uses `KHR_mesh_quantization` (listed in `extensionsUsed` and
+/// `extensionsRequired`): `POSITION` is VEC3 UNSIGNED_SHORT in half-texel
+/// units (x, y, 0) (each vertex padded to 8 bytes, as vertex attributes
+/// must be 4-byte aligned: Buffers and Buffer Views, data alignment), and
+/// the node's scale (0.5, -0.5, 1) turns them into the f32 asset's
+/// positions (x, -y, 0) exactly; `TEXCOORD_0` is VEC2 normalized
+/// UNSIGNED_SHORT (round(u * 65535)). The caller has checked
+/// [`format_refusal`]; larger positions are clamped.
+pub fn build_with(mesh: &LayerMesh, image_uri: &str, name: &str, format: VertexFormat) -> Asset {
+    let quantized = format == VertexFormat::U16;
     let n = mesh.vertex_count();
     let mut bin = Vec::new();
     let mut views = Vec::new();
@@ -161,41 +199,84 @@ pub fn build(mesh: &LayerMesh, image_uri: &str, name: &str) -> Asset {
     let mut node = json!({"name": name});
 
     if !used.is_empty() && n > 0 {
-        // POSITION: (x, -y, 0); 0.0 - y keeps +0 for y = 0.
-        let (mut min, mut max) = ([f32::INFINITY; 3], [f32::NEG_INFINITY; 3]);
-        let start = bin.len();
-        for i in 0..n {
-            let [x, y] = mesh.position(i as u32);
-            let p = [x, 0.0 - y, 0.0];
-            for k in 0..3 {
-                min[k] = min[k].min(p[k]);
-                max[k] = max[k].max(p[k]);
-                bin.extend_from_slice(&p[k].to_le_bytes());
+        if quantized {
+            // POSITION: (2x, 2y, 0) half texels, 6 bytes padded to 8
+            let half = |v: f32| (2.0 * v).round().clamp(0.0, 65535.0) as u16;
+            let (mut min, mut max) = ([u16::MAX; 3], [0u16; 3]);
+            let start = bin.len();
+            for i in 0..n {
+                let [x, y] = mesh.position(i as u32);
+                let p = [half(x), half(y), 0];
+                for k in 0..3 {
+                    min[k] = min[k].min(p[k]);
+                    max[k] = max[k].max(p[k]);
+                    bin.extend_from_slice(&p[k].to_le_bytes());
+                }
+                bin.extend_from_slice(&[0, 0]);
             }
+            let mut v = view(start, bin.len() - start, gl::ARRAY_BUFFER);
+            v["byteStride"] = json!(8);
+            views.push(v);
+            accessors.push(json!({
+                "bufferView": views.len() - 1,
+                "componentType": gl::UNSIGNED_SHORT,
+                "count": n,
+                "type": "VEC3",
+                "min": min,
+                "max": max,
+            }));
+            // TEXCOORD_0: normalized, 4 bytes a vertex
+            let start = bin.len();
+            let unit = |v: f32| (v as f64 * 65535.0).round().clamp(0.0, 65535.0) as u16;
+            for i in 0..n {
+                bin.extend_from_slice(&unit(mesh.uvs[2 * i]).to_le_bytes());
+                bin.extend_from_slice(&unit(mesh.uvs[2 * i + 1]).to_le_bytes());
+            }
+            views.push(view(start, bin.len() - start, gl::ARRAY_BUFFER));
+            accessors.push(json!({
+                "bufferView": views.len() - 1,
+                "componentType": gl::UNSIGNED_SHORT,
+                "normalized": true,
+                "count": n,
+                "type": "VEC2",
+            }));
+            node["scale"] = json!([0.5, -0.5, 1.0]);
+        } else {
+            // POSITION: (x, -y, 0); 0.0 - y keeps +0 for y = 0.
+            let (mut min, mut max) = ([f32::INFINITY; 3], [f32::NEG_INFINITY; 3]);
+            let start = bin.len();
+            for i in 0..n {
+                let [x, y] = mesh.position(i as u32);
+                let p = [x, 0.0 - y, 0.0];
+                for k in 0..3 {
+                    min[k] = min[k].min(p[k]);
+                    max[k] = max[k].max(p[k]);
+                    bin.extend_from_slice(&p[k].to_le_bytes());
+                }
+            }
+            views.push(view(start, bin.len() - start, gl::ARRAY_BUFFER));
+            accessors.push(json!({
+                "bufferView": views.len() - 1,
+                "componentType": gl::FLOAT,
+                "count": n,
+                "type": "VEC3",
+                "min": min,
+                "max": max,
+            }));
+            // TEXCOORD_0, already 4-aligned (12 bytes a vertex before it).
+            let start = bin.len();
+            for i in 0..n {
+                bin.extend_from_slice(&mesh.uvs[2 * i].to_le_bytes());
+                bin.extend_from_slice(&mesh.uvs[2 * i + 1].to_le_bytes());
+            }
+            views.push(view(start, bin.len() - start, gl::ARRAY_BUFFER));
+            accessors.push(json!({
+                "bufferView": views.len() - 1,
+                "componentType": gl::FLOAT,
+                "count": n,
+                "type": "VEC2",
+            }));
         }
-        views.push(view(start, bin.len() - start, gl::ARRAY_BUFFER));
-        accessors.push(json!({
-            "bufferView": views.len() - 1,
-            "componentType": gl::FLOAT,
-            "count": n,
-            "type": "VEC3",
-            "min": min,
-            "max": max,
-        }));
-        // TEXCOORD_0, already 4-aligned (12 bytes a vertex before it).
-        let start = bin.len();
-        for i in 0..n {
-            bin.extend_from_slice(&mesh.uvs[2 * i].to_le_bytes());
-            bin.extend_from_slice(&mesh.uvs[2 * i + 1].to_le_bytes());
-        }
-        views.push(view(start, bin.len() - start, gl::ARRAY_BUFFER));
-        accessors.push(json!({
-            "bufferView": views.len() - 1,
-            "componentType": gl::FLOAT,
-            "count": n,
-            "type": "VEC2",
-        }));
-
         let wide = n > MAX_U16_VERTICES;
         let mut primitives = Vec::new();
         let mut materials = Vec::new();
@@ -252,7 +333,18 @@ pub fn build(mesh: &LayerMesh, image_uri: &str, name: &str) -> Asset {
             }
         };
         let o = json.as_object_mut().expect("an object");
-        o.insert("extensionsUsed".into(), json!(["KHR_materials_unlit"]));
+        if quantized {
+            o.insert(
+                "extensionsUsed".into(),
+                json!(["KHR_materials_unlit", "KHR_mesh_quantization"]),
+            );
+            o.insert(
+                "extensionsRequired".into(),
+                json!(["KHR_mesh_quantization"]),
+            );
+        } else {
+            o.insert("extensionsUsed".into(), json!(["KHR_materials_unlit"]));
+        }
         o.insert(
             "meshes".into(),
             json!([{
@@ -333,6 +425,14 @@ pub fn malformed(mesh: &LayerMesh) -> Option<String> {
     None
 }
 
+fn refuse_format(dest: &Path, why: String) -> FileError {
+    FileError::new(
+        dest,
+        format!("cannot be written with 16-bit vertices: {why}"),
+        "write this layer with --vertex-format f32, or split it into smaller layers",
+    )
+}
+
 fn refuse(dest: &Path, why: String) -> FileError {
     FileError::new(
         dest,
@@ -369,9 +469,22 @@ pub fn write_gltf(
     dir: &Path,
     stem: &str,
 ) -> Result<Vec<PathBuf>, FileError> {
+    write_gltf_with(mesh, image_uri, dir, stem, VertexFormat::F32)
+}
+
+/// [`write_gltf`] with the vertices in `format` ([`build_with`]); refuses,
+/// naming the file, a layer too large for the format.
+pub fn write_gltf_with(
+    mesh: &LayerMesh,
+    image_uri: &str,
+    dir: &Path,
+    stem: &str,
+    format: VertexFormat,
+) -> Result<Vec<PathBuf>, FileError> {
     let [gltf, bin] = gltf_paths(dir, stem);
     malformed(mesh).map_or(Ok(()), |why| Err(refuse(&gltf, why)))?;
-    let mut asset = build(mesh, image_uri, stem);
+    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&gltf, why)))?;
+    let mut asset = build_with(mesh, image_uri, stem, format);
     let mut written = Vec::new();
     if !asset.bin.is_empty() {
         // the .bin first, so a reader never sees a new .gltf with an old .bin
@@ -393,9 +506,21 @@ pub fn write_glb(
     dir: &Path,
     stem: &str,
 ) -> Result<Vec<PathBuf>, FileError> {
+    write_glb_with(mesh, image_uri, dir, stem, VertexFormat::F32)
+}
+
+/// [`write_glb`] with the vertices in `format` ([`build_with`]).
+pub fn write_glb_with(
+    mesh: &LayerMesh,
+    image_uri: &str,
+    dir: &Path,
+    stem: &str,
+    format: VertexFormat,
+) -> Result<Vec<PathBuf>, FileError> {
     let dest = glb_path(dir, stem);
     malformed(mesh).map_or(Ok(()), |why| Err(refuse(&dest, why)))?;
-    let asset = build(mesh, image_uri, stem);
+    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&dest, why)))?;
+    let asset = build_with(mesh, image_uri, stem, format);
     write_if_changed(&dest, &to_glb(&asset))?;
     Ok(vec![dest])
 }
@@ -498,6 +623,35 @@ mod tests {
         mesh.blended.indices.clear();
         mesh.uvs.pop();
         assert!(malformed(&mesh).is_some());
+    }
+
+    /// Half-texel positions up to 2 x 32767 = 65534 fit an unsigned short
+    /// (0 to 65535); a larger layer is refused with the way out.
+    #[test]
+    fn u16_vertices_refuse_layers_past_32767_texels() {
+        let mut mesh = crate::cut::cut_layer(
+            &crate::alpha::AlphaMap::from_raw(4, 4, vec![255; 16]),
+            "a.png",
+            &crate::settings::CutSettings::default(),
+        )
+        .mesh;
+        assert_eq!(format_refusal(&mesh, VertexFormat::U16), None);
+        mesh.size = [32767, 4];
+        assert_eq!(format_refusal(&mesh, VertexFormat::U16), None);
+        mesh.size = [4, 32768];
+        let why = format_refusal(&mesh, VertexFormat::U16).unwrap();
+        assert!(why.contains("4 x 32768") && why.contains("32767"), "{why}");
+        assert_eq!(format_refusal(&mesh, VertexFormat::F32), None);
+        let dir = std::env::temp_dir().join(format!("underdraw-u16-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let e = write_gltf_with(&mesh, "a.png", &dir, "a", VertexFormat::U16).unwrap_err();
+        let text = e.to_string();
+        assert!(
+            text.contains("a.gltf") && text.contains("--vertex-format f32"),
+            "{text}"
+        );
+        assert!(!dir.join("a.gltf").exists());
+        let _ = std::fs::remove_dir_all(&dir);
     }
 
     #[test]

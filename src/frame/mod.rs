@@ -22,7 +22,12 @@
 //!   number of quads holding at least one of its fragments.
 //! * **Vertices**: the number of distinct indices a draw references, i.e.
 //!   vertex shader invocations assuming a perfect post-transform vertex
-//!   cache within a draw. **Triangles**: `indices.len() / 3`, drawn or not.
+//!   cache within a draw. **Vertices in groups of 4**: the vertices shaded
+//!   by a GPU that shades vertices in groups of 4 consecutive indices
+//!   (common practice on tile-based mobile GPUs, no source): a draw that
+//!   references any index of a group 4k..4k+3 shades the whole group (the
+//!   last group of the array only the vertices that exist).
+//!   **Triangles**: `indices.len() / 3`, drawn or not.
 //! * **Blending** changes no count; `blend` is carried for the record.
 //!
 //! `counts` in the result holds, per pixel, the fragments shaded there.
@@ -40,6 +45,10 @@ pub use spans::{measure, FrameStats, SpanBuffer};
 
 use crate::raster::{QuadTracker, Triangle};
 use serde::{Deserialize, Serialize};
+
+/// Consecutive indices a tile-based GPU shades together (common practice,
+/// no source).
+pub const VERTEX_GROUP: u32 = 4;
 
 /// One draw call: a triangle list at one constant depth.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -107,14 +116,28 @@ impl Draw {
     /// Distinct indices referenced (vertex shader invocations with a perfect
     /// post-transform cache).
     pub(crate) fn distinct_vertices(&self) -> u64 {
-        let mut seen = vec![false; self.positions.len() / 2];
-        let mut n = 0;
+        self.vertex_counts(1)
+    }
+
+    /// Vertices shaded when a GPU shades whole groups of `group`
+    /// consecutive indices: every group holding a referenced index, each
+    /// as many vertices as it has (the last may be short).
+    pub fn vertices_in_groups(&self, group: u32) -> u64 {
+        self.vertex_counts(group)
+    }
+
+    fn vertex_counts(&self, group: u32) -> u64 {
+        let n = (self.positions.len() / 2) as u64;
+        let g = group.max(1) as u64;
+        let mut seen = vec![false; n.div_ceil(g) as usize];
+        let mut count = 0;
         for &i in &self.indices {
-            if !std::mem::replace(&mut seen[i as usize], true) {
-                n += 1;
+            let k = i as u64 / g;
+            if !std::mem::replace(&mut seen[k as usize], true) {
+                count += g.min(n - k * g);
             }
         }
-        n
+        count
     }
 }
 
@@ -127,6 +150,9 @@ pub struct DrawStats {
     pub lanes: u64,
     /// Vertex shader invocations (distinct indices referenced).
     pub vertices: u64,
+    /// Vertices shaded by a GPU that shades groups of 4 consecutive indices
+    /// ([`Draw::vertices_in_groups`]).
+    pub vertices_in_groups: u64,
     /// Triangles submitted.
     pub triangles: u64,
 }
@@ -136,6 +162,7 @@ impl DrawStats {
         self.fragments += o.fragments;
         self.lanes += o.lanes;
         self.vertices += o.vertices;
+        self.vertices_in_groups += o.vertices_in_groups;
         self.triangles += o.triangles;
     }
 }
@@ -226,6 +253,7 @@ pub fn render(viewport: [u32; 2], draws: &[Draw]) -> FrameResult {
         }
         let mut st = DrawStats {
             vertices: d.distinct_vertices(),
+            vertices_in_groups: d.vertices_in_groups(VERTEX_GROUP),
             triangles: (d.indices.len() / 3) as u64,
             ..DrawStats::default()
         };
@@ -318,6 +346,29 @@ mod tests {
         let mut d = square();
         d.indices[0] = 9;
         render([8, 8], &[square(), d]);
+    }
+
+    /// Groups of 4 consecutive indices (common practice on tile-based GPUs,
+    /// no source), counted by hand.
+    #[test]
+    fn vertices_in_groups_of_4_by_hand() {
+        let with = |n: usize, indices: Vec<u32>| Draw {
+            positions: vec![0.0; 2 * n],
+            indices,
+            ..square()
+        };
+        // 0, 1, 2 share group 0: 4 shaded for 3 used
+        assert_eq!(with(8, vec![0, 1, 2]).vertices_in_groups(4), 4);
+        // 0, 4, 8 touch groups 0, 1, 2: 12 shaded for 3 used
+        assert_eq!(with(12, vec![0, 4, 8]).vertices_in_groups(4), 12);
+        // 3, 4, 5 straddle groups 0 and 1: 8
+        assert_eq!(with(8, vec![3, 4, 5]).vertices_in_groups(4), 8);
+        // the last group of a 10-vertex array holds 2: 8, 9 and 0 cost 6
+        assert_eq!(with(10, vec![8, 9, 0]).vertices_in_groups(4), 6);
+        // groups of 1 are the perfect cache's distinct indices
+        let d = with(10, vec![8, 9, 0, 0, 9, 5]);
+        assert_eq!(d.vertices_in_groups(1), 4);
+        assert_eq!(d.distinct_vertices(), 4);
     }
 
     #[test]

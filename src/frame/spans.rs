@@ -84,6 +84,9 @@ pub struct SpanBuffer {
     /// triangle's passing fragments on the previous and on the current row.
     prev: Vec<(u32, u32)>,
     cur: Vec<(u32, u32)>,
+    /// For [`SpanBuffer::measure_regions`]: one bit per quad of the
+    /// viewport, set when the current draw holds a fragment in it.
+    quads: Vec<u64>,
 }
 
 impl SpanBuffer {
@@ -97,7 +100,29 @@ impl SpanBuffer {
     /// # Panics
     /// If a draw fails [`Draw::validate`], like [`super::render`].
     pub fn measure(&mut self, viewport: [u32; 2], draws: &[Draw]) -> FrameStats {
+        self.measure_lanes(viewport, draws, false)
+    }
+
+    /// [`SpanBuffer::measure`] with each draw's lanes counted as if the draw
+    /// were one primitive: 4 per aligned 2x2 quad holding at least one of
+    /// the draw's fragments, whichever triangles they come from. Every other
+    /// number is [`SpanBuffer::measure`]'s. For draws that tile a region
+    /// with triangles of no meaning of their own (the exact floor's
+    /// rectangles, [`crate::scene::exact`]): only the region's own edges
+    /// cut quads.
+    pub fn measure_regions(&mut self, viewport: [u32; 2], draws: &[Draw]) -> FrameStats {
+        self.measure_lanes(viewport, draws, true)
+    }
+
+    fn measure_lanes(&mut self, viewport: [u32; 2], draws: &[Draw], whole: bool) -> FrameStats {
         let [width, height] = viewport;
+        // per quad, whether the current draw holds a fragment in it
+        let quad_cols = (width as usize).div_ceil(2);
+        if whole {
+            self.quads.clear();
+            self.quads
+                .resize((quad_cols * (height as usize).div_ceil(2)).div_ceil(64), 0);
+        }
         self.rows.truncate(height as usize);
         self.rows.resize_with(height as usize, Vec::new);
         for row in &mut self.rows {
@@ -117,6 +142,7 @@ impl SpanBuffer {
             }
             let mut st = DrawStats {
                 vertices: d.distinct_vertices(),
+                vertices_in_groups: d.vertices_in_groups(super::VERTEX_GROUP),
                 triangles: (d.indices.len() / 3) as u64,
                 ..DrawStats::default()
             };
@@ -125,6 +151,9 @@ impl SpanBuffer {
                 test: d.depth_test,
                 write: d.depth_write,
             };
+            if whole {
+                self.quads.fill(0);
+            }
             for t in d.indices.chunks_exact(3) {
                 let (a, b, c) = (d.vertex(t[0]), d.vertex(t[1]), d.vertex(t[2]));
                 let Some(tri) = Triangle::new(a, b, c, viewport) else {
@@ -144,6 +173,20 @@ impl SpanBuffer {
                             &mut self.cur,
                             &mut max_pixel,
                         );
+                    }
+                    if whole {
+                        let base = (y / 2) as usize * quad_cols;
+                        for &(c0, c1) in &self.cur {
+                            for c in c0..=c1 {
+                                let bit = base + c as usize;
+                                let (word, mask) = (bit / 64, 1u64 << (bit % 64));
+                                if self.quads[word] & mask == 0 {
+                                    self.quads[word] |= mask;
+                                    st.lanes += 4;
+                                }
+                            }
+                        }
+                        continue;
                     }
                     let mut quads = columns(&self.cur);
                     if y % 2 == 1 && y != first {

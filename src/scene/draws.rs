@@ -7,6 +7,18 @@
 //!   blended triangles of the mesh, all blended), back to front, no depth.
 //! * [`Strategy::Split`]: the opaque meshes front to back with depth test and
 //!   write, then the blended meshes back to front with depth test, no write.
+//! * [`Strategy::Exact`]: [`Strategy::Split`]'s frame drawn with every
+//!   layer's exact meshes ([`super::exact`]): the floor any cut can reach.
+//! * [`Strategy::Layered`]: per layer, back to front, its opaque triangles
+//!   (blending off) then its blended ones, no depth buffer: the order of a
+//!   2D renderer that cannot assign depth, on a GPU that shades everything.
+//! * [`Strategy::LayeredHsr`]: the same submission on a GPU with ideal
+//!   hidden-surface removal: a fragment is shaded only when no *later*
+//!   opaque fragment in submission order covers its pixel. Measured as an
+//!   equivalent frame: the layered draws in reverse order, all at one
+//!   depth with the LESS test, the opaque ones writing depth, so a fragment
+//!   passes exactly when no opaque fragment submitted after it covers its
+//!   pixel (the meshes of one draw never overlap).
 //!
 //! Each layer has its own depth, the front layer nearest ([`layer_depth`]).
 //! A layer with `fill_width` is drawn as copies side by side, one period
@@ -31,19 +43,44 @@ pub enum Strategy {
     /// Opaque meshes front to back with depth test and write and blending off,
     /// then blended meshes back to front with depth test, no write.
     Split,
+    /// [`Strategy::Split`] with every layer's exact meshes: the floor.
+    Exact,
+    /// Per layer back to front, opaque then blended triangles, no depth, on a
+    /// GPU without hidden-surface removal.
+    Layered,
+    /// [`Strategy::Layered`] on a GPU with ideal hidden-surface removal.
+    #[serde(rename = "layered-hsr")]
+    LayeredHsr,
 }
 
 impl Strategy {
-    /// Every strategy, in the order the report lists them.
+    /// The strategies drawn from the layers' own meshes (the exact floor
+    /// needs the exact meshes, [`super::exact`]).
     pub const ALL: [Strategy; 3] = [Strategy::Rect, Strategy::Outline, Strategy::Split];
 
+    /// The retrofit order on the two GPU classes.
+    pub const LAYERED: [Strategy; 2] = [Strategy::Layered, Strategy::LayeredHsr];
+
+    /// Every strategy, in the order the report lists them.
+    pub const EVERY: [Strategy; 6] = [
+        Strategy::Rect,
+        Strategy::Outline,
+        Strategy::Split,
+        Strategy::Exact,
+        Strategy::Layered,
+        Strategy::LayeredHsr,
+    ];
+
     /// The strategy's name in file names, reports and frame dumps: `rect`,
-    /// `outline`, `split`.
+    /// `outline`, `split`, `exact`, `layered`, `layered-hsr`.
     pub fn name(self) -> &'static str {
         match self {
             Strategy::Rect => "rect",
             Strategy::Outline => "outline",
             Strategy::Split => "split",
+            Strategy::Exact => "exact",
+            Strategy::Layered => "layered",
+            Strategy::LayeredHsr => "layered-hsr",
         }
     }
 }
@@ -182,7 +219,8 @@ pub fn layer_draw(
 }
 
 /// The draws of one frame, in submission order. `meshes[i]` is the mesh of
-/// `specs[i]`; layers are back to front.
+/// `specs[i]`; layers are back to front. For [`Strategy::Exact`] the meshes
+/// are the exact ones ([`super::exact::ExactLayer::mesh`]).
 pub fn frame_draws(
     strategy: Strategy,
     specs: &[LayerSpec],
@@ -204,7 +242,24 @@ pub fn frame_draws(
     match strategy {
         Strategy::Rect => (0..n).filter_map(|i| one(i, Part::Rect)).collect(),
         Strategy::Outline => (0..n).filter_map(|i| one(i, Part::Cover)).collect(),
-        Strategy::Split => {
+        Strategy::Layered => (0..n)
+            .flat_map(|i| [one(i, Part::Opaque), one(i, Part::Blended)])
+            .flatten()
+            .collect(),
+        Strategy::LayeredHsr => {
+            let mut draws = frame_draws(Strategy::Layered, specs, meshes, viewport, camera_x);
+            draws.reverse();
+            draws
+                .into_iter()
+                .map(|d| Draw {
+                    depth: 0.5,
+                    depth_test: true,
+                    depth_write: !d.blend,
+                    ..d
+                })
+                .collect()
+        }
+        Strategy::Split | Strategy::Exact => {
             let opaque = (0..n)
                 .rev()
                 .filter_map(|i| one(i, Part::Opaque))

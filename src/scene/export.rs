@@ -13,7 +13,13 @@
 //!    so a blended fragment behind an opaque one is rejected and the others
 //!    composite in painter's order.
 //!
-//! Invariants: the entries are exactly the non-empty draws of the
+//! Beside the passes, `layered` is another order an engine can choose
+//! instead of them, for a renderer without a depth buffer: per layer, back
+//! to front, its opaque draw (blending off) then its blended draw, no depth
+//! test or write (the [`Strategy::Layered`] frame; on a GPU with
+//! hidden-surface removal it shades what the passes shade).
+//!
+//! Invariants: the entries of `passes` are exactly the non-empty draws of the
 //! [`Strategy::Split`] frame in the same order (the scorer's model, so the
 //! report's numbers are the numbers of this list); each layer's depth is
 //! [`layer_depth`], the front layer nearest; each entry names a mesh file
@@ -25,9 +31,10 @@ use super::draws::Strategy; // named in the docs
 use super::file::Scene;
 use super::prepare::Layer;
 use crate::error::FileError;
-use crate::export::gltf::{relative_uri, write_gltf};
+use crate::export::gltf::{relative_uri, write_gltf_with};
 use crate::io::write_if_changed;
 use crate::mesh::LayerMesh;
+use crate::mesh::VertexFormat;
 use serde::{Deserialize, Serialize};
 use std::path::Path;
 
@@ -53,6 +60,11 @@ pub struct DrawList {
     pub layers: Vec<ExportedLayer>,
     /// The passes in submission order: `opaque`, then `blended`.
     pub passes: Vec<Pass>,
+    /// The other order, instead of `passes` (name `"layered"`, order
+    /// `"back-to-front"`): per layer its opaque then its blended draw, no
+    /// depth. Empty in lists written before it existed.
+    #[serde(default)]
+    pub layered: Pass,
 }
 
 /// The depth buffer's setup for the frame.
@@ -97,7 +109,7 @@ pub struct ExportedLayer {
 }
 
 /// One pass of the frame.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct Pass {
     /// `"opaque"` or `"blended"`.
@@ -188,6 +200,16 @@ pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh])
     // the order of Strategy::Split's frame (see scene::draws::frame_draws)
     let opaque = (0..n).rev().filter_map(|i| entry(i, true)).collect();
     let blended = (0..n).filter_map(|i| entry(i, false)).collect();
+    // the order of Strategy::Layered's frame, without depth
+    let layered = (0..n)
+        .flat_map(|i| [entry(i, true), entry(i, false)])
+        .flatten()
+        .map(|e| DrawEntry {
+            depth_test: false,
+            depth_write: false,
+            ..e
+        })
+        .collect();
     DrawList {
         format: DRAW_LIST_FORMAT.into(),
         version: DRAW_LIST_VERSION,
@@ -210,6 +232,11 @@ pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh])
                 draws: blended,
             },
         ],
+        layered: Pass {
+            name: "layered".into(),
+            order: "back-to-front".into(),
+            draws: layered,
+        },
     }
 }
 
@@ -222,6 +249,19 @@ pub fn export_scene(
     scene: &Scene,
     layers: &[Layer],
     meshes: &[&LayerMesh],
+    write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
+) -> Result<DrawList, FileError> {
+    export_scene_with(dir, scene, layers, meshes, VertexFormat::F32, write)
+}
+
+/// [`export_scene`] with the glTF assets' vertices in `format`
+/// ([`crate::export::gltf::build_with`]; the mesh files are the same).
+pub fn export_scene_with(
+    dir: &Path,
+    scene: &Scene,
+    layers: &[Layer],
+    meshes: &[&LayerMesh],
+    format: VertexFormat,
     write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
 ) -> Result<DrawList, FileError> {
     std::fs::create_dir_all(dir).map_err(|e| {
@@ -250,7 +290,7 @@ pub fn export_scene(
             &mesh_file,
             &serde_json::to_vec_pretty(mesh).expect("a mesh serializes"),
         )?;
-        write_gltf(mesh, &uri, dir, name)?;
+        write_gltf_with(mesh, &uri, dir, name, format)?;
         let s = &layer.spec;
         exported.push(ExportedLayer {
             name: name.clone(),

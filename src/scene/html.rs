@@ -4,6 +4,7 @@
 //! every element closed, attributes quoted) so it can be read back by an
 //! XML parser, and prints on paper (a print style sheet keeps cards whole).
 
+use super::draws::Strategy;
 use super::report::SceneReport;
 use crate::plot::xml_escape as esc;
 use std::fmt::Write;
@@ -36,9 +37,66 @@ img { max-width: 100%; height: auto; border: 1px solid #c8c8c8; }
 .cards { display: flex; flex-wrap: wrap; gap: 16px; }
 .card { border: 1px solid #a0a0a0; border-radius: 6px; padding: 12px; flex: 1 1 520px; }
 .warning { color: #8a3b00; font-weight: bold; }
+.share { width: 420px; max-width: 100%; height: 18px; border: 1px solid #555555; background: #e6e6e6; }
+.share div { height: 100%; background: #2f6fb0; }
 .swatch { display: inline-block; width: 12px; height: 12px; border: 1px solid #555555; vertical-align: middle; }
 @media print { .card, figure, table { break-inside: avoid; } body { margin: 0; } }
 ";
+
+/// The floor and the share of the possible saving, drawn as bars (overall,
+/// allocated, per layer), and what the layered order gets on each GPU class.
+fn floor_section(s: &mut String, report: &SceneReport) {
+    let bar = |s: &mut String, id: &str, label: &str, v: f64| {
+        let _ = writeln!(
+            s,
+            "<p>{label}: {v:.2}</p><div class=\"share\" id=\"{id}\" data-share=\"{v}\"><div style=\"width: {:.1}%\"></div></div>",
+            100.0 * v.clamp(0.0, 1.0)
+        );
+    };
+    let Some(share) = report.saving_share else {
+        return;
+    };
+    let _ = writeln!(s, "<h2>Share of the possible saving</h2>");
+    let _ = writeln!(
+        s,
+        "<p>The exact strategy draws every layer as exactly its safe-opaque region (opaque) and the rest of its must-cover region (blended), with unlimited vertices: the floor any cut can reach. The share is (rect - split) / (rect - exact), in fragments per frame: how much of what cutting can save the meshes save.</p>"
+    );
+    bar(s, "saving-share", "split, the whole frame", share);
+    if let Some(a) = report.allocation_saving_share {
+        bar(s, "allocation-saving-share", "the allocated budgets", a);
+    }
+    let _ = writeln!(s, "<table id=\"layer-shares\"><tr><th>layer</th><th>share</th><th>fragments / frame: rect</th><th>split</th><th>exact</th></tr>");
+    for l in &report.layers {
+        let v = l.saving_share;
+        let _ = writeln!(
+            s,
+            "<tr data-layer=\"{0}\"><td>{0}</td><td>{1}</td><td>{2:.0}</td><td>{3:.0}</td><td>{4:.0}</td></tr>",
+            esc(&l.name),
+            v.map_or("-".to_string(), |v| format!("<div class=\"share\" data-share=\"{v}\" title=\"{v:.2}\"><div style=\"width: {:.1}%\"></div></div>{v:.2}", 100.0 * v.clamp(0.0, 1.0))),
+            l.rect.fragments,
+            l.split.fragments,
+            l.exact.fragments
+        );
+    }
+    let _ = writeln!(s, "</table>");
+    let find = |st: Strategy| {
+        report
+            .strategies
+            .iter()
+            .find(|r| r.strategy == st)
+            .map(|r| r.mean_overdraw)
+    };
+    if let (Some(plain), Some(hsr), Some(split)) = (
+        find(Strategy::Layered),
+        find(Strategy::LayeredHsr),
+        find(Strategy::Split),
+    ) {
+        let _ = writeln!(
+            s,
+            "<h2>Without a depth buffer</h2>\n<p id=\"layered\">Drawn layer by layer, back to front, each layer's opaque triangles (blending off) then its blended ones, with no depth: {plain:.3} fragments per pixel on a GPU that shades every fragment (the meshes save only the transparent texels), {hsr:.3} on one with ideal hidden-surface removal (a fragment is shaded only when no later opaque fragment covers its pixel; split with depth: {split:.3}).</p>"
+        );
+    }
+}
 
 fn hex(c: [u8; 3]) -> String {
     format!("#{:02x}{:02x}{:02x}", c[0], c[1], c[2])
@@ -91,6 +149,7 @@ pub fn index_html(
         s,
         "</table>\n<p>Shader lanes (four per 2x2 quad shaded), vertices (vertex shader runs) and draws are per frame, the mean over the camera samples.</p>"
     );
+    floor_section(&mut s, report);
 
     if !heatmaps.is_empty() {
         let _ = writeln!(s, "<h2>Overdraw heatmaps</h2>\n<div class=\"pair\">");

@@ -4,6 +4,7 @@
 //! * [`file`](mod@file): the scene file and its validation ([`file::load_scene`]).
 //! * [`prepare`]: each layer's mesh, cut on the fly or read from a file.
 //! * [`draws`]: the draws of a frame per [`draws::Strategy`] and camera position.
+//! * [`exact`]: the floor, every layer drawn as exactly its regions.
 //! * [`score`]: every strategy at every camera sample measured with
 //!   [`crate::frame::measure`] (the totals of [`crate::frame::render`]
 //!   without per-pixel buffers), summarized per strategy and per layer.
@@ -14,6 +15,7 @@
 //!   (`scene --export DIR`).
 pub mod budget;
 pub mod draws;
+pub mod exact;
 pub mod export;
 pub mod file;
 pub mod html;

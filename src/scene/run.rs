@@ -4,10 +4,13 @@
 
 use super::budget::allocate_scene;
 use super::draws::{frame_draws, Strategy};
+use super::exact::exact_layers;
 use super::file::{load_scene, Scene};
 use super::prepare::prepare_layers_with;
 use super::report::{HeatmapInfo, SceneReport};
-use super::score::{render_frame, score_frames_with, summarize};
+use super::score::{
+    render_frame, saving_share, score_exact_frames_with, score_frames_with, summarize,
+};
 use crate::error::FileError;
 use crate::frame::Draw;
 use crate::heatmap::{counts_png, heatmap, rgb_png};
@@ -37,6 +40,8 @@ pub struct SceneOptions {
     pub report: Option<PathBuf>,
     /// Folder for every layer's meshes (JSON and glTF) and the draw list.
     pub export: Option<PathBuf>,
+    /// The vertex format of the exported glTF assets.
+    pub vertex_format: crate::mesh::VertexFormat,
     /// The largest image accepted.
     pub limits: crate::io::ImageLimits,
     /// Told how far the long steps are (the command line draws a bar).
@@ -67,7 +72,9 @@ pub struct FrameDump {
     /// The viewport's size in pixels, [width, height].
     pub viewport: [u32; 2],
     /// The frame's draws under each strategy, by its name (`rect`, `outline`,
-    /// `split`).
+    /// `split`, `layered`, `layered-hsr`; the last as the equivalent frame
+    /// [`Strategy::LayeredHsr`] describes: the layered draws reversed, at
+    /// one depth, the opaque ones writing it).
     pub strategies: BTreeMap<String, DumpedDraws>,
 }
 
@@ -158,24 +165,39 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
     let cams = scene.camera_positions();
+    let exact = exact_layers(&layers)?;
     let progress = opts.progress.as_deref();
+    let drawn: Vec<Strategy> = Strategy::ALL.into_iter().chain(Strategy::LAYERED).collect();
     if let Some(p) = progress {
-        p.start("camera samples", Strategy::ALL.len() * cams.len());
+        p.start("camera samples", (drawn.len() + 1) * cams.len());
     }
     let tick = || {
         if let Some(p) = progress {
             p.step();
         }
     };
-    let frames = score_frames_with(
-        &Strategy::ALL,
+    let mut frames = score_frames_with(&drawn, &specs, &meshes, scene.viewport, &cams, &tick);
+    frames.extend(score_exact_frames_with(
         &specs,
-        &meshes,
+        &exact,
         scene.viewport,
         &cams,
         &tick,
-    );
+    ));
     let (strategies, layer_reports) = summarize(&frames, &specs, &meshes, scene.viewport);
+    let fragments_of = |s: Strategy| {
+        strategies
+            .iter()
+            .find(|r| r.strategy == s)
+            .map(|r| r.per_frame.fragments)
+    };
+    let rect_fragments = fragments_of(Strategy::Rect).unwrap_or(0.0);
+    let exact_fragments = fragments_of(Strategy::Exact);
+    let share = saving_share(
+        rect_fragments,
+        fragments_of(Strategy::Split).unwrap_or(0.0),
+        exact_fragments,
+    );
 
     // heatmaps of rect and split at one camera sample, on one colour scale:
     // the sample where plain rectangles peak, the frame that costs most when
@@ -217,7 +239,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             viewport: scene.viewport,
             strategies: BTreeMap::new(),
         };
-        for s in Strategy::ALL {
+        for &s in &drawn {
             let draws = draws_at(&scene, s, &meshes, k);
             let r = crate::frame::render(scene.viewport, &draws);
             out.write(
@@ -257,9 +279,14 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             inputs: scene.inputs(),
             written: Vec::new(),
         };
-        super::export::export_scene(dir, &scene, &layers, &exported, &mut |name, bytes| {
-            to.write(name, bytes)
-        })?;
+        super::export::export_scene_with(
+            dir,
+            &scene,
+            &layers,
+            &exported,
+            opts.vertex_format,
+            &mut |name, bytes| to.write(name, bytes),
+        )?;
         out.written.extend(to.written);
     }
 
@@ -276,6 +303,10 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         layers: layer_reports,
         heatmap_sample: sample,
         heatmaps,
+        saving_share: share,
+        allocation_saving_share: allocation
+            .as_ref()
+            .and_then(|a| saving_share(rect_fragments, a.allocated.fragments, exact_fragments)),
         allocation,
         notes,
         outputs: Vec::new(),
@@ -420,6 +451,11 @@ fn write_report_page(
             (
                 "saved vs outline (fragments per frame)".into(),
                 format!("{:.0}", lr.saved_vs_outline),
+            ),
+            (
+                "share of the possible saving, (rect - split) / (rect - exact)".into(),
+                lr.saving_share
+                    .map_or("-".to_string(), |v| format!("{v:.2}")),
             ),
             (
                 "saved per vertex added (fragments per frame)".into(),

@@ -11,6 +11,7 @@
 //! of the sums.
 
 use super::draws::{frame_draws, Strategy};
+use super::exact::ExactLayer;
 use super::file::{LayerSpec, Scene};
 use crate::frame::{render, FrameResult, SpanBuffer};
 use crate::mesh::LayerMesh;
@@ -29,6 +30,10 @@ pub struct Work {
     pub lanes: f64,
     /// Vertex shader invocations: distinct indices referenced, per draw.
     pub vertices: f64,
+    /// Vertices shaded on a GPU that shades groups of 4 consecutive indices
+    /// ([`crate::frame::Draw::vertices_in_groups`]).
+    #[serde(default)]
+    pub vertices_in_groups: f64,
     /// Triangles submitted, drawn or not.
     pub triangles: f64,
     /// Draw calls.
@@ -40,6 +45,7 @@ impl Work {
         self.fragments += o.fragments;
         self.lanes += o.lanes;
         self.vertices += o.vertices;
+        self.vertices_in_groups += o.vertices_in_groups;
         self.triangles += o.triangles;
         self.draws += o.draws;
     }
@@ -47,6 +53,7 @@ impl Work {
         self.fragments *= k;
         self.lanes *= k;
         self.vertices *= k;
+        self.vertices_in_groups *= k;
         self.triangles *= k;
         self.draws *= k;
         self
@@ -94,7 +101,8 @@ pub fn score_frames(
 }
 
 /// [`score_frames`], calling `tick` once as each frame (strategy, camera
-/// sample) is scored, from any thread.
+/// sample) is scored, from any thread. [`Strategy::Exact`] is skipped here:
+/// it needs the exact meshes ([`score_exact_frames_with`]).
 pub fn score_frames_with(
     strategies: &[Strategy],
     specs: &[LayerSpec],
@@ -102,6 +110,47 @@ pub fn score_frames_with(
     viewport: [u32; 2],
     cameras: &[f64],
     tick: &(dyn Fn() + Sync),
+) -> Vec<FrameScore> {
+    let strategies: Vec<Strategy> = strategies
+        .iter()
+        .copied()
+        .filter(|&s| s != Strategy::Exact)
+        .collect();
+    score_with(&strategies, specs, meshes, viewport, cameras, tick, None)
+}
+
+/// The exact floor ([`Strategy::Exact`]) at every camera position, in
+/// parallel, with `exact[i]` the exact meshes of `specs[i]`: fragments as
+/// drawn, lanes counting each quad once per draw
+/// ([`SpanBuffer::measure_regions`]), vertices the regions' corners per
+/// copy drawn ([`ExactLayer`]).
+pub fn score_exact_frames_with(
+    specs: &[LayerSpec],
+    exact: &[ExactLayer],
+    viewport: [u32; 2],
+    cameras: &[f64],
+    tick: &(dyn Fn() + Sync),
+) -> Vec<FrameScore> {
+    let meshes: Vec<&LayerMesh> = exact.iter().map(|e| &e.mesh).collect();
+    score_with(
+        &[Strategy::Exact],
+        specs,
+        &meshes,
+        viewport,
+        cameras,
+        tick,
+        Some(exact),
+    )
+}
+
+fn score_with(
+    strategies: &[Strategy],
+    specs: &[LayerSpec],
+    meshes: &[&LayerMesh],
+    viewport: [u32; 2],
+    cameras: &[f64],
+    tick: &(dyn Fn() + Sync),
+    exact: Option<&[ExactLayer]>,
 ) -> Vec<FrameScore> {
     let index: HashMap<&str, usize> = specs
         .iter()
@@ -115,13 +164,37 @@ pub fn score_frames_with(
     jobs.par_iter()
         .map_init(SpanBuffer::new, |buf, &(strategy, sample)| {
             let draws = frame_draws(strategy, specs, meshes, viewport, cameras[sample]);
-            let r = buf.measure(viewport, &draws);
+            let r = match exact {
+                Some(_) => buf.measure_regions(viewport, &draws),
+                None => buf.measure(viewport, &draws),
+            };
             let mut per_layer = vec![Work::default(); specs.len()];
             for (d, st) in draws.iter().zip(&r.per_draw) {
-                per_layer[index[d.layer.as_str()]].add(&Work {
+                let i = index[d.layer.as_str()];
+                let vertices = match exact {
+                    // the regions' corners, once per copy drawn
+                    Some(e) => {
+                        let copies = (d.positions.len() / 2 / meshes[i].vertex_count()) as u64;
+                        copies
+                            * if d.blend {
+                                e[i].blended_vertices
+                            } else {
+                                e[i].opaque_vertices
+                            }
+                    }
+                    None => st.vertices,
+                };
+                per_layer[i].add(&Work {
                     fragments: st.fragments as f64,
                     lanes: st.lanes as f64,
-                    vertices: st.vertices as f64,
+                    vertices: vertices as f64,
+                    // the exact floor's rectangles are no real vertex array:
+                    // its corners, as if each were used (a lower bound)
+                    vertices_in_groups: if exact.is_some() {
+                        vertices as f64
+                    } else {
+                        st.vertices_in_groups as f64
+                    },
                     triangles: st.triangles as f64,
                     draws: 1.0,
                 });
@@ -142,7 +215,9 @@ pub fn score_frames_with(
 
 /// Scores a loaded scene with the given meshes (`meshes[i]` for
 /// `scene.layers[i]`): every strategy at every camera sample, summarized
-/// per strategy and per layer. This is what `underdraw scene` reports.
+/// per strategy and per layer: every strategy but the exact floor, which
+/// needs the layers' images ([`score_exact_frames_with`]; `underdraw scene`
+/// reports it too).
 ///
 /// ```
 /// use underdraw::cut::cut_layer;
@@ -168,8 +243,9 @@ pub fn score_scene(
     scene: &Scene,
     meshes: &[&LayerMesh],
 ) -> (Vec<StrategyReport>, Vec<LayerReport>) {
+    let strategies: Vec<Strategy> = Strategy::ALL.into_iter().chain(Strategy::LAYERED).collect();
     let frames = score_frames(
-        &Strategy::ALL,
+        &strategies,
         &scene.layers,
         meshes,
         scene.viewport,
@@ -195,6 +271,12 @@ pub struct StrategyReport {
     pub per_frame: Work,
     /// Vertices / triangles, over all frames.
     pub vertices_per_triangle: f64,
+    /// Vertex bytes fetched per frame (mean over the samples) with each
+    /// vertex format, by its name (`f32`, `u16`): the vertices shaded in
+    /// groups of 4 times the bytes of a vertex
+    /// ([`crate::mesh::VertexFormat::bytes_per_vertex`]).
+    #[serde(default)]
+    pub vertex_bytes: std::collections::BTreeMap<String, f64>,
 }
 
 /// One layer's numbers, per frame (means over the samples).
@@ -224,6 +306,30 @@ pub struct LayerReport {
     pub vertices_added: f64,
     /// saved_vs_rect / vertices_added (`None` when no vertex is added).
     pub saved_per_vertex: Option<f64>,
+    /// The layer's work per frame with [`Strategy::Exact`] (its exact
+    /// meshes; zero when the floor was not scored).
+    #[serde(default)]
+    pub exact: Work,
+    /// The layer's work per frame with [`Strategy::Layered`] (no
+    /// hidden-surface removal).
+    #[serde(default)]
+    pub layered: Work,
+    /// The layer's work per frame with [`Strategy::LayeredHsr`] (ideal
+    /// hidden-surface removal).
+    #[serde(default)]
+    pub layered_hsr: Work,
+    /// Share of the possible saving split reaches on this layer:
+    /// (rect - split) / (rect - exact) in fragments per frame; `None` when
+    /// the floor was not scored or saves nothing against rect.
+    #[serde(default)]
+    pub saving_share: Option<f64>,
+}
+
+/// Share of the possible saving: (rect - x) / (rect - exact), or `None`
+/// when the floor saves nothing (or was not scored: `exact` is `None`).
+pub fn saving_share(rect: f64, x: f64, exact: Option<f64>) -> Option<f64> {
+    let exact = exact?;
+    (rect - exact > 0.0).then(|| (rect - x) / (rect - exact))
 }
 
 /// Means per strategy and per layer from the frames of [`score_frames`].
@@ -236,7 +342,7 @@ pub fn summarize(
     let pixels = viewport[0] as f64 * viewport[1] as f64;
     let mut strategies = Vec::new();
     let mut layer_means: HashMap<Strategy, Vec<Work>> = HashMap::new();
-    for s in Strategy::ALL {
+    for s in Strategy::EVERY {
         let fs: Vec<&FrameScore> = frames.iter().filter(|f| f.strategy == s).collect();
         if fs.is_empty() {
             continue;
@@ -266,6 +372,15 @@ pub fn summarize(
             } else {
                 0.0
             },
+            vertex_bytes: crate::mesh::VertexFormat::ALL
+                .iter()
+                .map(|f| {
+                    (
+                        f.name().to_string(),
+                        sum.vertices_in_groups * k * f.bytes_per_vertex() as f64,
+                    )
+                })
+                .collect(),
         });
         layer_means.insert(s, layers.into_iter().map(|w| w.scaled(k)).collect());
     }
@@ -292,6 +407,16 @@ pub fn summarize(
                 saved_vs_rect,
                 vertices_added,
                 saved_per_vertex: (vertices_added > 0.0).then(|| saved_vs_rect / vertices_added),
+                exact: get(Strategy::Exact, i),
+                layered: get(Strategy::Layered, i),
+                layered_hsr: get(Strategy::LayeredHsr, i),
+                saving_share: saving_share(
+                    rect.fragments,
+                    split.fragments,
+                    layer_means
+                        .contains_key(&Strategy::Exact)
+                        .then(|| get(Strategy::Exact, i).fragments),
+                ),
             }
         })
         .collect();

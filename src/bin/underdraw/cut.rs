@@ -302,6 +302,17 @@ fn json_line(l: &LayerReport) -> serde_json::Value {
     if let Some(r) = &l.result {
         let n = CutNumbers::of_result(r);
         o["vertices"] = r.vertices.into();
+        // the vertex array's bytes (position + texture coordinate) per format
+        o["vertex_bytes"] = underdraw::mesh::VertexFormat::ALL
+            .iter()
+            .map(|f| {
+                (
+                    f.name().to_string(),
+                    serde_json::Value::from(r.vertices as u64 * f.bytes_per_vertex()),
+                )
+            })
+            .collect::<serde_json::Map<_, _>>()
+            .into();
         // null where the safe-opaque region is empty
         o["opaque_capture"] = n.capture().into();
         o["excess"] = r.excess.into();

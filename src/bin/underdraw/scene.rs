@@ -5,6 +5,7 @@ use clap::Args;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::{Arc, Mutex};
+use underdraw::mesh::VertexFormat;
 use underdraw::scene::run::{run_scene, Progress, SceneOptions};
 
 #[derive(Args)]
@@ -38,6 +39,12 @@ pub(crate) struct SceneArgs {
     /// draw with its layer, mesh, depth and blend state.
     #[arg(long, value_name = "DIR")]
     export: Option<PathBuf>,
+    /// The exported glTF assets' vertices: `f32` floats, or `u16` (positions
+    /// in half texels with the node scaled by 0.5, texture coordinates
+    /// normalized; glTF's KHR_mesh_quantization, layers up to 32767 texels
+    /// a side).
+    #[arg(long, value_name = "FORMAT", default_value = "f32", value_parser = ["f32", "u16"])]
+    vertex_format: String,
 }
 
 /// `run_scene`'s steps shown as one bar per step.
@@ -90,6 +97,11 @@ pub(crate) fn scene(
         vertex_total: args.vertex_total,
         report: args.report.clone(),
         export: args.export.clone(),
+        vertex_format: if args.vertex_format == "u16" {
+            VertexFormat::U16
+        } else {
+            VertexFormat::F32
+        },
         limits,
         progress: None,
     };
