@@ -155,6 +155,12 @@ const CASES: &[(&str, Via, i32, &str)] = &[
         2,
         "the mesh is for a 64x48 image but the image is 12x10",
     ),
+    (
+        "old-stats-key.mesh.json",
+        Via::Check("rgb.png"),
+        2,
+        "renamed stats.interior_edge_length_unflipped",
+    ),
     ("rgba8-mips.ktx2", Via::Cut, 0, ""),
     (
         "truncated.ktx2",
@@ -178,12 +184,6 @@ const CASES: &[(&str, Via, i32, &str)] = &[
     ),
     ("block-7x7.astc", Via::Cut, 2, "its ASTC block size is 7x7"),
     ("astc-4x4.ktx2", Via::Cut, 0, ""),
-    (
-        "old-stats-key.mesh.json",
-        Via::Check("rgb.png"),
-        2,
-        "renamed stats.interior_edge_length_unflipped",
-    ),
 ];
 
 #[test]

@@ -50,6 +50,9 @@ struct Exports {
     samplers: Vec<SamplerCase>,
     /// Hand-made meshes at the unsigned-short limit: (file, vertices).
     wide: Vec<(PathBuf, usize)>,
+    /// Layers cut with `--vertex-format u16` (KHR_mesh_quantization): the
+    /// mesh file and the .gltf and .glb written beside it.
+    quantized: Vec<Export>,
 }
 
 fn demo_layers() -> Vec<PathBuf> {
@@ -137,6 +140,26 @@ fn exports() -> &'static Exports {
             }
         }
 
+        // 16-bit vertices (KHR_mesh_quantization)
+        let mut quantized = Vec::new();
+        let q = root.join("u16");
+        let qb = root.join("u16-glb");
+        let quant = ["--budget", "64", "--vertex-format", "u16"];
+        cut(&images, &q, &[&quant[..], &["--format", "all"]].concat());
+        cut(
+            &images,
+            &qb,
+            &[&quant[..], &["--format", "gltf", "--glb"]].concat(),
+        );
+        for img in &images {
+            let s = stem(img);
+            quantized.push(Export {
+                mesh: q.join(format!("{s}.mesh.json")),
+                gltf: q.join(format!("{s}.gltf")),
+                glb: qb.join(format!("{s}.glb")),
+            });
+        }
+
         // sampler per filter, mip levels and wrap (Samplers; the WebGL enums)
         let button = [odd];
         let mut samplers = Vec::new();
@@ -205,6 +228,7 @@ fn exports() -> &'static Exports {
             layers,
             samplers,
             wide,
+            quantized,
         }
     })
 }
@@ -449,7 +473,90 @@ fn all_files() -> Vec<PathBuf> {
         .collect();
     v.extend(e.samplers.iter().flat_map(|c| c.files.clone()));
     v.extend(e.wide.iter().map(|(f, _)| f.clone()));
+    v.extend(
+        e.quantized
+            .iter()
+            .flat_map(|l| [l.gltf.clone(), l.glb.clone()]),
+    );
     v
+}
+
+/// `cut --vertex-format u16` writes glTF's KHR_mesh_quantization (the
+/// extension's specification, from memory: POSITION may be UNSIGNED_SHORT,
+/// TEXCOORD_0 normalized UNSIGNED_SHORT, the extension listed as required):
+/// read with the `gltf` crate (a general-purpose reader; it does not list
+/// the extension as supported, so it is read without its validation), the
+/// positions scaled by the node's scale are exactly the mesh file's, as the
+/// f32 asset has them ((x, y) to (x, -y, 0)); the .glb holds the same
+/// values. The validator test above checks every one of these assets too.
+#[test]
+fn cut_u16_vertices_dequantize_to_the_mesh_positions() {
+    let mut checked = 0;
+    for l in &exports().quantized {
+        let mesh = load_mesh(&l.mesh);
+        for file in [&l.gltf, &l.glb] {
+            let bytes = fs::read(file).unwrap();
+            let doc = gltf::Gltf::from_slice_without_validation(&bytes).unwrap();
+            let node = doc.nodes().next().unwrap();
+            let Some(gmesh) = node.mesh() else {
+                assert_eq!(mesh.vertex_count(), 0, "{file:?}");
+                continue;
+            };
+            assert!(
+                doc.extensions_required()
+                    .any(|x| x == "KHR_mesh_quantization"),
+                "{file:?}"
+            );
+            let (_, _, scale) = node.transform().decomposed();
+            let bin: Vec<u8> = match doc.blob.as_deref() {
+                Some(b) => b.to_vec(),
+                None => fs::read(file.with_extension("bin")).unwrap(),
+            };
+            let prim = gmesh.primitives().next().unwrap();
+            let acc = prim.get(&gltf::Semantic::Positions).unwrap();
+            assert_eq!(acc.data_type(), gltf::accessor::DataType::U16);
+            assert_eq!(acc.count(), mesh.vertex_count(), "{file:?}");
+            let view = acc.view().unwrap();
+            let stride = view.stride().unwrap_or(6);
+            let base = view.offset() + acc.offset();
+            for i in 0..acc.count() {
+                let at = |k: usize| {
+                    let o = base + i * stride + 2 * k;
+                    u16::from_le_bytes([bin[o], bin[o + 1]]) as f32 * scale[k]
+                };
+                let [x, y] = mesh.position(i as u32);
+                assert_eq!(
+                    [at(0), at(1), at(2)],
+                    [x, 0.0 - y, 0.0],
+                    "{file:?} vertex {i}"
+                );
+            }
+            checked += 1;
+        }
+    }
+    assert!(checked >= 16, "only {checked} quantized assets checked");
+}
+
+#[test]
+fn vertex_format_without_a_gltf_format_is_refused_with_the_fix() {
+    let dir = Path::new(env!("CARGO_TARGET_TMPDIR"))
+        .join(format!("gltf-u16-json-{}", std::process::id()));
+    let _ = fs::remove_dir_all(&dir);
+    let o = Command::new(BIN)
+        .arg("cut")
+        .arg(&demo_layers()[0])
+        .arg("--out")
+        .arg(&dir)
+        .args(["--vertex-format", "u16"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(err.contains("--format gltf"), "{err}");
+    assert!(!dir
+        .join(format!("{}.mesh.json", stem(&demo_layers()[0])))
+        .exists());
+    let _ = fs::remove_dir_all(&dir);
 }
 
 #[test]

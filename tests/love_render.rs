@@ -375,29 +375,6 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         f.save(keep.join(format!("love-split-{k}.png"))).unwrap();
     }
     println!("{}", report.join("\n"));
-
-    // the draw list's copy key under its other name (`repeat_x` is being
-    // renamed `fill_width`): the loader reads either, to the same frame
-    let text = fs::read_to_string(export.join("draw-list.json")).unwrap();
-    let (old, new) = if text.contains("\"repeat_x\"") {
-        ("\"repeat_x\"", "\"fill_width\"")
-    } else {
-        ("\"fill_width\"", "\"repeat_x\"")
-    };
-    let renamed = dir.path("renamed");
-    fs::create_dir_all(&renamed).unwrap();
-    for entry in fs::read_dir(&export).unwrap() {
-        let p = entry.unwrap().path();
-        fs::copy(&p, renamed.join(p.file_name().unwrap())).unwrap();
-    }
-    fs::write(renamed.join("draw-list.json"), text.replace(old, new)).unwrap();
-    let k = CAMERAS.len() - 1;
-    let png = dir.path("renamed.png");
-    love_frame(&renamed, CAMERAS[k], &png, false);
-    assert!(
-        read_rgba(&png) == split_frames[k],
-        "the draw list with {new} instead of {old} draws another frame"
-    );
 }
 
 /// A LÖVE program without a window (no display needed) that decodes each

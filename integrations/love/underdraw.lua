@@ -213,7 +213,7 @@ local function vertex_map(list, n, path, which)
   return map
 end
 
--- Loads a mesh file (`underdraw.layer` version 1) and the PNG it was cut
+-- Loads a mesh file (`underdraw.layer` version 2) and the PNG it was cut
 -- from (`image_path`). Returns a table:
 --   size = {w, h} texels; texture = the Image, filtered and wrapped as the
 --   mesh was cut for; vertices = the Mesh holding the one vertex array;
@@ -221,8 +221,8 @@ end
 --   nil when the list is empty); rect = the layer's plain rectangle.
 function underdraw.load_mesh(path, image_path)
   local m = read_json(path, "give a mesh file written by underdraw")
-  if m.format ~= "underdraw.layer" or m.version ~= 1 then
-    bad(path, string.format("is format %s version %s, not underdraw.layer version 1",
+  if m.format ~= "underdraw.layer" or m.version ~= 2 then
+    bad(path, string.format("is format %s version %s, not underdraw.layer version 2",
       tostring(m.format), tostring(m.version)), "give a mesh file written by underdraw")
   end
   local w, h = m.size[1], m.size[2]
@@ -290,7 +290,7 @@ end
 ---------------------------------------------------------------------------
 -- Placement: a texel (tx, ty) lands on screen at
 --   x = position.x + scale * tx - camera_x * parallax,  y = position.y + scale * ty
--- and a layer with fill_width (repeat_x in older lists) is drawn as copies
+-- and a layer with fill_width is drawn as copies
 -- side by side, one period (scale * width) apart, as many as reach the
 -- viewport (the same copies the scorer draws).
 
@@ -346,8 +346,8 @@ Scene.__index = Scene
 function underdraw.load_scene(dir)
   local path = join(dir, "draw-list.json")
   local list = read_json(path, "give the folder written by `underdraw scene --export`")
-  if list.format ~= "underdraw.draw-list" or list.version ~= 1 then
-    bad(path, string.format("is format %s version %s, not underdraw.draw-list version 1",
+  if list.format ~= "underdraw.draw-list" or list.version ~= 2 then
+    bad(path, string.format("is format %s version %s, not underdraw.draw-list version 2",
       tostring(list.format), tostring(list.version)), "export the scene again")
   end
   local depth = list.depth or {}
@@ -364,8 +364,11 @@ function underdraw.load_scene(dir)
     shader = love.graphics.newShader(underdraw.depth_shader_code),
   }, Scene)
   for i, l in ipairs(list.layers) do
+    if l.repeat_x ~= nil then
+      bad(path, "layer " .. tostring(l.name) .. " has the key \"repeat_x\", which draw list version 2 renamed \"fill_width\"",
+        "export the scene again")
+    end
     local fill = l.fill_width
-    if fill == nil then fill = l.repeat_x end -- lists written before the rename
     local layer = underdraw.load_mesh(join(dir, l.mesh), join(dir, uri_path(l.image)))
     layer.name = l.name
     layer.position = { l.position[1], l.position[2] }

@@ -14,7 +14,9 @@ use super::{Job, Outputs};
 use crate::alpha::Sampled;
 use crate::cut::{cut_layer, cut_sampled};
 use crate::error::FileError;
-use crate::export::gltf::{build, encode_uri, malformed, relative_uri, to_glb};
+use crate::export::gltf::{
+    build_with, encode_uri, format_refusal, malformed, relative_uri, to_glb,
+};
 use crate::io::{decode_layer, decode_texture, is_texture, ImageLimits};
 use std::path::{Path, PathBuf};
 
@@ -255,7 +257,17 @@ pub(crate) fn run_layer(
                 "please report it with this file",
             ));
         }
-        let asset = build(mesh, uri, &job.stem);
+        if let Some(why) = format_refusal(mesh, outputs.vertex_format) {
+            return Err(FileError::new(
+                &job.input,
+                format!(
+                    "cannot be exported to glTF with {} vertices: {why}",
+                    outputs.vertex_format.name()
+                ),
+                "export it with --vertex-format f32",
+            ));
+        }
+        let asset = build_with(mesh, uri, &job.stem, outputs.vertex_format);
         if outputs.gltf {
             let mut json = asset.json.clone();
             // an empty layer has no buffer, and no .bin is written for it

@@ -88,6 +88,14 @@ pub struct Outputs {
     pub glb: bool,
     /// `<stem>.preview.png`.
     pub preview: bool,
+    /// How the glTF assets store their vertices (recorded only when not
+    /// the default, so manifests of f32 runs keep their bytes).
+    #[serde(default, skip_serializing_if = "is_f32")]
+    pub vertex_format: crate::mesh::VertexFormat,
+}
+
+fn is_f32(f: &crate::mesh::VertexFormat) -> bool {
+    *f == crate::mesh::VertexFormat::F32
 }
 
 /// A batch as asked for.

@@ -1,7 +1,7 @@
 //! `underdraw cut`: layers and folders in, mesh files and glTF assets out
 //! (the work is `underdraw::batch`; this parses, calls it and prints).
 
-use crate::{bar, error, CutOptions, FilterArg, Print, WrapArg};
+use crate::{bar, error, CutOptions, FilterArg, Print, VertexFormatArg, WrapArg};
 use clap::parser::ValueSource;
 use clap::{ArgMatches, Args, ValueEnum};
 use std::path::PathBuf;
@@ -78,6 +78,10 @@ pub(crate) struct CutArgs {
     /// + `<stem>.bin`. Needs `--format gltf` or `all`.
     #[arg(long)]
     glb: bool,
+    /// How the glTF assets store their vertices. Needs `--format gltf` or
+    /// `all`.
+    #[arg(long, value_enum, default_value = "f32")]
+    vertex_format: VertexFormatArg,
     /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
     /// with the opaque mesh tinted blue and the blended one orange (lightly,
     /// so the art shows), their edges on top, the regions' outlines dotted,
@@ -136,6 +140,10 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         error("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
         return ExitCode::from(2);
     }
+    if args.vertex_format != VertexFormatArg::F32 && args.format == FormatArg::Json {
+        error("--vertex-format chooses how the glTF asset stores its vertices, but --format json writes none\n  hint: add --format gltf or --format all");
+        return ExitCode::from(2);
+    }
     let gltf = args.format != FormatArg::Json;
     let request = batch::Request {
         inputs: args.images.clone(),
@@ -150,6 +158,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
             gltf: gltf && !args.glb,
             glb: gltf && args.glb,
             preview: args.preview,
+            vertex_format: args.vertex_format.format(),
         },
         texture: args.texture.clone(),
     };

@@ -148,6 +148,24 @@ pub(crate) enum WrapArg {
     Xy,
 }
 
+#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub(crate) enum VertexFormatArg {
+    /// 32-bit floats: position and texture coordinate, 16 bytes a vertex.
+    F32,
+    /// 16-bit: positions in half texels, texture coordinates normalized, 8 bytes a vertex (glTF's KHR_mesh_quantization; layers up to 32767 texels a side).
+    U16,
+}
+
+impl VertexFormatArg {
+    /// The library's vertex format.
+    pub(crate) fn format(self) -> underdraw::mesh::VertexFormat {
+        match self {
+            VertexFormatArg::F32 => underdraw::mesh::VertexFormat::F32,
+            VertexFormatArg::U16 => underdraw::mesh::VertexFormat::U16,
+        }
+    }
+}
+
 /// The cut settings other than the budget.
 #[derive(Args)]
 pub(crate) struct CutOptions {

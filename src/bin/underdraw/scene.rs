@@ -1,11 +1,10 @@
 //! `underdraw scene`: score a parallax scene on the simulated GPU.
 
-use crate::{bar, error, Print};
+use crate::{bar, error, Print, VertexFormatArg};
 use clap::Args;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use std::sync::{Arc, Mutex};
-use underdraw::mesh::VertexFormat;
 use underdraw::scene::run::{run_scene, Progress, SceneOptions};
 
 #[derive(Args)]
@@ -39,12 +38,9 @@ pub(crate) struct SceneArgs {
     /// draw with its layer, mesh, depth and blend state.
     #[arg(long, value_name = "DIR")]
     export: Option<PathBuf>,
-    /// The exported glTF assets' vertices: `f32` floats, or `u16` (positions
-    /// in half texels with the node scaled by 0.5, texture coordinates
-    /// normalized; glTF's KHR_mesh_quantization, layers up to 32767 texels
-    /// a side).
-    #[arg(long, value_name = "FORMAT", default_value = "f32", value_parser = ["f32", "u16"])]
-    vertex_format: String,
+    /// How the exported glTF assets store their vertices.
+    #[arg(long, value_enum, default_value = "f32")]
+    vertex_format: VertexFormatArg,
 }
 
 /// `run_scene`'s steps shown as one bar per step.
@@ -97,11 +93,7 @@ pub(crate) fn scene(
         vertex_total: args.vertex_total,
         report: args.report.clone(),
         export: args.export.clone(),
-        vertex_format: if args.vertex_format == "u16" {
-            VertexFormat::U16
-        } else {
-            VertexFormat::F32
-        },
+        vertex_format: args.vertex_format.format(),
         limits,
         progress: None,
     };
