@@ -208,20 +208,15 @@ fn main() {
                         eprintln!("FALLBACK {} {fname} {budget}: {n}", layer.name);
                     }
                     let s = &out.mesh.stats;
-                    let excess = if s.must_cover_area > 0.0 {
-                        s.excess() / s.must_cover_area
-                    } else {
-                        0.0
-                    };
                     let rect = (layer.map.width * layer.map.height) as f64;
                     let row = Row {
                         vertices: s.vertices,
                         capture: s.opaque_capture(),
-                        excess,
+                        excess: s.excess_share(),
                         saving: (s.opaque_area + rect - s.covered_area) / rect,
                         ms,
                         short: s.vertices + 2 < budget
-                            && (s.opaque_capture() < 0.99 || excess > 0.01),
+                            && (s.opaque_capture() < 0.99 || s.excess_share() > 0.01),
                     };
                     if args.layers {
                         println!(

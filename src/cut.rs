@@ -171,12 +171,7 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
         }
     };
     let s = &mesh.stats;
-    let excess = if s.must_cover_area > 0.0 {
-        s.excess() / s.must_cover_area
-    } else {
-        0.0
-    };
-    if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || excess > 0.01) {
+    if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || s.excess_share() > 0.01) {
         notes.push(format!(
             "stopped at {} of {} vertices: no further vertex the fitter tried gains area \
              (an island or hole given up whole is not rebuilt)",

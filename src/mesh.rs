@@ -97,6 +97,15 @@ impl MeshStats {
     pub fn excess(&self) -> f64 {
         self.covered_area - self.must_cover_area
     }
+    /// [`excess`](Self::excess) as a share of the must-cover area (0 when
+    /// that is empty).
+    pub fn excess_share(&self) -> f64 {
+        if self.must_cover_area > 0.0 {
+            self.excess() / self.must_cover_area
+        } else {
+            0.0
+        }
+    }
 }
 
 /// How a vertex is stored for the GPU: a position and a texture coordinate.

@@ -144,8 +144,8 @@ impl CutNumbers {
 /// how much they cover beyond it (texels, whole numbers; areas are
 /// multiples of a quarter texel, so rounding hides at most half a texel).
 pub fn check_summary(r: &crate::check::ContractReport) -> String {
-    let inside = r.must_cover_area - r.uncovered;
-    let beyond = (r.covered_area - inside).max(0.0);
+    let inside = r.must_cover_covered();
+    let beyond = r.beyond_must_cover().max(0.0);
     let share = |a: f64, of: f64| {
         if of > 0.0 {
             format!("{:.1}%", 100.0 * a / of)

@@ -23,13 +23,13 @@ use underdraw::alpha::AlphaMap;
 use underdraw::check::regions_for_check;
 use underdraw::cut::cut_layer;
 use underdraw::io::load_alpha;
-use underdraw::mesh::LayerMesh;
 use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
 
 /// Points closer than this to a triangle edge are skipped (measure zero).
 const EDGE_EPS: f64 = 1e-6;
 
 mod common;
+use common::triangles::{inset, triangles, Tri};
 use common::Rng;
 
 // ------------------------------------------------------------- the sampler
@@ -155,37 +155,6 @@ impl Sampler {
 }
 
 // ------------------------------------------------------------- triangles
-
-type Tri = [[f64; 2]; 3];
-
-fn triangles(m: &LayerMesh, indices: &[u32]) -> Vec<Tri> {
-    let pos = |i: u32| {
-        let [x, y] = m.position(i);
-        [x as f64, y as f64]
-    };
-    indices
-        .chunks(3)
-        .map(|t| [pos(t[0]), pos(t[1]), pos(t[2])])
-        .collect()
-}
-
-/// Smallest signed distance from `p` to the triangle's edge lines, positive
-/// inside (either winding).
-fn inset(t: &Tri, p: [f64; 2]) -> f64 {
-    let twice =
-        (t[1][0] - t[0][0]) * (t[2][1] - t[0][1]) - (t[2][0] - t[0][0]) * (t[1][1] - t[0][1]);
-    if twice == 0.0 {
-        return f64::NEG_INFINITY; // degenerate: covers nothing
-    }
-    let sign = twice.signum();
-    (0..3)
-        .map(|k| {
-            let (a, b) = (t[k], t[(k + 1) % 3]);
-            let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
-            sign * (dx * (p[1] - a[1]) - dy * (p[0] - a[0])) / (dx * dx + dy * dy).sqrt()
-        })
-        .fold(f64::INFINITY, f64::min)
-}
 
 fn area(t: &Tri) -> f64 {
     ((t[1][0] - t[0][0]) * (t[2][1] - t[0][1]) - (t[2][0] - t[0][0]) * (t[1][1] - t[0][1])).abs()

@@ -28,6 +28,7 @@ use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap
 
 mod common;
 use common::ktx2::{dfd_for_block, ktx2_file, rgba8_ktx2, Level};
+use common::triangles::{inset, triangles, Tri};
 use common::{Rng, TempDir};
 
 fn root() -> PathBuf {
@@ -131,35 +132,6 @@ fn as_rgba8_file(levels: &[AlphaMap]) -> Vec<u8> {
 }
 
 // ------------------------------------------------------------- the sampler
-
-type Tri = [[f64; 2]; 3];
-
-fn triangles(m: &LayerMesh, indices: &[u32]) -> Vec<Tri> {
-    let pos = |i: u32| {
-        let [x, y] = m.position(i);
-        [x as f64, y as f64]
-    };
-    indices
-        .chunks(3)
-        .map(|t| [pos(t[0]), pos(t[1]), pos(t[2])])
-        .collect()
-}
-
-/// Smallest signed distance from `p` to the triangle's edge lines, positive inside.
-fn inset(t: &Tri, p: [f64; 2]) -> f64 {
-    let twice =
-        (t[1][0] - t[0][0]) * (t[2][1] - t[0][1]) - (t[2][0] - t[0][0]) * (t[1][1] - t[0][1]);
-    if twice == 0.0 {
-        return f64::NEG_INFINITY;
-    }
-    (0..3)
-        .map(|k| {
-            let (a, b) = (t[k], t[(k + 1) % 3]);
-            let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
-            twice.signum() * (dx * (p[1] - a[1]) - dy * (p[0] - a[0])) / dx.hypot(dy)
-        })
-        .fold(f64::INFINITY, f64::min)
-}
 
 /// The level texels a sample at `p` (level-0 texel units) reads with
 /// non-zero weight on one axis of `n` level texels, each `s` level-0

@@ -89,6 +89,16 @@ fn texels(a: f64) -> String {
 }
 
 impl ContractReport {
+    /// Area of the must-cover region the meshes cover, texels.
+    pub fn must_cover_covered(&self) -> f64 {
+        self.must_cover_area - self.uncovered
+    }
+
+    /// Area the meshes cover beyond the must-cover region, texels.
+    pub fn beyond_must_cover(&self) -> f64 {
+        self.covered_area - self.must_cover_covered()
+    }
+
     /// True when the contract holds (areas within [`AREA_TOLERANCE`]).
     pub fn holds(&self) -> bool {
         self.violations().is_empty()

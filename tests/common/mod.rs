@@ -2,6 +2,7 @@
 #![allow(dead_code)]
 
 pub mod ktx2;
+pub mod triangles;
 
 /// splitmix64 (common practice, no source): a small deterministic generator.
 pub struct Rng(pub u64);

@@ -72,8 +72,8 @@ pub(crate) fn check(
             "safe_area": report.safe_area,
             "covered_area": report.covered_area,
             "must_cover_area": report.must_cover_area,
-            "must_cover_covered": report.must_cover_area - report.uncovered,
-            "beyond_must_cover": report.covered_area - (report.must_cover_area - report.uncovered),
+            "must_cover_covered": report.must_cover_covered(),
+            "beyond_must_cover": report.beyond_must_cover(),
             "violations": violations,
         });
         if let Some(d) = &described {
