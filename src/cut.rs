@@ -11,14 +11,12 @@ use crate::alpha::{
     analyze_runs, must_cover_sampled, safe_opaque_sampled, AlphaMap, RegionStats, Regions, Sampled,
 };
 use crate::check::check_mesh_sampled;
-use crate::fit::{open_holes_in_runs, Class, Fit, Fitter, Prepared};
-use crate::mask::RowRuns;
+use crate::fit::{fit_outlines, prepare_cover, Class, Fit};
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
 use crate::triangulate::{triangulate, Triangulation};
 use crate::vertex_order::order_vertices;
-use rayon::prelude::*;
 
 /// A cut layer and what the user should know about it.
 #[derive(Clone, Debug)]
@@ -45,61 +43,8 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
     let regions = Regions::from_runs(&runs);
     let (safe, cover, _) = runs;
     let cover = prepare_cover(cover);
-    let fit = fit_safe(safe, &cover, settings.budget);
+    let fit = fit_outlines(safe, &cover, settings.budget);
     Outlines { regions, fit }
-}
-
-/// The must-cover region's runs (consumed: its pinches are filled in
-/// place), prepared for fitting.
-fn prepare_cover(mut cover: RowRuns) -> Prepared {
-    cover.fill_pinches();
-    Prepared::from_runs(cover, false)
-}
-
-/// Fits the safe region's runs (consumed) against the prepared must-cover
-/// region to `budget`.
-fn fit_safe(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
-    safe.remove_pinches();
-    let plain = Prepared::from_runs(safe, true);
-    // An island with more holes than the budget can keep may do better as
-    // one ring with notches: then also try the safe region with its holes
-    // opened (on its runs). Each region is fitted with both rankings of
-    // large edits; the best result (opaque area minus covering area) wins.
-    // Every variant ends by spending what is left of the budget and
-    // exchanging vertices while that gains area (`Fitter::fit`).
-    let opened = plain.has_holes().then(|| {
-        let mut runs = open_holes_in_runs(plain.runs());
-        runs.remove_pinches();
-        Prepared::from_runs(runs, true)
-    });
-    // Where the outlines coincide (hard edges), the greedy edits also run
-    // without counting a position given up by one class as half saved.
-    let mut variants: Vec<(&Prepared, bool, bool)> = vec![
-        (&plain, true, true),
-        (&plain, false, true),
-        (&plain, true, false),
-    ];
-    if let Some(o) = &opened {
-        variants.push((o, true, true));
-        variants.push((o, false, true));
-    }
-    let results: Vec<(i64, Fit)> = variants
-        .par_iter()
-        .map(|&(safe, cap, credit)| {
-            let mut fitter = Fitter::new(safe, cover);
-            fitter.set_cap_savings(cap);
-            fitter.set_share_credit(credit);
-            fitter.fit(budget);
-            (fitter.objective(), fitter.result())
-        })
-        .collect();
-    // the first of the best, so the choice does not depend on scheduling
-    results
-        .into_iter()
-        .enumerate()
-        .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
-        .map(|(_, (_, fit))| fit)
-        .expect("at least one variant")
 }
 
 /// Cuts one layer into its opaque and blended meshes.
@@ -128,7 +73,7 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
     let (cover_mask, cover_area) = must_cover_sampled(sampled, settings);
     let cover = prepare_cover(cover_mask);
     let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
-    let fit = fit_safe(safe, &cover, settings.budget);
+    let fit = fit_outlines(safe, &cover, settings.budget);
     drop(cover);
     let regions = RegionStats::new(map, settings.alpha, safe_area, cover_area);
     let mut notes = Vec::new();

@@ -32,9 +32,11 @@ mod island_edits;
 mod queue;
 mod rects;
 mod refine;
+mod variants;
 mod vertex_edits;
 
 pub use holes::{open_holes, open_holes_in_runs};
+pub use variants::{fit_outlines, prepare_cover};
 
 pub use geom::orient;
 
