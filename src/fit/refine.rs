@@ -24,6 +24,12 @@ impl Fitter<'_> {
     /// then its gain in twice-area units (opaque area gained or covering
     /// area given up).
     fn insert_gain(&self, u: u32, p: Point) -> Option<i64> {
+        self.insert_gain_over(u, p, 0)
+    }
+
+    /// [`Self::insert_gain`] when it exceeds `floor` (>= 0); `None` also
+    /// when it does not, without the containment tests.
+    fn insert_gain_over(&self, u: u32, p: Point, floor: i64) -> Option<i64> {
         let vu = &self.verts[u as usize];
         let w = vu.next;
         let (pu, pw) = (vu.p, self.verts[w as usize].p);
@@ -32,7 +38,7 @@ impl Fitter<'_> {
         }
         let class = self.rings[vu.ring as usize].class;
         let gain = -Self::sign(class) * orient(pu, p, pw);
-        if gain <= 0 {
+        if gain <= floor {
             return None;
         }
         let tri = [pu, p, pw];
@@ -126,11 +132,10 @@ impl Fitter<'_> {
                     let mut moved = false;
                     for dir in [[step, 0], [-step, 0], [0, step], [0, -step]] {
                         let q = [p[0] + dir[0], p[1] + dir[1]];
-                        if let Some(gq) = self.insert_gain(u, q) {
-                            if gq > g {
-                                (g, p) = (gq, q);
-                                moved = true;
-                            }
+                        // only a larger gain is worth the containment tests
+                        if let Some(gq) = self.insert_gain_over(u, q, g) {
+                            (g, p) = (gq, q);
+                            moved = true;
                         }
                     }
                     if !moved {
