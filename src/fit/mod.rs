@@ -438,6 +438,12 @@ impl<'a> Fitter<'a> {
     /// vertices while that gains area.
     pub fn spend_rest(&mut self, budget: usize) {
         self.refine(budget, 4 * budget);
+        // budget the insertions could not spend: opaque islands the greedy
+        // edits dropped whole come back as their largest rectangles while
+        // they fit, and the rest is spent again
+        if self.rebuild_dropped_islands(budget) {
+            self.refine(budget, 4 * budget);
+        }
         debug_assert!(self.distinct <= budget);
     }
 
