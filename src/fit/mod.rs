@@ -122,6 +122,9 @@ struct Comp {
     class: Class,
     /// The largest rectangle inside the island (opaque), a stand-in.
     rect: Option<[i64; 4]>,
+    /// The same rectangle, kept after the rectangle edit used it: what an
+    /// island dropped whole comes back as.
+    largest: Option<[i64; 4]>,
     rings: Vec<u32>,
     area2: i64,
     version: u32,
@@ -234,6 +237,7 @@ impl<'a> Fitter<'a> {
                     f.comps.push(Comp {
                         class,
                         rect,
+                        largest: rect,
                         rings: Vec::new(),
                         area2: 0,
                         version: 0,

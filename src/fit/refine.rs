@@ -12,6 +12,12 @@
 //! keeps the triangle valid (doubling, then bisection: the triangles along
 //! one normal are nested), then moved on the lattice while the area grows
 //! and the triangle stays valid.
+//!
+//! When the insertions leave budget unused, opaque islands the greedy edits
+//! dropped whole come back as their largest rectangles (four vertices each,
+//! inside the safe region by construction) where they fit and touch no
+//! other opaque ring, and the rest is spent again. Holes given up whole are
+//! not rebuilt.
 
 use super::geom::segments_touch;
 use super::island_edits::rect_points;
@@ -379,7 +385,7 @@ impl Fitter<'_> {
         let mut dropped: Vec<(i64, u32)> = (0..self.comps.len() as u32)
             .filter_map(|c| {
                 let comp = &self.comps[c as usize];
-                let r = comp.rect?;
+                let r = comp.largest?;
                 let area = (r[2] - r[0]) * (r[3] - r[1]);
                 (!comp.alive && comp.class == Class::Opaque && area > 0).then_some((area, c))
             })
@@ -388,7 +394,7 @@ impl Fitter<'_> {
         dropped.sort_unstable_by_key(|&(a, c)| (Reverse(a), c));
         let mut any = false;
         for (_, c) in dropped {
-            let r = self.comps[c as usize].rect.expect("a rectangle");
+            let r = self.comps[c as usize].largest.expect("a rectangle");
             let added = rect_points(r)
                 .iter()
                 .filter(|&&p| self.refs_at(p) == 0)
