@@ -9,15 +9,12 @@
 //! caught by [`catch_layer`] and becomes that layer's error.
 
 use super::manifest::{sha256_hex, Entry, LayerResult, OutputFile};
-use super::write::commit;
 use super::{Job, Outputs};
 use crate::alpha::Sampled;
 use crate::cut::{cut_layer, cut_sampled};
 use crate::error::FileError;
-use crate::export::gltf::{
-    build_with, encode_uri, format_refusal, malformed, relative_uri, to_glb,
-};
-use crate::io::{decode_layer, decode_texture, is_texture, ImageLimits};
+use crate::export::gltf::{format_refusal, glb_file, gltf_files, malformed, relative_uri};
+use crate::io::{decode_layer, decode_rgba, decode_texture, is_texture, ImageLimits, OutputFolder};
 use std::path::{Path, PathBuf};
 
 /// Widest preview written, pixels.
@@ -267,32 +264,21 @@ pub(crate) fn run_layer(
                 "export it with --vertex-format f32",
             ));
         }
-        let asset = build_with(mesh, uri, &job.stem, outputs.vertex_format);
+        // the glTF files beside the mesh file, in the key's subfolder
+        let folder = &base[..base.len() - job.stem.len()];
+        let (at, format) = (dir.as_path(), outputs.vertex_format);
         if outputs.gltf {
-            let mut json = asset.json.clone();
-            // an empty layer has no buffer, and no .bin is written for it
-            if !asset.bin.is_empty() {
-                json["buffers"][0]["uri"] =
-                    serde_json::json!(encode_uri(&format!("{}.bin", job.stem)));
-                files.push((format!("{base}.bin"), asset.bin.clone()));
+            for (name, bytes) in gltf_files(mesh, uri, at, &job.stem, format)? {
+                files.push((format!("{folder}{name}"), bytes));
             }
-            let text = serde_json::to_vec_pretty(&json).expect("glTF JSON serializes");
-            files.push((format!("{base}.gltf"), text));
         }
         if outputs.glb {
-            files.push((format!("{base}.glb"), to_glb(&asset)));
+            let (name, bytes) = glb_file(mesh, uri, at, &job.stem, format)?;
+            files.push((format!("{folder}{name}"), bytes));
         }
     }
     if outputs.preview {
-        let rgba = image::load_from_memory_with_format(&bytes, image::ImageFormat::Png)
-            .map_err(|e| {
-                FileError::new(
-                    &job.input,
-                    format!("cannot be read ({e})"),
-                    "check the file",
-                )
-            })?
-            .to_rgba8();
+        let rgba = decode_rgba(&job.input, &bytes, limits)?;
         let img = crate::preview::render_preview(&rgba, mesh, PREVIEW_WIDTH);
         files.push((format!("{base}.preview.png"), crate::heatmap::rgba_png(img)));
     }
@@ -303,11 +289,15 @@ pub(crate) fn run_layer(
             sha256: sha256_hex(data),
         })
         .collect();
-    let written: Vec<(PathBuf, Vec<u8>)> = files
-        .into_iter()
-        .map(|(rel, data)| (out.join(rel), data))
+    let inputs = std::iter::once(job.input.clone())
+        .chain(job.texture.clone())
         .collect();
-    commit(&written)?;
+    OutputFolder::open(out, inputs)
+        .with_refusal(
+            "would be overwritten by its own output file",
+            "choose another --out folder",
+        )
+        .commit(&files)?;
     let s = &mesh.stats;
     let entry = Entry {
         input: job.relative.clone(),

@@ -19,7 +19,7 @@
 //! - an input that gives no layer (a folder without PNG files, or whose
 //!   PNG files the patterns all leave out) is an error of the plan
 //!   ([`Plan::empty`]), naming it;
-//! - each layer's outputs are written together ([`write::commit`]), and its
+//! - each layer's outputs are written together ([`crate::io::OutputFolder::commit`]), and its
 //!   manifest entry ([`manifest`]) is recorded only after they are all in
 //!   place; the manifest is written atomically after each finished layer
 //!   (at most once a second) and at the end, keeping the entries of layers
@@ -65,7 +65,6 @@ pub mod manifest;
 pub mod run;
 pub mod settings_file;
 pub mod walk;
-pub mod write;
 
 pub use layer::catch_layer;
 pub use run::{prepare_out, run, BatchReport, LayerReport, RunOptions, Status};

@@ -14,7 +14,7 @@ use super::score::{
 use crate::error::FileError;
 use crate::frame::Draw;
 use crate::heatmap::{counts_png, heatmap, rgb_png};
-use crate::io::write_if_changed;
+use crate::io::OutputFolder;
 use crate::mesh::LayerMesh;
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
@@ -86,34 +86,19 @@ pub struct DumpedDraws {
     pub draws: Vec<Draw>,
 }
 
-/// Writes outputs into one folder, refusing to overwrite an input.
-struct Outputs {
-    dir: PathBuf,
-    inputs: Vec<PathBuf>,
-    written: Vec<String>,
-}
-
-impl Outputs {
-    fn write(&mut self, name: &str, bytes: &[u8]) -> Result<(), FileError> {
-        let dest = self.dir.join(name);
-        if let Ok(d) = dest.canonicalize() {
-            if self
-                .inputs
-                .iter()
-                .any(|i| i.canonicalize().is_ok_and(|i| i == d))
-            {
-                return Err(FileError::new(
-                    &dest,
-                    "is one of the scene's inputs and would be overwritten",
-                    "choose another --out folder",
-                ));
-            }
-        }
-        // an output with the same bytes is left untouched (its time too)
-        write_if_changed(&dest, bytes)?;
-        self.written.push(dest.display().to_string());
-        Ok(())
-    }
+/// The scene's output folder `dir`, refusing to write over its inputs.
+fn scene_folder(
+    scene: &Scene,
+    dir: &Path,
+    what: &str,
+    hint: &str,
+) -> Result<OutputFolder, FileError> {
+    Ok(
+        OutputFolder::create(dir, scene.inputs(), what, hint)?.with_refusal(
+            "is one of the scene's inputs and would be overwritten",
+            "choose another --out folder",
+        ),
+    )
 }
 
 /// The frame of `strategy` at camera sample `k`'s draws.
@@ -149,18 +134,12 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             ));
         }
     }
-    std::fs::create_dir_all(&opts.out).map_err(|e| {
-        FileError::new(
-            &opts.out,
-            format!("the output folder cannot be created ({e})"),
-            "choose a writable --out folder",
-        )
-    })?;
-    let mut out = Outputs {
-        dir: opts.out.clone(),
-        inputs: scene.inputs(),
-        written: Vec::new(),
-    };
+    let mut out = scene_folder(
+        &scene,
+        &opts.out,
+        "output folder",
+        "choose a writable --out folder",
+    )?;
     let layers = prepare_layers_with(&scene, &opts.limits)?;
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
@@ -254,6 +233,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     }
 
     let mut chosen: Option<Vec<LayerMesh>> = None;
+    let mut exported_files = Vec::new();
     let allocation = match opts.vertex_total {
         None => None,
         Some(total) => {
@@ -274,20 +254,16 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             Some(m) => m.iter().collect(),
             None => meshes.clone(),
         };
-        let mut to = Outputs {
-            dir: dir.clone(),
-            inputs: scene.inputs(),
-            written: Vec::new(),
-        };
-        super::export::export_scene_with(
-            dir,
+        let mut to = scene_folder(
             &scene,
-            &layers,
-            &exported,
-            opts.vertex_format,
-            &mut |name, bytes| to.write(name, bytes),
+            dir,
+            "export folder",
+            "choose a writable --export folder",
         )?;
-        out.written.extend(to.written);
+        let (_, files) =
+            super::export::export_scene_with(dir, &scene, &layers, &exported, opts.vertex_format)?;
+        to.write_all(&files)?;
+        exported_files = to.written().to_vec();
     }
 
     let notes = layers
@@ -311,10 +287,15 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         notes,
         outputs: Vec::new(),
     };
-    out.written.push(report_path.display().to_string());
-    report.outputs = out.written.clone();
+    // every file written, the report itself included (written last)
+    report.outputs = out
+        .written()
+        .iter()
+        .chain(&exported_files)
+        .chain([&report_path])
+        .map(|p| p.display().to_string())
+        .collect();
     let json = serde_json::to_vec_pretty(&report).expect("a report serializes");
-    out.written.pop();
     out.write("scene-report.json", &json)?;
     if let Some(dir) = &opts.report {
         write_report_page(dir, &scene, &layers, &report, &heatmap_files, opts)?;
@@ -347,18 +328,12 @@ fn write_report_page(
     use crate::sweep::{knee, sweep_layer, BUDGETS};
     /// The knee's fraction, as `underdraw sweep`'s default.
     const KNEE: f64 = 0.8;
-    std::fs::create_dir_all(dir).map_err(|e| {
-        FileError::new(
-            dir,
-            format!("the report folder cannot be created ({e})"),
-            "choose a writable --report folder",
-        )
-    })?;
-    let mut out = Outputs {
-        dir: dir.to_path_buf(),
-        inputs: scene.inputs(),
-        written: Vec::new(),
-    };
+    let mut out = scene_folder(
+        scene,
+        dir,
+        "report folder",
+        "choose a writable --report folder",
+    )?;
     let mut shown = Vec::new();
     for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {
         out.write(file, bytes)?;
@@ -389,15 +364,17 @@ fn write_report_page(
             name: name.clone(),
             ..Default::default()
         };
-        let rgba = image::open(&layer.spec.image).map_err(|e| {
-            FileError::new(
+        // a preview is drawn over a PNG (a shipped texture has none)
+        let bytes = crate::io::read_input(&layer.spec.image)?;
+        let rgba = match crate::io::is_texture(&bytes) {
+            false => Some(crate::io::decode_rgba(
                 &layer.spec.image,
-                format!("cannot be read for its preview ({e})"),
-                "check the file",
-            )
-        })?;
-        let rgba = rgba.to_rgba8();
-        if rgba.dimensions() == (mesh.size[0], mesh.size[1]) {
+                &bytes,
+                &opts.limits,
+            )?),
+            true => None,
+        };
+        if let Some(rgba) = rgba.filter(|r| r.dimensions() == (mesh.size[0], mesh.size[1])) {
             let file = format!("{name}.preview.png");
             let img = crate::preview::render_preview(&rgba, mesh, 1024);
             out.write(&file, &crate::heatmap::rgba_png(img))?;

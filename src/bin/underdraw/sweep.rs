@@ -6,7 +6,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use underdraw::alpha::Sampled;
 use underdraw::error::FileError;
-use underdraw::io::{is_texture, load_layer, load_texture, write_atomic, ImageLimits};
+use underdraw::io::{is_texture, load_layer, load_texture, ImageLimits, OutputFolder};
 use underdraw::sweep::{knee, sweep_sampled, to_csv, to_table, BUDGETS};
 
 #[derive(Args)]
@@ -131,7 +131,8 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Exit
     }
     let points = sweep_sampled(sampled, &name, &base, &BUDGETS);
     let knee_budget = knee(&points, args.knee);
-    if let Err(e) = write_atomic(&dest, to_csv(&points).as_bytes()) {
+    let mut folder = OutputFolder::open(&out, vec![args.image.clone()]);
+    if let Err(e) = folder.write(&format!("{stem}.sweep.csv"), to_csv(&points).as_bytes()) {
         return fail(e);
     }
     if print.json {
