@@ -280,7 +280,10 @@ pub(crate) fn run_layer(
     if outputs.preview {
         let rgba = decode_rgba(&job.input, &bytes, limits)?;
         let img = crate::preview::render_preview(&rgba, mesh, PREVIEW_WIDTH);
-        files.push((format!("{base}.preview.png"), crate::heatmap::rgba_png(img)));
+        files.push((
+            format!("{base}.preview.png"),
+            crate::present::png::rgba_png(img),
+        ));
     }
     let recorded: Vec<OutputFile> = files
         .iter()

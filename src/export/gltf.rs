@@ -459,7 +459,7 @@ fn cut_extras(mesh: &LayerMesh, reversed: bool) -> Value {
 }
 
 /// The glTF asset of `mesh` as named bytes, for an
-/// [`OutputFolder`](crate::io::OutputFolder) to write: `<stem>.bin` (when
+/// [`OutputFolder`] to write: `<stem>.bin` (when
 /// the layer has triangles; first, so a reader never sees a new `.gltf`
 /// with an old `.bin`) and `<stem>.gltf`, with the vertices in `format`
 /// ([`build_with`]). `image_uri` is the layer's PNG relative to the folder,
@@ -502,7 +502,7 @@ pub fn glb_file(
 }
 
 /// Writes [`gltf_files`] into `dir` through an
-/// [`OutputFolder`](crate::io::OutputFolder) (each atomically; a file that
+/// [`OutputFolder`] (each atomically; a file that
 /// already holds the same bytes is left untouched) and returns their paths.
 pub fn write_gltf(
     mesh: &LayerMesh,
