@@ -81,9 +81,9 @@ pub const PLAIN: &str = "png decode (image crate, reference)";
 /// underdraw's decode.
 pub const DECODE: &str = "decode_layer (decode + alpha)";
 /// Alpha analysis, the must-cover region traced.
-pub const ANALYSIS: &str = "prepare_regions (analysis as runs + must-cover traced)";
+pub const ANALYSIS: &str = "prepare_regions (analysis + cover trace)";
 /// Fitting.
-pub const FIT: &str = "fit_outlines (safe traced, all variants)";
+pub const FIT: &str = "fit_outlines (safe trace, all variants)";
 /// Triangulation.
 pub const TRIANGULATE: &str = "triangulate_outlines (+ vertex order)";
 /// The self-check.

@@ -265,7 +265,9 @@ pub(crate) fn run_layer(
             ));
         }
         // the glTF files beside the mesh file, in the key's subfolder
-        let folder = &base[..base.len() - job.stem.len()];
+        let folder = base
+            .strip_suffix(job.stem.as_str())
+            .expect("a job's key ends with its stem");
         let (at, format) = (dir.as_path(), outputs.vertex_format);
         if outputs.gltf {
             for (name, bytes) in gltf_files(mesh, uri, at, &job.stem, format)? {
