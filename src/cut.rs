@@ -12,6 +12,7 @@ use crate::alpha::{
 };
 use crate::check::check_mesh_sampled;
 use crate::fit::{fit_outlines, prepare_cover, Class, Fit};
+use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
@@ -89,7 +90,14 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
                 settings.budget
             ));
         }
-        let mesh = to_mesh(map, source, settings, &regions, &fit, &t);
+        let mesh = to_mesh(
+            (map.width, map.height),
+            source,
+            settings,
+            &regions,
+            &fit,
+            &t,
+        );
         let report = check_mesh_sampled(&mesh, sampled.source, sampled.shipped)
             .map_err(|e| e.to_string())?;
         if report.holds() {
@@ -112,7 +120,14 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
             };
             let mut t = triangulate(&plain).unwrap_or_default();
             order_vertices(&mut t);
-            to_mesh(map, source, settings, &regions, &plain, &t)
+            to_mesh(
+                (map.width, map.height),
+                source,
+                settings,
+                &regions,
+                &plain,
+                &t,
+            )
         }
     };
     let s = &mesh.stats;
@@ -126,6 +141,58 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
     CutOutcome { mesh, notes }
 }
 
+/// Cuts regions that were analyzed elsewhere: `safe` and `cover` on the
+/// half-texel grid of a `size` (W x H texels) rectangle, such as a sprite
+/// sheet's regions clipped to one region's rectangle ([`crate::sheet`]).
+/// `regions` holds their areas and the rectangle's texel classes; `check`
+/// verifies a mesh (positions in the rectangle's texels) and says why it
+/// fails. The fallback and notes are those of [`cut_sampled`].
+pub fn cut_runs(
+    size: (u32, u32),
+    (safe, cover): (RowRuns, RowRuns),
+    regions: &RegionStats,
+    source: &str,
+    settings: &CutSettings,
+    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+) -> CutOutcome {
+    let cover = prepare_cover(cover);
+    let fit = fit_outlines(safe, &cover, settings.budget);
+    drop(cover);
+    let mut notes = Vec::new();
+    if fit.cover.is_empty() {
+        notes.push("fully transparent: the meshes are empty".to_string());
+    }
+    let attempt = triangulate(&fit).and_then(|mut t| {
+        order_vertices(&mut t);
+        if t.positions.len() > settings.budget {
+            return Err(format!(
+                "{} vertices after triangulation, over the budget of {}",
+                t.positions.len(),
+                settings.budget
+            ));
+        }
+        let mesh = to_mesh(size, source, settings, regions, &fit, &t);
+        check(&mesh).map(|()| mesh)
+    });
+    let mesh = match attempt {
+        Ok(mesh) => mesh,
+        Err(why) => {
+            notes.push(format!(
+                "opaque mesh left out: its triangulation failed the contract check ({why})"
+            ));
+            let plain = Fit {
+                opaque: Vec::new(),
+                cover: fit.cover.clone(),
+                vertices: fit.outline_vertices(Class::Cover),
+            };
+            let mut t = triangulate(&plain).unwrap_or_default();
+            order_vertices(&mut t);
+            to_mesh(size, source, settings, regions, &plain, &t)
+        }
+    };
+    CutOutcome { mesh, notes }
+}
+
 /// Area in texels (orient is twice the area in half units: / 8).
 fn area(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
     let twice_half_units: i64 = tris
@@ -136,14 +203,14 @@ fn area(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
 }
 
 fn to_mesh(
-    map: &AlphaMap,
+    (width, height): (u32, u32),
     source: &str,
     settings: &CutSettings,
     regions: &RegionStats,
     fit: &Fit,
     t: &Triangulation,
 ) -> LayerMesh {
-    let (w, h) = (map.width as f32, map.height as f32);
+    let (w, h) = (width as f32, height as f32);
     let mut positions = Vec::with_capacity(t.positions.len() * 2);
     let mut uvs = Vec::with_capacity(t.positions.len() * 2);
     for p in &t.positions {
@@ -176,7 +243,7 @@ fn to_mesh(
         format: FORMAT.to_string(),
         version: VERSION,
         source: source.to_string(),
-        size: [map.width, map.height],
+        size: [width, height],
         filter: settings.filter,
         alpha: settings.alpha,
         wrap: settings.wrap,
@@ -187,5 +254,6 @@ fn to_mesh(
         opaque: flat(&t.opaque),
         blended: flat(&t.blended),
         stats,
+        region: None,
     }
 }
