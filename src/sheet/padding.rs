@@ -104,7 +104,7 @@ pub fn warnings(sheet: &AlphaMap, region: &SheetRegion, settings: &CutSettings) 
             .iter()
             .zip(SIDES)
             .filter_map(|(p, side)| match p {
-                Some(n) if (*n as f64) < need => Some(format!("{n} on the {side}")),
+                Some(n) if (*n as f64) < need => Some(format!("{n} texel(s) on the {side}")),
                 _ => None,
             })
             .collect();
@@ -121,7 +121,7 @@ pub fn warnings(sheet: &AlphaMap, region: &SheetRegion, settings: &CutSettings) 
             FilterMode::Nearest => "nearest",
         };
         out.push(format!(
-            "{what}padding {} texel(s), but {filter} sampling up to mip level {} reaches {need} texel(s) beyond the edge: a neighbour's colours bleed into this region's edge whatever mesh is drawn; pack the sheet with at least {cap} transparent texel(s) around it",
+            "{what}padding of {}, where {filter} sampling up to mip level {} reaches {need} texel(s) beyond the edge: a neighbour's colours bleed into this region's edge whatever mesh is drawn; pack the sheet with at least {cap} transparent texel(s) around it",
             short.join(", "),
             settings.filter.mip_levels,
         ));
