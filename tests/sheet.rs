@@ -347,3 +347,50 @@ fn check_takes_a_region_from_the_regions_file() {
         "by key",
     );
 }
+
+/// A settings file's patterns match `<sheet stem>/<name>`: one region gets
+/// its own budget, the others the defaults; explicit options win.
+#[test]
+fn settings_file_matches_sheet_and_region_names() {
+    let dir = TempDir::new("sheet-settings");
+    let sheet = pack(&[(0, 20, 16), (2, 20, 16), (1, 20, 16)], 1, 80);
+    let png = dir.path("ui.png");
+    save(&sheet, &png);
+    let e: Vec<(String, String)> = sheet
+        .boxes
+        .iter()
+        .enumerate()
+        .map(|(k, b)| (format!("r{k}"), format!("\"rect\": {b:?}")))
+        .collect();
+    let rf = dir.path("ui.regions.json");
+    std::fs::write(&rf, regions_file(&e)).unwrap();
+    let sf = dir.path("s.json");
+    std::fs::write(
+        &sf,
+        r#"{"defaults": {"budget": 20}, "layers": [{"match": "ui/r1", "budget": 6}]}"#,
+    )
+    .unwrap();
+    let out = dir.path("out");
+    let args = |extra: &[&str]| {
+        let mut a = vec![
+            "cut",
+            png.to_str().unwrap(),
+            "--regions",
+            rf.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--settings",
+            sf.to_str().unwrap(),
+        ];
+        a.extend_from_slice(extra);
+        run(&a)
+    };
+    status(&args(&[]), 0, "cut with settings");
+    let budget = |n: &str| load(&out.join(format!("ui/{n}.mesh.json"))).budget;
+    assert_eq!(
+        (budget("r0"), budget("r1"), budget("r2")),
+        (Some(20), Some(6), Some(20))
+    );
+    status(&args(&["--budget", "12"]), 0, "explicit budget");
+    assert_eq!((budget("r0"), budget("r1")), (Some(12), Some(12)));
+}
