@@ -394,3 +394,40 @@ fn settings_file_matches_sheet_and_region_names() {
     status(&args(&["--budget", "12"]), 0, "explicit budget");
     assert_eq!((budget("r0"), budget("r1")), (Some(12), Some(12)));
 }
+
+/// With --per-frame, a frame's output name `<name>.<k>` may not be another
+/// region's: refused before anything is written (exit 2).
+#[test]
+fn per_frame_names_may_not_clash() {
+    let dir = TempDir::new("sheet-clash");
+    let sheet = pack(&[(0, 10, 10), (2, 10, 10), (1, 10, 10)], 1, 40);
+    let png = dir.path("fx.png");
+    save(&sheet, &png);
+    let [a, b, c] = [sheet.boxes[0], sheet.boxes[1], sheet.boxes[2]];
+    let rf = dir.path("fx.regions.json");
+    std::fs::write(
+        &rf,
+        regions_file(&[
+            ("spark".into(), format!("\"frames\": [{a:?}, {b:?}]")),
+            ("spark.1".into(), format!("\"rect\": {c:?}")),
+        ]),
+    )
+    .unwrap();
+    let out = dir.path("out");
+    let o = run(&[
+        "cut",
+        png.to_str().unwrap(),
+        "--regions",
+        rf.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--per-frame",
+    ]);
+    status(&o, 2, "clashing names");
+    assert!(
+        text(&o.stderr).contains("would both write spark.1.mesh.json"),
+        "{}",
+        text(&o.stderr)
+    );
+    assert!(!out.join("fx/spark.mesh.json").exists());
+}

@@ -263,12 +263,11 @@ fn clip(runs: &CellRuns, [x, y, w, h]: [u32; 4]) -> CellRuns {
     out
 }
 
+/// A row operation on runs: intersection or union into the last argument.
+type RunOp = fn(&[[u32; 2]], &[[u32; 2]], &mut Vec<[u32; 2]>);
+
 /// Row by row `op` (intersection or union) of two regions of one size.
-fn rowwise(
-    a: &CellRuns,
-    b: &CellRuns,
-    op: fn(&[[u32; 2]], &[[u32; 2]], &mut Vec<[u32; 2]>),
-) -> CellRuns {
+fn rowwise(a: &CellRuns, b: &CellRuns, op: RunOp) -> CellRuns {
     let mut out = CellRuns::new(a.width());
     let mut row = Vec::new();
     for k in 0..a.height() {

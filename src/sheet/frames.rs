@@ -11,13 +11,17 @@ use super::regions::Rect;
 use super::Placement;
 use crate::mesh::LayerMesh;
 
+/// An animation's cut: the shared mesh, its notes (the cost against the
+/// best single frame's cut) and, when asked for, each frame's own mesh.
+pub type FramesCut = (LayerMesh, Vec<String>, Vec<(usize, LayerMesh)>);
+
 /// The shared mesh, its notes (the cost against the best single frame's
 /// cut) and, with `per_frame`, each frame's own mesh.
 pub fn cut_frames(
     place: &Placement,
     frames: &[Rect],
     per_frame: bool,
-) -> Result<(LayerMesh, Vec<String>, Vec<(usize, LayerMesh)>), String> {
+) -> Result<FramesCut, String> {
     let budget = place.settings.budget;
     let shared = place.cut(frames, budget)?;
     let mut notes = shared.notes;

@@ -5,7 +5,7 @@
 //! holds the same bytes; no input is ever written over.
 
 use super::find::{find_regions, region_names};
-use super::regions::{load_regions, parse_regions, RegionsFile, SheetRegion};
+use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
 use super::{cut_region, RegionCut, SheetAnalysis};
 use crate::batch::settings_file::{SettingsFile, Values};
 use crate::batch::Outputs;
@@ -193,6 +193,26 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
             analyses.push(SheetAnalysis::new(&sheet, s));
         }
     }
+    // output names: a region's, and with --per-frame its frames' `<name>.<k>`
+    let mut stems: Vec<(String, &str)> = Vec::new();
+    for r in &regions {
+        stems.push((r.name.clone(), &r.name));
+        if let (true, RegionKind::Frames(f)) = (req.per_frame, &r.kind) {
+            stems.extend((0..f.len()).map(|k| (format!("{}.{k}", r.name), r.name.as_str())));
+        }
+    }
+    let mut sorted = stems.clone();
+    sorted.sort();
+    if let Some(w) = sorted.windows(2).find(|w| w[0].0 == w[1].0) {
+        return Err(FileError::new(
+            req.regions_path().unwrap_or(&req.sheet),
+            format!(
+                "regions {:?} and {:?} would both write {}.mesh.json",
+                w[0].1, w[1].1, w[0].0
+            ),
+            "rename one of them (a frame k of an animation is written as <name>.<k> with --per-frame)",
+        ));
+    }
     for r in &regions {
         for p in [".mesh.json", ".gltf", ".bin", ".glb"] {
             let dest = dir.join(format!("{}{p}", r.name));
@@ -249,6 +269,14 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
 }
 
 impl SheetRequest {
+    /// The regions file, when one is given.
+    fn regions_path(&self) -> Option<&Path> {
+        match &self.regions {
+            RegionSource::File(p) => Some(p),
+            RegionSource::Find { .. } => None,
+        }
+    }
+
     /// The visible threshold for finding regions: the explicit one, else
     /// the base settings'.
     fn base_visible_min(&self) -> u8 {

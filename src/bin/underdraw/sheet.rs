@@ -60,8 +60,8 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             out: args.out.to_path_buf(),
             settings_file: args.settings.map(Path::to_path_buf),
             base: args.base,
-            overrides: args.overrides.clone(),
-            outputs: args.outputs.clone(),
+            overrides: args.overrides,
+            outputs: args.outputs,
             per_frame: args.per_frame,
             limits,
         };
