@@ -217,6 +217,54 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
 /// and checks the result.
 pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> CutOutcome {
     let outlines = fit_regions(prepare_regions(sampled, settings), settings.budget);
+    finish(outlines, source, settings, &|mesh: &LayerMesh| {
+        let report =
+            check_mesh_sampled(mesh, sampled.source, sampled.shipped).map_err(|e| e.to_string())?;
+        if report.holds() {
+            Ok(())
+        } else {
+            Err(report.violations().join("; "))
+        }
+    })
+}
+
+/// Cuts regions that were analyzed elsewhere: `safe` and `cover` on the
+/// half-texel grid of a `size` (W x H texels) rectangle, such as a sprite
+/// sheet's regions clipped to one region's rectangle ([`crate::sheet`]).
+/// `regions` holds their areas and the rectangle's texel classes; `check`
+/// verifies a mesh (positions in the rectangle's texels) and says why it
+/// fails. The stages, the fallback and the notes are those of
+/// [`cut_sampled`].
+pub fn cut_runs(
+    size: (u32, u32),
+    (safe, cover): (RowRuns, RowRuns),
+    regions: &RegionStats,
+    source: &str,
+    settings: &CutSettings,
+    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+) -> CutOutcome {
+    let prepared = PreparedRegions {
+        safe,
+        cover: prepare_cover(cover),
+        stats: *regions,
+        size: [size.0, size.1],
+    };
+    finish(
+        fit_regions(prepared, settings.budget),
+        source,
+        settings,
+        check,
+    )
+}
+
+/// Stages 3 and 4 and the self-check, with the fallback: when the mesh
+/// fails `check`, the covering outline alone, all blended.
+fn finish(
+    outlines: Outlines,
+    source: &str,
+    settings: &CutSettings,
+    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+) -> CutOutcome {
     let mut notes = Vec::new();
     if outlines.fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
@@ -230,13 +278,7 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
             ));
         }
         let mesh = layer_mesh(&outlines, &t, source, settings);
-        let report = check_mesh_sampled(&mesh, sampled.source, sampled.shipped)
-            .map_err(|e| e.to_string())?;
-        if report.holds() {
-            Ok(mesh)
-        } else {
-            Err(report.violations().join("; "))
-        }
+        check(&mesh).map(|()| mesh)
     });
     let mesh = match attempt {
         Ok(mesh) => mesh,
@@ -329,5 +371,6 @@ fn to_mesh(
         opaque: flat(&t.opaque),
         blended: flat(&t.blended),
         stats,
+        region: None,
     }
 }

@@ -99,6 +99,7 @@ pub mod quality;
 pub mod raster;
 pub mod scene;
 pub mod settings;
+pub mod sheet;
 pub mod sweep;
 pub mod table;
 pub mod triangulate;

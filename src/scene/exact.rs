@@ -203,6 +203,7 @@ pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> Exac
         uvs,
         opaque: TriangleList { indices: opaque },
         blended: TriangleList { indices: blended },
+        region: None,
     };
     ExactLayer {
         mesh,

@@ -11,6 +11,7 @@ pub(crate) fn check(
     mesh_path: &Path,
     image_path: Option<&Path>,
     texture_path: Option<&Path>,
+    region: Option<(&str, &Path)>,
     print: Print,
     limits: ImageLimits,
 ) -> ExitCode {
@@ -22,6 +23,10 @@ pub(crate) fn check(
         Ok(m) => m,
         Err(e) => return fail(&e),
     };
+    if mesh.region.is_some() || region.is_some() {
+        let paths = (mesh_path, image_path, texture_path);
+        return crate::sheet::check_region(&mesh, paths, region, print, limits);
+    }
     // an IMAGE that is a texture file is read as --texture
     let (image_path, texture_path) = match (image_path, texture_path) {
         (Some(i), None) if std::fs::read(i).is_ok_and(|b| is_texture(&b)) => (None, Some(i)),

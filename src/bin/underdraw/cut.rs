@@ -101,6 +101,26 @@ pub(crate) struct CutArgs {
     /// counts once). At least 4.
     #[arg(long, value_name = "N", default_value_t = 64, value_parser = clap::value_parser!(u32).range(4..))]
     budget: u32,
+    /// Cut the named regions of a sprite sheet (the one PNG given), each
+    /// as its own layer, from this regions file ({"format":
+    /// "underdraw.regions", "version": 1, "regions": [{"name": ..., "rect":
+    /// [x, y, w, h]}, ...]}; "slices" for a nine-slice panel, "frames" for
+    /// an animation): writes `OUT/<sheet stem>/<name>.mesh.json` (and glTF)
+    /// per region, positions local to the region, texture coordinates
+    /// addressing the sheet.
+    #[arg(long, value_name = "FILE", conflicts_with = "find_regions")]
+    regions: Option<PathBuf>,
+    /// Find the sheets' regions (each group of visible texels separated
+    /// from the others by a transparent texel, its bounding box, named
+    /// `<sheet stem>-<n>` in reading order), write them to
+    /// `OUT/<sheet stem>.regions.json` to rename and edit, and cut them as
+    /// with --regions.
+    #[arg(long)]
+    find_regions: bool,
+    /// With --regions: also cut each frame of an animation alone, as
+    /// `<name>.<frame>.mesh.json`, for engines that switch meshes per frame.
+    #[arg(long)]
+    per_frame: bool,
     #[command(flatten)]
     options: CutOptions,
 }
@@ -145,6 +165,38 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         return ExitCode::from(2);
     }
     let gltf = args.format != FormatArg::Json;
+    if args.regions.is_some() || args.find_regions || args.per_frame {
+        let outputs = Outputs {
+            json: args.format != FormatArg::Gltf,
+            gltf: gltf && !args.glb,
+            glb: gltf && args.glb,
+            preview: args.preview,
+            vertex_format: args.vertex_format.format(),
+        };
+        let unsupported = [
+            ("--texture", args.texture.is_some()),
+            ("--preview", args.preview),
+            ("--include", !args.include.is_empty()),
+            ("--exclude", !args.exclude.is_empty()),
+        ];
+        return crate::sheet::cut_sheets(
+            &crate::sheet::SheetArgs {
+                images: &args.images,
+                out: &args.out,
+                regions: args.regions.as_deref(),
+                find: args.find_regions,
+                per_frame: args.per_frame,
+                force: args.force,
+                settings: args.settings.as_deref(),
+                base: defaults,
+                overrides: args.overrides(m),
+                outputs,
+                unsupported: unsupported.iter().filter(|u| u.1).map(|u| u.0).collect(),
+            },
+            print,
+            limits,
+        );
+    }
     let request = batch::Request {
         inputs: args.images.clone(),
         out: args.out.clone(),

@@ -6,6 +6,7 @@
 mod check;
 mod cut;
 mod scene;
+mod sheet;
 mod sweep;
 
 use clap::{Args, CommandFactory, FromArgMatches, Parser, Subcommand, ValueEnum};
@@ -115,6 +116,14 @@ enum Command {
         /// both).
         #[arg(long, value_name = "FILE")]
         texture: Option<PathBuf>,
+        /// Check the mesh as this region of the sprite sheet given as IMAGE
+        /// (its rectangle, slices or frames read from --regions FILE); a
+        /// mesh file with a "region" key is checked so without it.
+        #[arg(long, value_name = "NAME", requires = "regions")]
+        region: Option<String>,
+        /// The sheet's regions file, for --region.
+        #[arg(long, value_name = "FILE", requires = "region")]
+        regions: Option<PathBuf>,
     },
     /// Score a parallax scene on a simulated GPU: overdraw, lanes, vertices
     /// and draws per strategy (rect, outline, split) and per layer, with
@@ -279,7 +288,16 @@ fn run() -> ExitCode {
             mesh,
             image,
             texture,
-        } => check::check(&mesh, image.as_deref(), texture.as_deref(), print, limits),
+            region,
+            regions,
+        } => check::check(
+            &mesh,
+            image.as_deref(),
+            texture.as_deref(),
+            region.as_deref().zip(regions.as_deref()),
+            print,
+            limits,
+        ),
         Command::Scene(args) => scene::scene(&args, print, limits),
         Command::Sweep(args) => sweep::sweep(&args, print, limits),
     }
