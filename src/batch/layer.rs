@@ -13,7 +13,7 @@ use super::write::commit;
 use super::{Job, Outputs};
 use crate::alpha::Sampled;
 use crate::cut::{cut_layer, cut_sampled};
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::export::gltf::{
     build_with, encode_uri, format_refusal, malformed, relative_uri, to_glb,
 };
@@ -182,14 +182,18 @@ pub(crate) fn run_layer(
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and previews are drawn from the PNG",
-                "cut the PNG with --texture pointing to this file to get a preview, or leave out --preview",
+                format!(
+                    "cut the PNG with {} pointing to this file to get a preview, or leave out {}",
+                    Setting::Texture,
+                    Setting::Preview
+                ),
             ));
         }
         if image_uri.is_some() {
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
-                "cut the PNG with --texture pointing to this file to get a glTF asset, or use --format json",
+                format!("cut the PNG with {} pointing to this file to get a glTF asset, or use {}", Setting::Texture, Setting::Format.given("json")),
             ));
         }
         let t = decode_texture(&job.input, &bytes, limits)?;
@@ -215,7 +219,7 @@ pub(crate) fn run_layer(
                 FileError::new(
                     path,
                     why,
-                    "lower --mip-levels to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l",
+                    format!("lower {} to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l", Setting::MipLevels),
                 )
             })?;
             let sampled = Sampled {
@@ -232,9 +236,9 @@ pub(crate) fn run_layer(
             notes.push(format!("guarantee computed for {}", t.describe(mip)));
             if t.levels.len() as u32 > mip + 1 {
                 notes.push(format!(
-                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass --mip-levels {} if the GPU samples them all)",
+                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass {} if the GPU samples them all)",
                     t.levels.len(),
-                    t.levels.len() - 1
+                    Setting::MipLevels.given(t.levels.len() - 1)
                 ));
             }
             cut_sampled(sampled, &name, &job.settings)
@@ -264,7 +268,7 @@ pub(crate) fn run_layer(
                     "cannot be exported to glTF with {} vertices: {why}",
                     outputs.vertex_format.name()
                 ),
-                "export it with --vertex-format f32",
+                format!("export it with {}", Setting::VertexFormat.given("f32")),
             ));
         }
         let asset = build_with(mesh, uri, &job.stem, outputs.vertex_format);

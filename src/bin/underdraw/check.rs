@@ -1,7 +1,8 @@
 //! `underdraw check`: re-verify a mesh file against its layer, and/or
 //! against the compressed texture that ships.
 
-use crate::{error, Print};
+use crate::{Print, Result};
+use anyhow::anyhow;
 use std::path::Path;
 use std::process::ExitCode;
 use underdraw::check::{check_mesh_per_level, check_mesh_sampled, ContractReport};
@@ -13,41 +14,29 @@ pub(crate) fn check(
     texture_path: Option<&Path>,
     print: Print,
     limits: ImageLimits,
-) -> ExitCode {
-    let fail = |e: &dyn std::fmt::Display| {
-        error(e);
-        ExitCode::from(2)
-    };
-    let mesh = match load_mesh(mesh_path) {
-        Ok(m) => m,
-        Err(e) => return fail(&e),
-    };
+) -> Result<ExitCode> {
+    let mesh = load_mesh(mesh_path)?;
     // an IMAGE that is a texture file is read as --texture
     let (image_path, texture_path) = match (image_path, texture_path) {
         (Some(i), None) if std::fs::read(i).is_ok_and(|b| is_texture(&b)) => (None, Some(i)),
         other => other,
     };
-    let map = match image_path.map(|p| load_layer(p, &limits)) {
-        Some(Ok(l)) => Some(l.alpha),
-        Some(Err(e)) => return fail(&e),
+    let map = match image_path {
+        Some(p) => Some(load_layer(p, &limits)?.alpha),
         None => None,
     };
-    let texture = match texture_path.map(|p| load_texture(p, &limits)) {
-        Some(Ok(t)) => Some(t),
-        Some(Err(e)) => return fail(&e),
+    let texture = match texture_path {
+        Some(p) => Some(load_texture(p, &limits)?),
         None => None,
     };
     let mip = mesh.filter.mip_levels;
     let levels = match (&texture, texture_path) {
-        (Some(t), Some(p)) => match t.levels_for(mip) {
-            Ok(l) => l,
-            Err(why) => {
-                return fail(&format!(
-                    "{}: {why} (the mesh was cut for mip levels 0 to {mip})\n  hint: check against a texture with those levels, or cut the mesh again for fewer",
-                    p.display()
-                ))
-            }
-        },
+        (Some(t), Some(p)) => t.levels_for(mip).map_err(|why| {
+            anyhow!(
+                "{}: {why} (the mesh was cut for mip levels 0 to {mip})\n  hint: check against a texture with those levels, or cut the mesh again for fewer",
+                p.display()
+            )
+        })?,
         _ => &[][..],
     };
     let whole = check_mesh_sampled(&mesh, map.as_ref(), levels);
@@ -58,9 +47,7 @@ pub(crate) fn check(
     };
     let (report, per_level) = match (whole, per_level) {
         (Ok(r), Ok(p)) => (r, p),
-        (Err(e), _) | (_, Err(e)) => {
-            return fail(&format!("{}: {e}", mesh_path.display()));
-        }
+        (Err(e), _) | (_, Err(e)) => return Err(anyhow!("{}: {e}", mesh_path.display())),
     };
     let described = texture.as_ref().map(|t| t.describe(mip));
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
@@ -88,10 +75,10 @@ pub(crate) fn check(
             "{}",
             serde_json::to_string_pretty(&v).expect("plain values serialize")
         );
-        return code;
+        return Ok(code);
     }
     if print.quiet && report.holds() {
-        return code;
+        return Ok(code);
     }
     if let (Some(d), false) = (&described, print.quiet) {
         println!("texture: {d}");
@@ -115,7 +102,7 @@ pub(crate) fn check(
             println!("  {v}");
         }
     }
-    code
+    Ok(code)
 }
 
 fn level_json(level: usize, r: &ContractReport) -> serde_json::Value {

@@ -1,15 +1,15 @@
 //! `underdraw cut`: layers and folders in, mesh files and glTF assets out
 //! (the work is `underdraw::batch`; this parses, calls it and prints).
 
-use crate::{bar, error, CutOptions, FilterArg, Print, VertexFormatArg, WrapArg};
+use crate::{bar, CutOptions, Failures, Line, Print, Result};
 use clap::parser::ValueSource;
 use clap::{ArgMatches, Args, ValueEnum};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use underdraw::batch::{self, settings_file::Values, LayerReport, Outputs, Status};
+use underdraw::batch::{self, LayerReport, Outputs, Status};
 use underdraw::io::ImageLimits;
+use underdraw::mesh::VertexFormat;
 use underdraw::quality::CutNumbers;
-use underdraw::settings::{FilterMode, Wrap};
 use underdraw::table;
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -81,7 +81,7 @@ pub(crate) struct CutArgs {
     /// How the glTF assets store their vertices. Needs `--format gltf` or
     /// `all`.
     #[arg(long, value_enum, default_value = "f32")]
-    vertex_format: VertexFormatArg,
+    vertex_format: VertexFormat,
     /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
     /// with the opaque mesh tinted blue and the blended one orange (lightly,
     /// so the art shows), their edges on top, the regions' outlines dotted,
@@ -105,45 +105,21 @@ pub(crate) struct CutArgs {
     options: CutOptions,
 }
 
-impl CutArgs {
-    /// The options given explicitly on the command line, which override a
-    /// settings file.
-    fn overrides(&self, m: &ArgMatches) -> Values {
-        let given = |id: &str| m.value_source(id) == Some(ValueSource::CommandLine);
-        let o = &self.options;
-        Values {
-            budget: given("budget").then_some(self.budget as usize),
-            filter: given("filter").then_some(match o.filter {
-                FilterArg::Nearest => FilterMode::Nearest,
-                FilterArg::Bilinear => FilterMode::Bilinear,
-            }),
-            mip_levels: given("mip_levels").then_some(o.mip_levels),
-            wrap: given("wrap").then_some(match o.wrap {
-                WrapArg::None => Wrap::None,
-                WrapArg::X => Wrap::X,
-                WrapArg::Y => Wrap::Y,
-                WrapArg::Xy => Wrap::Xy,
-            }),
-            opaque_min: given("opaque_min").then_some(o.opaque_min),
-            visible_min: given("visible_min").then_some(o.visible_min),
-        }
-    }
-}
-
-pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLimits) -> ExitCode {
-    let defaults = args.options.settings(args.budget as usize);
-    if let Err(e) = defaults.validate() {
-        error(&e);
-        return ExitCode::from(2);
-    }
+pub(crate) fn cut(
+    args: &CutArgs,
+    m: &ArgMatches,
+    print: Print,
+    limits: ImageLimits,
+) -> Result<ExitCode> {
+    let defaults = args.options.settings(args.budget as usize)?;
     if args.glb && args.format == FormatArg::Json {
-        error("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
-        return ExitCode::from(2);
+        anyhow::bail!("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
     }
-    if args.vertex_format != VertexFormatArg::F32 && args.format == FormatArg::Json {
-        error("--vertex-format chooses how the glTF asset stores its vertices, but --format json writes none\n  hint: add --format gltf or --format all");
-        return ExitCode::from(2);
+    if args.vertex_format != VertexFormat::F32 && args.format == FormatArg::Json {
+        anyhow::bail!("--vertex-format chooses how the glTF asset stores its vertices, but --format json writes none\n  hint: add --format gltf or --format all");
     }
+    // the options typed on the command line override a settings file
+    let typed = |id: &str| m.value_source(id) == Some(ValueSource::CommandLine);
     let gltf = args.format != FormatArg::Json;
     let request = batch::Request {
         inputs: args.images.clone(),
@@ -152,30 +128,26 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         exclude: args.exclude.clone(),
         settings_file: args.settings.clone(),
         base: defaults,
-        overrides: args.overrides(m),
+        overrides: args.options.partial(args.budget as usize, typed),
         outputs: Outputs {
             json: args.format != FormatArg::Gltf,
             gltf: gltf && !args.glb,
             glb: gltf && args.glb,
             preview: args.preview,
-            vertex_format: args.vertex_format.format(),
+            vertex_format: args.vertex_format,
         },
         texture: args.texture.clone(),
     };
-    let plan = match batch::plan(&request) {
-        Ok(p) => p,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
-        }
-    };
+    let plan = batch::plan(&request)?;
     if plan.jobs.is_empty() {
         // nothing to cut: a typo in a path or a pattern must not pass silently
-        for e in &plan.empty {
-            error(e);
-        }
-        error("no layer found: nothing was cut\n  hint: give PNG files or folders that hold them; see `underdraw cut --help` for --include and --exclude");
-        return ExitCode::from(2);
+        let mut lines: Vec<Line> = plan
+            .empty
+            .iter()
+            .map(|e| Line::Error(e.to_string()))
+            .collect();
+        lines.push(Line::Error("no layer found: nothing was cut\n  hint: give PNG files or folders that hold them; see `underdraw cut --help` for --include and --exclude".into()));
+        return Err(Failures(lines).into());
     }
     let options = batch::RunOptions {
         jobs: args.jobs.map(|n| n as usize),
@@ -191,13 +163,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
     };
     let report = batch::run(&plan, &options, &|_| progress.inc(1));
     progress.finish_and_clear();
-    let report = match report {
-        Ok(r) => r,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
-        }
-    };
+    let report = report?;
     if print.json {
         let mut objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
         objects.extend(plan.empty.iter().map(|e| {
@@ -237,33 +203,36 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         .iter()
         .filter(|l| l.status == Status::Failed)
         .collect();
+    let mut lines = Vec::new();
     if let Some(e) = &report.manifest_error {
-        error(e);
+        lines.push(Line::Error(e.to_string()));
     }
     if !plan.empty.is_empty() {
-        eprintln!(
+        lines.push(Line::Heading(format!(
             "{} of {} inputs gave no layer:",
             plan.empty.len(),
             args.images.len()
+        )));
+        lines.extend(plan.empty.iter().map(|e| Line::Error(e.to_string())));
+    }
+    if !failed.is_empty() {
+        lines.push(Line::Heading(format!(
+            "{} of {} layers failed:",
+            failed.len(),
+            report.layers.len()
+        )));
+        lines.extend(
+            failed
+                .iter()
+                .filter_map(|l| l.error.as_ref())
+                .map(|e| Line::Error(e.to_string())),
         );
-        for e in &plan.empty {
-            error(e);
-        }
     }
-    if failed.is_empty() {
-        return if report.manifest_error.is_some() || !plan.empty.is_empty() {
-            ExitCode::from(2)
-        } else {
-            ExitCode::SUCCESS
-        };
+    if lines.is_empty() {
+        Ok(ExitCode::SUCCESS)
+    } else {
+        Err(Failures(lines).into())
     }
-    eprintln!("{} of {} layers failed:", failed.len(), report.layers.len());
-    for l in failed {
-        if let Some(e) = &l.error {
-            error(e);
-        }
-    }
-    ExitCode::from(2)
 }
 
 fn print_table(layers: &[LayerReport]) {
