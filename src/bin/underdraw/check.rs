@@ -5,8 +5,9 @@ use crate::{Print, Result};
 use anyhow::anyhow;
 use std::path::Path;
 use std::process::ExitCode;
-use underdraw::check::{check_mesh_per_level, check_mesh_sampled, ContractReport};
+use underdraw::check::{check_mesh_per_level, check_mesh_sampled};
 use underdraw::io::{is_texture, load_layer, load_mesh, load_texture, ImageLimits};
+use underdraw::present::results::{to_json, CheckResult};
 
 pub(crate) fn check(
     mesh_path: &Path,
@@ -51,68 +52,12 @@ pub(crate) fn check(
     };
     let described = texture.as_ref().map(|t| t.describe(mip));
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
+    let result = CheckResult::new(&report, described, &per_level);
     if print.json {
-        let violations: Vec<String> = report.violations().iter().map(|v| v.to_string()).collect();
-        let mut v = serde_json::json!({
-            "holds": report.holds(),
-            "opaque_area": report.opaque_area,
-            "safe_area": report.safe_area,
-            "covered_area": report.covered_area,
-            "must_cover_area": report.must_cover_area,
-            "must_cover_covered": report.must_cover_covered(),
-            "beyond_must_cover": report.beyond_must_cover(),
-            "violations": violations,
-        });
-        if let Some(d) = &described {
-            v["texture"] = d.clone().into();
-            v["levels"] = per_level
-                .iter()
-                .enumerate()
-                .map(|(l, r)| level_json(l, r))
-                .collect();
-        }
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).expect("plain values serialize")
-        );
-        return Ok(code);
-    }
-    if print.quiet && report.holds() {
-        return Ok(code);
-    }
-    if let (Some(d), false) = (&described, print.quiet) {
-        println!("texture: {d}");
-        for (l, r) in per_level.iter().enumerate() {
-            let v = r.violations();
-            if v.is_empty() {
-                println!("  level {l}: holds");
-            } else {
-                println!("  level {l}: {}", v.join("; "));
-            }
-        }
-    }
-    if report.holds() {
-        println!(
-            "contract holds: {}; no overlap",
-            underdraw::quality::check_summary(&report)
-        );
-    } else {
-        println!("contract violated:");
-        for v in report.violations() {
-            println!("  {v}");
-        }
+        println!("{}", to_json(&result));
+    } else if !(print.quiet && report.holds()) {
+        // --quiet prints a violation only
+        print!("{}", result.text(!print.quiet));
     }
     Ok(code)
-}
-
-fn level_json(level: usize, r: &ContractReport) -> serde_json::Value {
-    serde_json::json!({
-        "level": level,
-        "holds": r.holds(),
-        "opaque_outside_safe": r.opaque_outside_safe,
-        "uncovered": r.uncovered,
-        "safe_area": r.safe_area,
-        "must_cover_area": r.must_cover_area,
-        "violations": r.violations(),
-    })
 }

@@ -9,8 +9,7 @@ use std::process::ExitCode;
 use underdraw::batch::{self, LayerReport, Outputs, Status};
 use underdraw::io::ImageLimits;
 use underdraw::mesh::VertexFormat;
-use underdraw::quality::CutNumbers;
-use underdraw::table;
+use underdraw::present::results::{to_json, CutResult};
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum FormatArg {
@@ -164,39 +163,12 @@ pub(crate) fn cut(
     let report = batch::run(&plan, &options, &|_| progress.inc(1));
     progress.finish_and_clear();
     let report = report?;
+    let result = CutResult::new(&report, &plan.empty);
     if print.json {
-        let mut objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
-        objects.extend(plan.empty.iter().map(|e| {
-            serde_json::json!({
-                "layer": e.path.display().to_string(),
-                "status": Status::Failed,
-                "outputs": [],
-                "error": e.to_string(),
-            })
-        }));
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&objects).expect("plain values serialize")
-        );
+        println!("{}", to_json(&result));
     } else if print.text() {
-        for n in &report.notes {
-            println!("note: {n}");
-        }
-        print_table(&report.layers);
-        let count = |s| report.count(s);
-        let vertices: usize = report
-            .layers
-            .iter()
-            .filter_map(|l| l.result.as_ref())
-            .map(|r| r.vertices)
-            .sum();
-        println!(
-            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices",
-            report.layers.len(),
-            count(Status::Cut),
-            count(Status::Unchanged),
-            count(Status::Failed),
-        );
+        let cwd = std::env::current_dir().unwrap_or_default();
+        print!("{}", result.text(&cwd));
     }
     let failed: Vec<&LayerReport> = report
         .layers
@@ -233,75 +205,4 @@ pub(crate) fn cut(
     } else {
         Err(Failures(lines).into())
     }
-}
-
-fn print_table(layers: &[LayerReport]) {
-    let shown: Vec<&LayerReport> = layers.iter().filter(|l| l.result.is_some()).collect();
-    let cwd = std::env::current_dir().unwrap_or_default();
-    let paths: Vec<PathBuf> = shown.iter().map(|l| l.input.clone()).collect();
-    let names = table::display_paths(&paths, &cwd);
-    let rows: Vec<table::CutRow> = shown
-        .iter()
-        .zip(names)
-        .map(|(l, layer)| {
-            let r = l.result.as_ref().expect("filtered above");
-            let numbers = CutNumbers::of_result(r);
-            table::CutRow {
-                layer,
-                status: status_word(l.status).into(),
-                numbers,
-                warnings: r
-                    .warnings
-                    .iter()
-                    .cloned()
-                    .chain(numbers.warnings(None))
-                    .collect(),
-                notes: r.notes.clone(),
-            }
-        })
-        .collect();
-    print!("{}", table::cut_table(&rows));
-}
-
-fn status_word(s: Status) -> &'static str {
-    match s {
-        Status::Cut => "cut",
-        Status::Unchanged => "unchanged",
-        Status::Failed => "failed",
-    }
-}
-
-fn json_line(l: &LayerReport) -> serde_json::Value {
-    let mut o = serde_json::json!({
-        "layer": l.input.display().to_string(),
-        "status": l.status,
-        "outputs": l.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
-    });
-    if let Some(r) = &l.result {
-        let n = CutNumbers::of_result(r);
-        o["vertices"] = r.vertices.into();
-        // the vertex array's bytes (position + texture coordinate) per format
-        o["vertex_bytes"] = underdraw::mesh::VertexFormat::ALL
-            .iter()
-            .map(|f| {
-                (
-                    f.name().to_string(),
-                    serde_json::Value::from(r.vertices as u64 * f.bytes_per_vertex()),
-                )
-            })
-            .collect::<serde_json::Map<_, _>>()
-            .into();
-        // null where the safe-opaque region is empty
-        o["opaque_capture"] = n.capture().into();
-        o["excess"] = r.excess.into();
-        o["excess_share"] = n.excess_share().into();
-        o["must_cover_area"] = r.must_cover_area.into();
-        o["notes"] = serde_json::json!(r.notes);
-        let warnings: Vec<String> = r.warnings.iter().cloned().chain(n.warnings(None)).collect();
-        o["warnings"] = serde_json::json!(warnings);
-    }
-    if let Some(e) = &l.error {
-        o["error"] = e.to_string().into();
-    }
-    o
 }

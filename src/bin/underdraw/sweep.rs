@@ -7,7 +7,8 @@ use std::process::ExitCode;
 use underdraw::alpha::Sampled;
 use underdraw::error::FileError;
 use underdraw::io::{is_texture, load_layer, load_texture, write_atomic, ImageLimits};
-use underdraw::sweep::{knee, sweep_sampled, to_csv, to_table, BUDGETS};
+use underdraw::present::results::{to_json, SweepResult};
+use underdraw::sweep::{knee, sweep_sampled, to_csv, BUDGETS};
 
 #[derive(Args)]
 pub(crate) struct SweepArgs {
@@ -112,30 +113,16 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Resu
     let points = sweep_sampled(sampled, &name, &base, &BUDGETS);
     let knee_budget = knee(&points, args.knee);
     write_atomic(&dest, to_csv(&points).as_bytes())?;
+    let result = SweepResult {
+        points,
+        knee: knee_budget,
+        knee_fraction: args.knee,
+        outputs: vec![dest.display().to_string()],
+    };
     if print.json {
-        let v = serde_json::json!({
-            "points": points,
-            "knee": knee_budget,
-            "knee_fraction": args.knee,
-            "outputs": [dest.display().to_string()],
-        });
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).expect("plain values serialize")
-        );
-        return Ok(ExitCode::SUCCESS);
+        println!("{}", to_json(&result));
+    } else if !print.quiet {
+        print!("{}", result.text());
     }
-    if print.quiet {
-        return Ok(ExitCode::SUCCESS);
-    }
-    print!("{}", to_table(&points, knee_budget));
-    if let Some(k) = knee_budget {
-        println!(
-            "knee: budget {k} (smallest reaching {:.0}% of the saving at budget {})",
-            100.0 * args.knee,
-            BUDGETS[BUDGETS.len() - 1]
-        );
-    }
-    println!("wrote {}", dest.display());
     Ok(ExitCode::SUCCESS)
 }
