@@ -23,7 +23,7 @@ mod texture;
 pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::mesh::LayerMesh;
 use image::{ImageFormat, ImageReader, Limits};
 use std::fs;
@@ -157,7 +157,10 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         } else {
             (
                 format!("over the limit of {} texels in all", limits.max_pixels),
-                "split the layer into smaller tiles, or raise the limit with --max-texels".into(),
+                format!(
+                    "split the layer into smaller tiles, or raise the limit with {}",
+                    Setting::MaxTexels
+                ),
             )
         };
         return Err(FileError::new(
@@ -179,7 +182,10 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         image::ImageError::Limits(_) => FileError::new(
             path,
             format!("is {w} x {h} texels, too large to decode within the limits"),
-            "split the layer into smaller tiles, or raise the limit with --max-texels",
+            format!(
+                "split the layer into smaller tiles, or raise the limit with {}",
+                Setting::MaxTexels
+            ),
         ),
         other => match chunks::diagnose(bytes) {
             Some(why) => FileError::new(

@@ -107,7 +107,10 @@ pub(crate) fn run_layer(
         FileError::new(
             &dir,
             format!("the output folder cannot be created ({e})"),
-            "check that --out is writable and no file stands where this folder should be",
+            format!(
+                "check that {} is writable and no file stands where this folder should be",
+                Setting::Out
+            ),
         )
     })?;
     let image_uri = if outputs.gltf || outputs.glb {
@@ -118,7 +121,10 @@ pub(crate) fn run_layer(
                     "has no path relative to the output folder {} for the glTF image URI",
                     dir.display()
                 ),
-                "put the --out folder on the same drive as the layers",
+                format!(
+                    "put the {} folder on the same drive as the layers",
+                    Setting::Out
+                ),
             )
         })?)
     } else {
@@ -168,7 +174,7 @@ pub(crate) fn run_layer(
         return Err(FileError::new(
             &job.input,
             "would be overwritten by its own output file",
-            "choose another --out folder",
+            format!("choose another {} folder", Setting::Out),
         ));
     }
     let name = job

@@ -254,20 +254,21 @@ fn canonical(p: &Path) -> Option<PathBuf> {
 /// bad, a folder cannot be read.
 pub fn plan(req: &Request) -> Result<Plan, FileError> {
     let out_canon = canonical(&req.out);
-    let compile =
-        |ps: &[String], setting: Setting| -> Result<Vec<globset::GlobMatcher>, FileError> {
-            ps.iter()
+    let compile = |ps: &[String],
+                   setting: Setting|
+     -> Result<Vec<globset::GlobMatcher>, FileError> {
+        ps.iter()
                 .map(|p| {
                     settings_file::pattern(p).map_err(|e| {
                         FileError::new(
                             Path::new(&setting.to_string()),
                             e,
-                            "see `underdraw cut --help` for patterns",
+                            "a pattern matches the path relative to the input folder with `/`: `*` stays within a folder name, `**` crosses folders (see the README, Batches)",
                         )
                     })
                 })
                 .collect()
-        };
+    };
     let filter = walk::Filter {
         include: compile(&req.include, Setting::Include)?,
         exclude: compile(&req.exclude, Setting::Exclude)?,

@@ -11,7 +11,7 @@ use super::report::{HeatmapInfo, SceneReport};
 use super::score::{
     render_frame, saving_share, score_exact_frames_with, score_frames_with, summarize,
 };
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::Draw;
 use crate::heatmap::{counts_png, heatmap, rgb_png};
 use crate::io::write_if_changed;
@@ -105,7 +105,7 @@ impl Outputs {
                 return Err(FileError::new(
                     &dest,
                     "is one of the scene's inputs and would be overwritten",
-                    "choose another --out folder",
+                    format!("choose another {} folder", Setting::Out),
                 ));
             }
         }
@@ -141,7 +141,8 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             return Err(FileError::new(
                 &opts.scene,
                 format!(
-                    "--dump-frame {k} names no camera sample: the scene has {} (0 to {})",
+                    "{} names no camera sample: the scene has {} (0 to {})",
+                    Setting::DumpFrame.given(k),
                     scene.samples,
                     scene.samples - 1
                 ),
@@ -153,7 +154,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         FileError::new(
             &opts.out,
             format!("the output folder cannot be created ({e})"),
-            "choose a writable --out folder",
+            format!("choose a writable {} folder", Setting::Out),
         )
     })?;
     let mut out = Outputs {
@@ -351,7 +352,7 @@ fn write_report_page(
         FileError::new(
             dir,
             format!("the report folder cannot be created ({e})"),
-            "choose a writable --report folder",
+            format!("choose a writable {} folder", Setting::Report),
         )
     })?;
     let mut out = Outputs {
@@ -525,7 +526,10 @@ pub fn load_frame_dump(path: &Path) -> Result<FrameDump, FileError> {
         FileError::new(
             path,
             format!("is not a frame dump: {e}"),
-            "give a frame-K.json written by `underdraw scene --dump-frame K`",
+            format!(
+                "give a frame-K.json written by the scene command's {}",
+                Setting::DumpFrame.given("K")
+            ),
         )
     })
 }
