@@ -235,7 +235,7 @@ pub(crate) fn run_layer(
             sampled.validate().map_err(|why| {
                 FileError::new(
                     path,
-                    why,
+                    why.to_string(),
                     "give the texture compressed from this layer, at its size",
                 )
             })?;

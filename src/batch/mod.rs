@@ -262,7 +262,7 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
                     settings_file::pattern(p).map_err(|e| {
                         FileError::new(
                             Path::new(&setting.to_string()),
-                            e,
+                            e.to_string(),
                             "a pattern matches the path relative to the input folder with `/`: `*` stays within a folder name, `**` crosses folders (see the README, Batches)",
                         )
                     })

@@ -111,14 +111,27 @@ impl SettingsFile {
     }
 }
 
+/// A pattern that is not a valid glob.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[error("the pattern {pattern:?} is not valid ({reason})")]
+pub struct PatternError {
+    /// The pattern as given.
+    pub pattern: String,
+    /// What the glob parser found wrong.
+    pub reason: String,
+}
+
 /// Compiles a pattern as the batch matches it: `*` and `?` stay within one
 /// path component, `**` crosses them.
-pub fn pattern(p: &str) -> Result<GlobMatcher, String> {
+pub fn pattern(p: &str) -> Result<GlobMatcher, PatternError> {
     GlobBuilder::new(p)
         .literal_separator(true)
         .build()
         .map(|g| g.compile_matcher())
-        .map_err(|e| format!("the pattern {p:?} is not valid ({e})"))
+        .map_err(|e| PatternError {
+            pattern: p.to_string(),
+            reason: e.to_string(),
+        })
 }
 
 #[cfg(test)]

@@ -73,7 +73,7 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Resu
     if let (Err(why), Some(p)) = (sampled.validate(), &texture_path) {
         return Err(FileError::new(
             p,
-            why,
+            why.to_string(),
             "give the texture compressed from this layer, at its size",
         )
         .into());
