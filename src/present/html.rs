@@ -245,7 +245,7 @@ pub fn write_report_page(
         scene,
         dir,
         "report folder",
-        "choose a writable --report folder",
+        crate::error::Setting::Report,
     )?;
     let mut shown = Vec::new();
     for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {

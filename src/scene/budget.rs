@@ -35,7 +35,7 @@ use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
 use super::prepare::{cut_all, Layer};
 use super::score::mean_fragments;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::{render, Draw};
 use crate::mesh::LayerMesh;
 use crate::sweep::BUDGETS;
@@ -247,7 +247,7 @@ fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
         format!(
             "a vertex total of {total} cannot hold the scene's smallest meshes ({need} vertices)"
         ),
-        format!("give --vertex-total {need} or more"),
+        format!("give {} or more", Setting::VertexTotal.given(need)),
     )
 }
 

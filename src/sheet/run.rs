@@ -7,13 +7,14 @@
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
 use super::{cut_region, RegionCut, SheetAnalysis};
-use crate::batch::settings_file::{SettingsFile, Values};
+use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::export::gltf::{relative_uri, write_glb_with, write_gltf_with};
 use crate::io::{load_layer, write_if_changed, ImageLimits};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
+use crate::settings::PartialSettings;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
 
@@ -44,7 +45,7 @@ pub struct SheetRequest {
     /// The settings before the file.
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
-    pub overrides: Values,
+    pub overrides: PartialSettings,
     /// What to write per region (`preview` is not written for regions).
     pub outputs: Outputs,
     /// Also cut and write each frame of an animation alone.
@@ -127,7 +128,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &req.sheet,
                     "has no visible texel: no region was found",
-                    "check the sheet (or --visible-min)",
+                    format!("check the sheet (or {})", Setting::VisibleMin),
                 ));
             }
             let names = region_names(&stem, found.len());
@@ -138,7 +139,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &dest,
                     "is an input of this run: the found regions would be written over it",
-                    "give another --out folder",
+                    format!("give another {} folder", Setting::Out),
                 ));
             }
             if !replace
@@ -148,7 +149,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &dest,
                     "already exists with other regions (perhaps edited by hand): finding the regions again would replace it",
-                    "cut with --regions FILE to use it, or add --force to replace it with the regions found",
+                    format!("cut with {} to use it, or add {} to replace it with the regions found", Setting::Regions.given("FILE"), Setting::Force),
                 ));
             }
             write_if_changed(&dest, text.as_bytes())?;
@@ -210,7 +211,10 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 "regions {:?} and {:?} would both write {}.mesh.json",
                 w[0].1, w[1].1, w[0].0
             ),
-            "rename one of them (a frame k of an animation is written as <name>.<k> with --per-frame)",
+            format!(
+                "rename one of them (a frame k of an animation is written as <name>.<k> with {})",
+                Setting::PerFrame
+            ),
         ));
     }
     for r in &regions {
@@ -220,7 +224,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &dest,
                     "is an input of this run: a region's output would be written over it",
-                    "give another --out folder",
+                    format!("give another {} folder", Setting::Out),
                 ));
             }
         }
