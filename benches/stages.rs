@@ -14,13 +14,11 @@
 //! `underdraw cut` process on a 1024² and a 4096² soft layer against
 //! their decode, [`process`]), `--save-layers DIR` (also
 //! write each generated layer's PNG there, to look at or cut by hand). Writes the numbers as JSON
-//! to `target/bench-stages.json`. At 64 MP and more the `fit_layer` stage
-//! (a cross-check of the trace/fit split) is left out.
+//! to `target/bench-stages.json`.
 //!
 //! Invariants: only the library's public API is used, so the benchmark
-//! keeps working while the stages' internals change (the trace/fit split
-//! replicates `cut::fit_layer` with public items, and says so when its
-//! result drifts from `fit_layer`'s); every cut stage runs in a 1-thread
+//! keeps working while the stages' internals change (the split times the
+//! public stages of `underdraw::cut`, the ones `cut_layer` runs); every cut stage runs in a 1-thread
 //! rayon pool; a stage's time is the median of its runs; ratios are to the
 //! plain PNG decode (`image::load_from_memory`) of the same PNG, timed in
 //! the same process, since the machine's speed drifts; a stage's peak heap

@@ -6,8 +6,10 @@
 //! analytic coverage value (box overlap or signed distance), so alpha has
 //! realistic partial edges.
 //!
-//! Run: `cargo run --release --example demo_layers -- [OUT_DIR]`
-//! (default `demo-layers`).
+//! Run: `cargo run --release --example demo_layers -- [OUT_DIR] [SHEET_DIR]`
+//! (default `demo-layers`, and `demo-sheets` for the UI sprite sheet:
+//! buttons, a nine-slice panel, icons and a six-frame spark, packed with 0,
+//! 1 and 2 texels of padding, with its regions file).
 
 use std::fs::File;
 use std::io::BufWriter;
@@ -620,6 +622,185 @@ fn ui_button() -> Canvas {
     c
 }
 
+// ---------------------------------------------------------- UI sheet --
+
+/// The UI sheet's regions: (name, rect) and the panel's slices; the spark's
+/// six frames touch (no padding), the icons have one texel between them,
+/// buttons and panel two.
+const SHEET_W: i32 = 168;
+const SHEET_H: i32 = 104;
+const PLAY: [i32; 4] = [2, 2, 72, 28];
+const ROUND: [i32; 4] = [76, 2, 40, 40];
+const PANEL: [i32; 4] = [118, 2, 48, 48];
+const PANEL_SLICES: [i32; 4] = [12, 12, 12, 12];
+const ICONS: [[i32; 4]; 3] = [[2, 52, 24, 24], [27, 52, 24, 24], [52, 52, 24, 24]];
+const ICON_NAMES: [&str; 3] = ["icon-anchor", "icon-star", "icon-lantern"];
+const SPARK_Y: i32 = 77;
+const FRAME: i32 = 24;
+
+/// A box as [x0, y0, x1, y1] floats.
+fn fbox(r: [i32; 4]) -> [f32; 4] {
+    [
+        r[0] as f32,
+        r[1] as f32,
+        (r[0] + r[2]) as f32,
+        (r[1] + r[3]) as f32,
+    ]
+}
+
+/// The UI sprite sheet: a pill "play" button and a round one, a bevelled
+/// panel for nine-slice stretching, three icons (anchor, star, lantern)
+/// and six frames of a spark (a growing core, a turning ray).
+fn ui_sheet() -> Canvas {
+    let mut c = Canvas::new(SHEET_W, SHEET_H);
+    // pill button: a rounded box filling its rectangle, lit from above
+    let b = fbox(PLAY);
+    let (ctr, half) = ([(b[0] + b[2]) / 2.0, (b[1] + b[3]) / 2.0], [36.0, 14.0]);
+    c.paint(b, |x, y| {
+        let p = centre(x, y);
+        let d = sd_round_rect(p, ctr, half, 13.5);
+        let t = (p[1] - b[1]) / 28.0;
+        let col = mix(rgb(120, 200, 150), rgb(40, 110, 90), t);
+        (mix(col, rgb(20, 50, 40), smoothstep(-2.0, -1.0, d)), cov(d))
+    });
+    // play triangle on the pill
+    c.polygon(
+        &[[30.0, 8.0], [30.0, 24.0], [44.0, 16.0]],
+        rgb(240, 250, 230),
+    );
+    // round button with a soft glow in its corners
+    let b = fbox(ROUND);
+    let (cx, cy) = ((b[0] + b[2]) / 2.0, (b[1] + b[3]) / 2.0);
+    c.paint(b, |x, y| {
+        let p = centre(x, y);
+        let d = (p[0] - cx).hypot(p[1] - cy) - 16.0;
+        let glow = 0.45 * (1.0 - smoothstep(-1.0, 5.0, d));
+        (rgb(250, 180, 90), glow)
+    });
+    c.paint(b, |x, y| {
+        let p = centre(x, y);
+        let d = (p[0] - cx).hypot(p[1] - cy) - 16.0;
+        let t = ((p[1] - cy) / 16.0 + 1.0) * 0.5;
+        (mix(rgb(246, 150, 80), rgb(160, 70, 50), t), cov(d))
+    });
+    // panel: rounded, bevelled, drawn to be stretched
+    let b = fbox(PANEL);
+    let (ctr, half) = ([(b[0] + b[2]) / 2.0, (b[1] + b[3]) / 2.0], [24.0, 24.0]);
+    c.paint(b, |x, y| {
+        let p = centre(x, y);
+        let d = sd_round_rect(p, ctr, half, 9.0);
+        let bevel = 1.0 - smoothstep(2.0, 4.0, -d);
+        (
+            mix(rgb(60, 52, 96), rgb(190, 160, 220), bevel * 0.7),
+            cov(d),
+        )
+    });
+    // icons: an anchor, a star, a lantern
+    let [ax, ay, _, _] = ICONS[0].map(|v| v as f32);
+    c.stroke(
+        &[[ax + 12.0, ay + 2.5], [ax + 12.0, ay + 21.0]],
+        4.0,
+        rgb(210, 220, 230),
+        1.0,
+    );
+    c.stroke(
+        &[[ax + 5.0, ay + 7.0], [ax + 19.0, ay + 7.0]],
+        4.0,
+        rgb(210, 220, 230),
+        1.0,
+    );
+    c.stroke(
+        &[
+            [ax + 1.5, ay + 14.0],
+            [ax + 4.0, ay + 20.0],
+            [ax + 12.0, ay + 22.5],
+            [ax + 20.0, ay + 20.0],
+            [ax + 22.5, ay + 14.0],
+        ],
+        3.0,
+        rgb(210, 220, 230),
+        1.0,
+    );
+    let [sx, sy, _, _] = ICONS[1].map(|v| v as f32);
+    let star: Vec<[f32; 2]> = (0..10)
+        .map(|k| {
+            let a = std::f32::consts::PI * (k as f32 / 5.0 - 0.5);
+            let r = if k % 2 == 0 { 11.8 } else { 5.0 };
+            [sx + 12.0 + r * a.cos(), sy + 12.6 + r * a.sin()]
+        })
+        .collect();
+    c.polygon(&star, rgb(250, 220, 110));
+    let [lx, ly, _, _] = ICONS[2].map(|v| v as f32);
+    c.polygon(
+        &[
+            [lx + 5.0, ly + 7.0],
+            [lx + 12.0, ly + 0.5],
+            [lx + 19.0, ly + 7.0],
+        ],
+        rgb(70, 60, 50),
+    );
+    let lb = [lx + 5.0, ly + 7.0, lx + 19.0, ly + 23.5];
+    c.paint(lb, |x, y| {
+        let p = centre(x, y);
+        let d = sd_round_rect(p, [lx + 12.0, ly + 15.25], [7.0, 8.25], 2.5);
+        let glow = 1.0 - smoothstep(0.0, 6.0, (p[0] - lx - 12.0).hypot(p[1] - ly - 15.0));
+        (mix(rgb(120, 80, 40), rgb(255, 230, 140), glow), cov(d))
+    });
+    // spark: six frames in a row, touching
+    for k in 0..6 {
+        let (x0, y0) = ((2 + k * FRAME) as f32, SPARK_Y as f32);
+        let (cx, cy) = (x0 + 12.0, y0 + 12.0);
+        let r = 4.0 + k as f32 * 0.9;
+        let ang = k as f32 * 0.55;
+        let tip = [cx + 11.9 * ang.cos(), cy + 11.9 * ang.sin()];
+        c.blade([cx, cy], tip, 2.2, 0.6, rgb(255, 200, 120));
+        c.paint([x0, y0, x0 + 24.0, y0 + 24.0], |x, y| {
+            let p = centre(x, y);
+            let d = (p[0] - cx).hypot(p[1] - cy) - r;
+            (
+                mix(
+                    rgb(255, 250, 220),
+                    rgb(255, 170, 60),
+                    smoothstep(-r, 0.0, d),
+                ),
+                cov(d),
+            )
+        });
+    }
+    c
+}
+
+/// The UI sheet's regions file (our own format `underdraw.regions`).
+fn ui_sheet_regions() -> String {
+    let rect = |r: [i32; 4]| format!("[{}, {}, {}, {}]", r[0], r[1], r[2], r[3]);
+    let mut lines = vec![
+        format!("  {{\"name\": \"button-play\", \"rect\": {}}}", rect(PLAY)),
+        format!(
+            "  {{\"name\": \"button-round\", \"rect\": {}}}",
+            rect(ROUND)
+        ),
+        format!(
+            "  {{\"name\": \"panel\", \"rect\": {}, \"slices\": {}}}",
+            rect(PANEL),
+            rect(PANEL_SLICES)
+        ),
+    ];
+    for (n, r) in ICON_NAMES.iter().zip(ICONS) {
+        lines.push(format!("  {{\"name\": \"{n}\", \"rect\": {}}}", rect(r)));
+    }
+    let frames: Vec<String> = (0..6)
+        .map(|k| rect([2 + k * FRAME, SPARK_Y, FRAME, FRAME]))
+        .collect();
+    lines.push(format!(
+        "  {{\"name\": \"spark\", \"frames\": [{}]}}",
+        frames.join(", ")
+    ));
+    format!(
+        "{{\"format\": \"underdraw.regions\", \"version\": 1,\n \"regions\": [\n{}\n ]}}\n",
+        lines.join(",\n")
+    )
+}
+
 fn main() -> anyhow::Result<()> {
     let out = std::env::args()
         .nth(1)
@@ -634,5 +815,13 @@ fn main() -> anyhow::Result<()> {
     pier().save(dir, "pier.png", true)?;
     ui_panel().save(dir, "ui-panel.png", true)?;
     ui_button().save(dir, "ui-button.png", true)?;
+    let sheets = std::env::args()
+        .nth(2)
+        .unwrap_or_else(|| "demo-sheets".into());
+    let sheets = Path::new(&sheets);
+    std::fs::create_dir_all(sheets)?;
+    ui_sheet().save(sheets, "ui-sheet.png", true)?;
+    std::fs::write(sheets.join("ui-sheet.regions.json"), ui_sheet_regions())?;
+    println!("wrote {}", sheets.join("ui-sheet.regions.json").display());
     Ok(())
 }

@@ -1,17 +1,28 @@
-//! The whole cut of one layer: alpha analysis → outline tracing → fitting to
-//! the budget → triangulation → vertex ordering → the mesh file's value,
-//! self-checked.
+//! The whole cut of one layer, as a chain of public stages, each a plain
+//! function from one typed value to the next:
+//!
+//! | stage | from → to | invariant of the value |
+//! |---|---|---|
+//! | [`prepare_regions`] | what the GPU samples ([`Sampled`]) → [`PreparedRegions`] | the must-cover region traced with its pinches filled, the safe-opaque region as row runs, their areas and texel classes |
+//! | [`fit_regions`] | [`PreparedRegions`] → [`Outlines`] | at most `budget` distinct vertex positions; opaque rings inside the safe region, covering rings around the must-cover region |
+//! | [`triangulate_outlines`] | a [`Fit`] → [`Triangulation`] | two triangle lists over one vertex array, vertices in the three runs of [`crate::vertex_order`] |
+//! | [`layer_mesh`] | [`Outlines`] + [`Triangulation`] → [`LayerMesh`] | the mesh file's value with its statistics |
+//!
+//! [`cut_sampled`] (and [`cut_layer`] for a PNG's alpha) runs the stages,
+//! checks the mesh with the independent [`crate::check`] and falls back to
+//! a plainer mesh when the check fails; [`fit_layer`] runs the first two.
+//! Every caller that cuts (`batch`, `sweep`, `scene`, the benchmarks) goes
+//! through these functions: there is no other copy of the glue.
 //!
 //! Invariant: a [`LayerMesh`] returned by [`cut_layer`] satisfies the
 //! contract (as verified by the independent [`crate::check`]); when a step
 //! of the fast path fails that check, the cut falls back to a plainer mesh
 //! that passes it, and says so in [`CutOutcome::notes`].
 
-use crate::alpha::{
-    analyze_runs, must_cover_sampled, safe_opaque_sampled, AlphaMap, RegionStats, Regions, Sampled,
-};
+use crate::alpha::{must_cover_sampled, safe_opaque_sampled, AlphaMap, RegionStats, Sampled};
 use crate::check::check_mesh_sampled;
-use crate::fit::{fit_outlines, prepare_cover, Class, Fit};
+use crate::fit::{fit_outlines, prepare_cover, Class, Fit, Prepared};
+use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
@@ -29,22 +40,159 @@ pub struct CutOutcome {
     pub notes: Vec<String>,
 }
 
-/// The fitted outlines of a layer at a budget, before triangulation.
-pub struct Outlines {
-    /// The safe-opaque and must-cover regions.
-    pub regions: Regions,
-    /// The outlines fitted to the budget.
-    pub fit: Fit,
+/// Stage 1's value: the layer's two regions, ready for fitting.
+///
+/// Invariants: `cover` is the must-cover region with its pinches filled,
+/// traced and indexed ([`prepare_cover`]); `safe` is the safe-opaque
+/// region's row runs (its pinches are removed and it is traced by the
+/// fitter, once per variant); `stats` holds both regions' areas and the
+/// layer's texel classes; `size` is level 0's width and height.
+pub struct PreparedRegions {
+    /// The safe-opaque region as row runs on the half-texel grid.
+    pub safe: RowRuns,
+    /// The must-cover region, prepared for fitting.
+    pub cover: Prepared,
+    /// The regions' areas and the texel classes.
+    pub stats: RegionStats,
+    /// Level 0's width and height, texels.
+    pub size: [u32; 2],
 }
 
-/// Analyzes, traces and fits a layer's outlines to `settings.budget`.
+/// Stage 1: the alpha analysis of what the GPU samples, one region at a
+/// time as row runs (the must-cover one is prepared before the safe one is
+/// built, so only one region's analysis is live at a time).
+///
+/// ```
+/// use underdraw::{alpha::{AlphaMap, Sampled}, cut::prepare_regions, settings::CutSettings};
+/// // an 8x8 layer, a 4x4 opaque square in its middle, transparent around
+/// let alpha: Vec<u8> = (0..64)
+///     .map(|i| if (2..6).contains(&(i % 8)) && (2..6).contains(&(i / 8)) { 255 } else { 0 })
+///     .collect();
+/// let map = AlphaMap::from_raw(8, 8, alpha);
+/// let r = prepare_regions(Sampled::source(&map), &CutSettings::default());
+/// // bilinear: a sample is fully opaque only where its four texels all are
+/// // (texel centres 2.5..5.5: a 3x3 square), and visible wherever one is
+/// // (1.5..6.5: a 5x5 square)
+/// assert_eq!((r.stats.opaque_texels, r.stats.transparent_texels), (16, 48));
+/// assert_eq!((r.stats.safe_opaque_area, r.stats.must_cover_area), (9.0, 25.0));
+/// assert_eq!(r.size, [8, 8]);
+/// ```
+pub fn prepare_regions(sampled: Sampled, settings: &CutSettings) -> PreparedRegions {
+    let map = sampled.level0();
+    let (cover_runs, cover_area) = must_cover_sampled(sampled, settings);
+    let cover = prepare_cover(cover_runs);
+    let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
+    PreparedRegions {
+        safe,
+        cover,
+        stats: RegionStats::new(map, settings.alpha, safe_area, cover_area),
+        size: [map.width, map.height],
+    }
+}
+
+/// Stage 2's value: the fitted outlines of a layer at a budget, before
+/// triangulation.
+///
+/// Invariants: those of [`Fit`] (at most the budget's distinct vertex
+/// positions; opaque rings inside the safe region, covering rings around
+/// the must-cover region); `stats` and `size` are stage 1's.
+#[derive(Clone, Debug)]
+pub struct Outlines {
+    /// The outlines fitted to the budget.
+    pub fit: Fit,
+    /// The regions' areas and the texel classes.
+    pub stats: RegionStats,
+    /// Level 0's width and height, texels.
+    pub size: [u32; 2],
+}
+
+/// Stage 2: fits the regions' outlines to `budget` (the fitter's entry,
+/// [`fit_outlines`]); the prepared regions are consumed.
+///
+/// ```
+/// use underdraw::{alpha::{AlphaMap, Sampled}, cut::{fit_regions, prepare_regions}};
+/// use underdraw::{fit::Class, settings::CutSettings};
+/// // a 16x16 fully opaque layer: both regions are the whole rectangle
+/// let map = AlphaMap::from_raw(16, 16, vec![255; 256]);
+/// let regions = prepare_regions(Sampled::source(&map), &CutSettings::default());
+/// let outlines = fit_regions(regions, 4);
+/// // one rectangle, its four corners shared by both outlines
+/// assert_eq!(outlines.fit.vertices, 4);
+/// assert_eq!(outlines.fit.outline_vertices(Class::Opaque), 4);
+/// assert_eq!(outlines.fit.outline_vertices(Class::Cover), 4);
+/// ```
+pub fn fit_regions(regions: PreparedRegions, budget: usize) -> Outlines {
+    let PreparedRegions {
+        safe,
+        cover,
+        stats,
+        size,
+    } = regions;
+    let fit = fit_outlines(safe, &cover, budget);
+    drop(cover);
+    Outlines { fit, stats, size }
+}
+
+/// Stages 1 and 2 on a PNG's alpha: analyzes, traces and fits a layer's
+/// outlines to `settings.budget`.
 pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
-    let runs = analyze_runs(map, settings);
-    let regions = Regions::from_runs(&runs);
-    let (safe, cover, _) = runs;
-    let cover = prepare_cover(cover);
-    let fit = fit_outlines(safe, &cover, settings.budget);
-    Outlines { regions, fit }
+    fit_regions(
+        prepare_regions(Sampled::source(map), settings),
+        settings.budget,
+    )
+}
+
+/// Stage 3: fitted rings → an opaque and a blended triangle list over one
+/// vertex array ([`triangulate`]), the vertices renumbered and the
+/// triangles sorted ([`order_vertices`]); fails when the rings cannot be
+/// triangulated.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, cut::{fit_layer, triangulate_outlines}, settings::CutSettings};
+/// // a 16x16 fully opaque layer: one opaque quad, two triangles
+/// let map = AlphaMap::from_raw(16, 16, vec![255; 256]);
+/// let outlines = fit_layer(&map, &CutSettings::default());
+/// let t = triangulate_outlines(&outlines.fit).unwrap();
+/// assert_eq!((t.positions.len(), t.opaque.len(), t.blended.len()), (4, 2, 0));
+/// ```
+pub fn triangulate_outlines(fit: &Fit) -> Result<Triangulation, String> {
+    let mut t = triangulate(fit)?;
+    order_vertices(&mut t);
+    Ok(t)
+}
+
+/// Stage 4: the mesh file's value from the fitted outlines (their
+/// statistics) and their triangulation: positions in texels, UVs over the
+/// layer, the two index lists and the statistics. Not checked: that is
+/// [`cut_sampled`]'s job.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, cut::{fit_layer, layer_mesh, triangulate_outlines}};
+/// use underdraw::settings::CutSettings;
+/// let map = AlphaMap::from_raw(16, 16, vec![255; 256]);
+/// let settings = CutSettings::default();
+/// let outlines = fit_layer(&map, &settings);
+/// let t = triangulate_outlines(&outlines.fit).unwrap();
+/// let mesh = layer_mesh(&outlines, &t, "quad.png", &settings);
+/// assert_eq!(mesh.size, [16, 16]);
+/// assert_eq!(mesh.vertex_count(), 4);
+/// // the opaque quad covers the whole 16 x 16 layer
+/// assert_eq!((mesh.stats.opaque_area, mesh.stats.covered_area), (256.0, 256.0));
+/// ```
+pub fn layer_mesh(
+    outlines: &Outlines,
+    t: &Triangulation,
+    source: &str,
+    settings: &CutSettings,
+) -> LayerMesh {
+    to_mesh(
+        outlines.size,
+        source,
+        settings,
+        &outlines.stats,
+        &outlines.fit,
+        t,
+    )
 }
 
 /// Cuts one layer into its opaque and blended meshes.
@@ -65,23 +213,63 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
 /// Cuts one layer against what the GPU samples ([`Sampled`]): a shipped
 /// texture's decoded levels, alone or with the source's block levels (then
 /// the meshes hold for both). The levels must
-/// [validate](Sampled::validate).
+/// [validate](Sampled::validate). Runs the stages of this module in order
+/// and checks the result.
 pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> CutOutcome {
-    let map = sampled.level0();
-    // one region at a time, as runs: the must-cover one is prepared before
-    // the safe one is built
-    let (cover_mask, cover_area) = must_cover_sampled(sampled, settings);
-    let cover = prepare_cover(cover_mask);
-    let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
-    let fit = fit_outlines(safe, &cover, settings.budget);
-    drop(cover);
-    let regions = RegionStats::new(map, settings.alpha, safe_area, cover_area);
+    let outlines = fit_regions(prepare_regions(sampled, settings), settings.budget);
+    finish(outlines, source, settings, &|mesh: &LayerMesh| {
+        let report =
+            check_mesh_sampled(mesh, sampled.source, sampled.shipped).map_err(|e| e.to_string())?;
+        if report.holds() {
+            Ok(())
+        } else {
+            Err(report.violations().join("; "))
+        }
+    })
+}
+
+/// Cuts regions that were analyzed elsewhere: `safe` and `cover` on the
+/// half-texel grid of a `size` (W x H texels) rectangle, such as a sprite
+/// sheet's regions clipped to one region's rectangle ([`crate::sheet`]).
+/// `regions` holds their areas and the rectangle's texel classes; `check`
+/// verifies a mesh (positions in the rectangle's texels) and says why it
+/// fails. The stages, the fallback and the notes are those of
+/// [`cut_sampled`].
+pub fn cut_runs(
+    size: (u32, u32),
+    (safe, cover): (RowRuns, RowRuns),
+    regions: &RegionStats,
+    source: &str,
+    settings: &CutSettings,
+    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+) -> CutOutcome {
+    let prepared = PreparedRegions {
+        safe,
+        cover: prepare_cover(cover),
+        stats: *regions,
+        size: [size.0, size.1],
+    };
+    finish(
+        fit_regions(prepared, settings.budget),
+        source,
+        settings,
+        check,
+    )
+}
+
+/// Stages 3 and 4 and the self-check, with the fallback: when the mesh
+/// fails `check`, the covering outline alone, all blended.
+fn finish(
+    outlines: Outlines,
+    source: &str,
+    settings: &CutSettings,
+    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+) -> CutOutcome {
     let mut notes = Vec::new();
-    if fit.cover.is_empty() {
+    if outlines.fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
     }
-    let attempt = triangulate(&fit).and_then(|mut t| {
-        order_vertices(&mut t);
+    let attempt = triangulate_outlines(&outlines.fit).and_then(|t| {
         if t.positions.len() > settings.budget {
             return Err(format!(
                 "{} vertices after triangulation, over the budget of {}",
@@ -89,14 +277,8 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
                 settings.budget
             ));
         }
-        let mesh = to_mesh(map, source, settings, &regions, &fit, &t);
-        let report = check_mesh_sampled(&mesh, sampled.source, sampled.shipped)
-            .map_err(|e| e.to_string())?;
-        if report.holds() {
-            Ok(mesh)
-        } else {
-            Err(report.violations().join("; "))
-        }
+        let mesh = layer_mesh(&outlines, &t, source, settings);
+        check(&mesh).map(|()| mesh)
     });
     let mesh = match attempt {
         Ok(mesh) => mesh,
@@ -105,14 +287,16 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
             notes.push(format!(
                 "opaque mesh left out: its triangulation failed the contract check ({why})"
             ));
-            let plain = Fit {
-                opaque: Vec::new(),
-                cover: fit.cover.clone(),
-                vertices: fit.outline_vertices(Class::Cover),
+            let plain = Outlines {
+                fit: Fit {
+                    opaque: Vec::new(),
+                    cover: outlines.fit.cover.clone(),
+                    vertices: outlines.fit.outline_vertices(Class::Cover),
+                },
+                ..outlines
             };
-            let mut t = triangulate(&plain).unwrap_or_default();
-            order_vertices(&mut t);
-            to_mesh(map, source, settings, &regions, &plain, &t)
+            let t = triangulate_outlines(&plain.fit).unwrap_or_default();
+            layer_mesh(&plain, &t, source, settings)
         }
     };
     let s = &mesh.stats;
@@ -136,14 +320,14 @@ fn area(pos: &[Point], tris: &[[u32; 3]]) -> f64 {
 }
 
 fn to_mesh(
-    map: &AlphaMap,
+    size: [u32; 2],
     source: &str,
     settings: &CutSettings,
     regions: &RegionStats,
     fit: &Fit,
     t: &Triangulation,
 ) -> LayerMesh {
-    let (w, h) = (map.width as f32, map.height as f32);
+    let (w, h) = (size[0] as f32, size[1] as f32);
     let mut positions = Vec::with_capacity(t.positions.len() * 2);
     let mut uvs = Vec::with_capacity(t.positions.len() * 2);
     for p in &t.positions {
@@ -176,7 +360,7 @@ fn to_mesh(
         format: FORMAT.to_string(),
         version: VERSION,
         source: source.to_string(),
-        size: [map.width, map.height],
+        size,
         filter: settings.filter,
         alpha: settings.alpha,
         wrap: settings.wrap,
@@ -187,5 +371,6 @@ fn to_mesh(
         opaque: flat(&t.opaque),
         blended: flat(&t.blended),
         stats,
+        region: None,
     }
 }

@@ -1,5 +1,5 @@
 //! Overdraw heatmaps: fragments shaded per pixel as colour, with a legend
-//! strip below the image, and the plain 16-bit counts image.
+//! strip below the image (as PNG bytes with [`crate::present::png`]).
 //!
 //! The colour ramp is our own: black (no fragment) through blue, purple,
 //! red, orange and yellow to white, one colour per whole count from 0 to
@@ -10,11 +10,10 @@
 //! reads brighter, in grey print too.
 //!
 //! The legend labels each colour with its count, drawn with the embedded
-//! font of [`crate::text`] at half the strip's height.
+//! font of [`crate::present::glyphs`] at half the strip's height.
 
-use crate::text::{draw_text, line_height, text_width};
-use image::{DynamicImage, ImageBuffer, ImageFormat, Luma, Rgb, RgbImage, RgbaImage};
-use std::io::Cursor;
+use crate::present::glyphs::{draw_text, line_height, text_width};
+use image::{Rgb, RgbImage};
 
 /// The ramp's anchors, evenly spaced from 0 to 1.
 const ANCHORS: [[u8; 3]; 7] = [
@@ -88,35 +87,6 @@ pub fn heatmap(counts: &[u32], width: u32, height: u32, top: u32) -> RgbImage {
         draw_text(&mut img, &label, tx as i32, ty as i32, px, Rgb(ink));
     }
     img
-}
-
-fn png(image: DynamicImage) -> Vec<u8> {
-    let mut bytes = Vec::new();
-    image
-        .write_to(&mut Cursor::new(&mut bytes), ImageFormat::Png)
-        .expect("PNG encoding into memory does not fail");
-    bytes
-}
-
-/// An RGBA image as PNG bytes.
-pub fn rgba_png(img: RgbaImage) -> Vec<u8> {
-    png(DynamicImage::ImageRgba8(img))
-}
-
-/// An RGB image as PNG bytes.
-pub fn rgb_png(img: RgbImage) -> Vec<u8> {
-    png(DynamicImage::ImageRgb8(img))
-}
-
-/// Per-pixel counts as a 16-bit greyscale PNG (counts above 65535 clamp).
-pub fn counts_png(counts: &[u32], width: u32, height: u32) -> Vec<u8> {
-    let data: Vec<u16> = counts
-        .iter()
-        .map(|&c| c.min(u16::MAX as u32) as u16)
-        .collect();
-    let buf: ImageBuffer<Luma<u16>, Vec<u16>> =
-        ImageBuffer::from_raw(width, height, data).expect("counts are width x height");
-    png(DynamicImage::ImageLuma16(buf))
 }
 
 #[cfg(test)]

@@ -17,15 +17,17 @@
 
 mod astc;
 mod chunks;
+mod folder;
 mod ktx2;
 mod texture;
 
+pub use folder::{backup_path, staged_path, NamedBytes, OutputFolder};
 pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::mesh::LayerMesh;
-use image::{ImageFormat, ImageReader, Limits};
+use image::{DynamicImage, ImageFormat, ImageReader, Limits, RgbaImage};
 use std::fs;
 use std::io::{Cursor, Read, Write};
 use std::path::Path;
@@ -80,14 +82,7 @@ pub fn load_alpha(path: &Path) -> Result<AlphaMap, FileError> {
 
 /// Reads a PNG layer within `limits`.
 pub fn load_layer(path: &Path, limits: &ImageLimits) -> Result<Layer, FileError> {
-    let bytes = fs::read(path).map_err(|e| {
-        FileError::new(
-            path,
-            format!("cannot be read ({e})"),
-            "check the path and the file's permissions",
-        )
-    })?;
-    decode_layer(path, &bytes, limits)
+    decode_layer(path, &read_input(path)?, limits)
 }
 
 /// Decodes PNG bytes with the default limits (`path` only names them in
@@ -98,6 +93,108 @@ pub fn decode_alpha(path: &Path, bytes: &[u8]) -> Result<AlphaMap, FileError> {
 
 /// Decodes PNG bytes within `limits` (`path` only names them in errors).
 pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<Layer, FileError> {
+    let (image, warnings) = decode_png(path, bytes, limits)?;
+    Ok(Layer {
+        alpha: AlphaMap::from_image(&image),
+        warnings,
+    })
+}
+
+/// Decodes PNG bytes within `limits` to 8-bit RGBA (for pictures drawn
+/// over the layer, such as previews), with the checks of [`decode_layer`].
+pub fn decode_rgba(
+    path: &Path,
+    bytes: &[u8],
+    limits: &ImageLimits,
+) -> Result<RgbaImage, FileError> {
+    decode_png(path, bytes, limits).map(|(image, _)| image.to_rgba8())
+}
+
+/// Reads a PNG layer within `limits` as 8-bit RGBA ([`decode_rgba`]).
+pub fn load_rgba(path: &Path, limits: &ImageLimits) -> Result<RgbaImage, FileError> {
+    decode_rgba(path, &read_input(path)?, limits)
+}
+
+/// What a layer file holds: a PNG's alpha, or a shipped texture's levels
+/// (KTX 2.0 or `.astc`, told apart by the file's first bytes).
+#[derive(Clone, Debug)]
+pub enum LayerFile {
+    /// A PNG layer ([`decode_layer`]).
+    Png(Layer),
+    /// A shipped texture ([`decode_texture`]).
+    Texture(Texture),
+}
+
+impl LayerFile {
+    /// Level 0's alpha (the PNG's, or the texture's level 0) with the
+    /// warnings about the file.
+    pub fn into_layer(self) -> Layer {
+        match self {
+            LayerFile::Png(layer) => layer,
+            LayerFile::Texture(t) => Layer {
+                alpha: t.levels.into_iter().next().expect("a texture has a level"),
+                warnings: Vec::new(),
+            },
+        }
+    }
+}
+
+/// Reads a layer file within `limits`: a shipped texture when its first
+/// bytes say so ([`is_texture`]), else a PNG. The one entry for a layer
+/// that may ship compressed.
+pub fn read_layer_file(path: &Path, limits: &ImageLimits) -> Result<LayerFile, FileError> {
+    let bytes = read_input(path)?;
+    if is_texture(&bytes) {
+        decode_texture(path, &bytes, limits).map(LayerFile::Texture)
+    } else {
+        decode_layer(path, &bytes, limits).map(LayerFile::Png)
+    }
+}
+
+/// Reads an input file whole, or says why it cannot be read.
+pub fn read_input(path: &Path) -> Result<Vec<u8>, FileError> {
+    fs::read(path).map_err(|e| {
+        FileError::new(
+            path,
+            format!("cannot be read ({e})"),
+            "check the path and the file's permissions",
+        )
+    })
+}
+
+/// The width and height of the image at `path` from its header (any
+/// format the image crate reads; nothing is decoded), or of a shipped
+/// texture's level 0 (decoded within the default limits): what a mesh
+/// file's `size` is checked against.
+pub fn image_size(path: &Path) -> Result<(u32, u32), FileError> {
+    let mut head = [0u8; 16];
+    let n = fs::File::open(path)
+        .and_then(|mut f| f.read(&mut head))
+        .unwrap_or(0);
+    if is_texture(&head[..n]) {
+        return load_texture(path, &ImageLimits::default()).map(|t| t.size());
+    }
+    ImageReader::open(path)
+        .and_then(|r| r.with_guessed_format())
+        .map_err(|e| e.to_string())
+        .and_then(|r| r.into_dimensions().map_err(|e| e.to_string()))
+        .map_err(|e| {
+            FileError::new(
+                path,
+                format!("cannot be read as an image ({e})"),
+                "export the layer as PNG",
+            )
+        })
+}
+
+/// The one PNG decode: the header checked against `limits` before
+/// anything large is allocated, then the decode under an allocation limit;
+/// with the warnings about the file.
+fn decode_png(
+    path: &Path,
+    bytes: &[u8],
+    limits: &ImageLimits,
+) -> Result<(DynamicImage, Vec<String>), FileError> {
     if bytes.is_empty() {
         return Err(FileError::new(
             path,
@@ -157,7 +254,10 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         } else {
             (
                 format!("over the limit of {} texels in all", limits.max_pixels),
-                "split the layer into smaller tiles, or raise the limit with --max-texels".into(),
+                format!(
+                    "split the layer into smaller tiles, or raise the limit with {}",
+                    Setting::MaxTexels
+                ),
             )
         };
         return Err(FileError::new(
@@ -179,7 +279,10 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
         image::ImageError::Limits(_) => FileError::new(
             path,
             format!("is {w} x {h} texels, too large to decode within the limits"),
-            "split the layer into smaller tiles, or raise the limit with --max-texels",
+            format!(
+                "split the layer into smaller tiles, or raise the limit with {}",
+                Setting::MaxTexels
+            ),
         ),
         other => match chunks::diagnose(bytes) {
             Some(why) => FileError::new(
@@ -212,10 +315,7 @@ pub fn decode_layer(path: &Path, bytes: &[u8], limits: &ImageLimits) -> Result<L
             )
         });
     }
-    Ok(Layer {
-        alpha: AlphaMap::from_image(&image),
-        warnings,
-    })
+    Ok((image, warnings))
 }
 
 /// Reads a mesh file.

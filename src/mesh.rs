@@ -109,15 +109,27 @@ impl MeshStats {
 }
 
 /// How a vertex is stored for the GPU: a position and a texture coordinate.
+/// With the `cli` feature, also the command line's value enum.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[cfg_attr(feature = "cli", derive(clap::ValueEnum))]
 #[serde(rename_all = "lowercase")]
 pub enum VertexFormat {
     /// 32-bit floats: position x, y and texture coordinate u, v (16 bytes).
     #[default]
+    #[cfg_attr(
+        feature = "cli",
+        value(help = "32-bit floats: position and texture coordinate, 16 bytes a vertex")
+    )]
     F32,
     /// Unsigned 16-bit integers: position in half-texel units, texture
     /// coordinate normalized (8 bytes). Exact: every position lies on a
     /// multiple of half a texel.
+    #[cfg_attr(
+        feature = "cli",
+        value(
+            help = "16-bit: positions in half texels, texture coordinates normalized, 8 bytes a vertex (glTF's KHR_mesh_quantization; layers up to 32767 texels a side)"
+        )
+    )]
     U16,
 }
 
@@ -186,6 +198,41 @@ pub struct LayerMesh {
     pub blended: TriangleList,
     /// The numbers of the cut: areas, vertex and triangle counts, texel classes.
     pub stats: MeshStats,
+    /// For a region of a sprite sheet ([`crate::sheet`]): where it lies in
+    /// the sheet (positions are then local to the region, `uvs` address
+    /// the sheet). Absent from a plain layer's file.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub region: Option<MeshRegion>,
+}
+
+/// Where a region mesh lies in its sprite sheet, and how it is drawn
+/// (the `region` key of a mesh file; see [`crate::sheet`]).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct MeshRegion {
+    /// The sheet's file name.
+    pub sheet: String,
+    /// The sheet's size in texels, [W, H].
+    pub sheet_size: [u32; 2],
+    /// The region's rectangle in the sheet, [x, y, w, h] in texels (for an
+    /// animation, its first frame).
+    pub rect: [u32; 4],
+    /// Nine-slice insets in texels from the left, top, right and bottom
+    /// edges, for a panel drawn stretched.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub slices: Option<[u32; 4]>,
+    /// Per vertex of a nine-slice panel: slice column and row (0, 1, 2) and
+    /// the offset in texels inside that slice, [column, row, dx, dy], so an
+    /// engine places the vertex at any panel size.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub slice_positions: Option<Vec<[f32; 4]>>,
+    /// The frames of an animation, [x, y, w, h] each (all of one size): one
+    /// mesh serves every frame.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub frames: Option<Vec<[u32; 4]>>,
+    /// Per frame, what to add to `uvs` to draw that frame.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub frame_uv_offsets: Option<Vec<[f32; 2]>>,
 }
 
 impl LayerMesh {

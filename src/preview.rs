@@ -34,7 +34,7 @@
 //! opaque.
 //!
 //! The caption ([`caption_items`]) is drawn with the embedded font of
-//! [`crate::text`] at [`caption_px`], so it stays legible when the report
+//! [`crate::present::glyphs`] at [`caption_px`], so it stays legible when the report
 //! shows the preview at half its width.
 //!
 //! The colours are our own. The two tints are a blue and an orange: they
@@ -45,9 +45,9 @@
 use crate::alpha::{AlphaMap, Regions};
 use crate::mask::Mask;
 use crate::mesh::{LayerMesh, TriangleList};
+use crate::present::glyphs::{draw_text, line_height, text_width};
 use crate::quality::CutNumbers;
 use crate::settings::CutSettings;
-use crate::text::{draw_text, line_height, text_width};
 use image::{Rgba, RgbaImage};
 use imageproc::drawing::draw_line_segment_mut;
 

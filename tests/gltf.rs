@@ -292,6 +292,7 @@ fn strip_mesh(n: usize) -> LayerMesh {
         opaque: TriangleList { indices },
         blended: TriangleList::default(),
         stats: MeshStats::default(),
+        region: None,
     }
 }
 

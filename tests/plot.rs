@@ -113,7 +113,7 @@ fn marks_absent_from_the_sweep_are_left_out() {
 }
 
 /// The box of an SVG text element: its width measured with a real
-/// sans-serif font (Noto Sans, the embedded font of `underdraw::text`)
+/// sans-serif font (Noto Sans, the embedded font of `underdraw::present::glyphs`)
 /// and widened by a fifth for wider fonts a browser may pick; its height
 /// from the baseline up 0.8 em and down 0.25 em (common practice, no
 /// source). A `rotate(-90 cx cy)` turns the box about its centre of
@@ -124,7 +124,7 @@ fn text_box(n: roxmltree::Node, default_size: f64) -> [f64; 4] {
         .attribute("font-size")
         .map_or(default_size, |v| v.parse().unwrap());
     let text = n.text().unwrap_or("");
-    let w = underdraw::text::text_width(text, size as f32) as f64 * 1.2;
+    let w = underdraw::present::glyphs::text_width(text, size as f32) as f64 * 1.2;
     let anchor = n
         .attribute("text-anchor")
         .or_else(|| n.parent_element().and_then(|p| p.attribute("text-anchor")))

@@ -428,3 +428,107 @@ fn a_small_scene_runs_and_protects_its_inputs() {
         "{err}"
     );
 }
+
+/// A layer over the texel limit is refused from its PNG header (PNG
+/// specification: IHDR, the first chunk, holds the width and height), on
+/// every path that reads it: here a mesh-file layer, whose image the scene
+/// only decodes for the report page's preview.
+#[test]
+fn a_layer_over_the_limit_is_refused_from_its_header() {
+    let dir = TempDir::new("limit");
+    tiny_png(&dir.0.join("a.png"));
+    let cut = Command::new(BIN)
+        .arg("cut")
+        .arg(dir.0.join("a.png"))
+        .arg("--out")
+        .arg(&dir.0)
+        .output()
+        .unwrap();
+    assert!(cut.status.success());
+    let layers = r#"    {"name": "b", "image": "a.png", "mesh": "a.mesh.json"}"#;
+    let scene = dir.0.join("limit.scene.json");
+    fs::write(&scene, scene_text(CAMERA, layers)).unwrap();
+    let run = |max: &str| {
+        Command::new(BIN)
+            .arg("scene")
+            .arg(&scene)
+            .arg("--out")
+            .arg(dir.0.join("out"))
+            .arg("--report")
+            .arg(dir.0.join("page"))
+            .args(["--max-texels", max, "--quiet"])
+            .output()
+            .unwrap()
+    };
+    // the 8 x 8 layer holds 64 texels: within 64, refused under 63
+    let ok = run("64");
+    assert!(
+        ok.status.success(),
+        "{}",
+        String::from_utf8_lossy(&ok.stderr)
+    );
+    let refused = run("63");
+    assert_eq!(refused.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&refused.stderr);
+    assert!(
+        err.contains("a.png") && err.contains("by its header") && err.contains("before decoding"),
+        "{err}"
+    );
+}
+
+/// A scene layer may be a shipped texture (KTX 2.0 specification: an
+/// uncompressed RGBA8 level, VK_FORMAT_R8G8B8A8_UNORM): it is read through
+/// the same gate as a PNG, cut from its level 0 and scored like one.
+#[test]
+fn a_ktx2_layer_is_cut_and_scored() {
+    let dir = TempDir::new("ktx2");
+    // an opaque 8 x 8 texture
+    let ktx = common::ktx2::rgba8_ktx2(&[(8, 8, vec![255u8; 64])]);
+    fs::write(dir.0.join("t.ktx2"), ktx).unwrap();
+    let layers = r#"    {"name": "t", "image": "t.ktx2", "scale": 4, "fill_width": true}"#;
+    let scene = dir.0.join("t.scene.json");
+    fs::write(&scene, scene_text(CAMERA, layers)).unwrap();
+    let o = Command::new(BIN)
+        .arg("scene")
+        .arg(&scene)
+        .arg("--out")
+        .arg(dir.0.join("out"))
+        .arg("--report")
+        .arg(dir.0.join("page"))
+        .arg("--quiet")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let report: Value =
+        serde_json::from_str(&fs::read_to_string(dir.0.join("out/scene-report.json")).unwrap())
+            .unwrap();
+    // the opaque 32 x 32 copies cover the 64 x 32 viewport: split shades
+    // each pixel once, the plain rectangles as often
+    for s in ["split", "rect"] {
+        let f = strategy(&report, s)["per_frame"]["fragments"]
+            .as_f64()
+            .unwrap();
+        assert_eq!(f, 64.0 * 32.0, "{s}");
+    }
+    assert_eq!(
+        report["layers"][0]["mesh_vertices"].as_u64(),
+        Some(4),
+        "{report}"
+    );
+    // asking for mip levels the scene does not analyze for a texture is refused
+    let mipped = r#"    {"name": "t", "image": "t.ktx2", "cut": {"mip_levels": 2}}"#;
+    fs::write(&scene, scene_text(CAMERA, mipped)).unwrap();
+    let o = Command::new(BIN)
+        .arg("scene")
+        .arg(&scene)
+        .arg("--out")
+        .arg(dir.0.join("out2"))
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("t.ktx2") && err.contains("mip levels"),
+        "{err}"
+    );
+}

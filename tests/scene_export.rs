@@ -302,6 +302,35 @@ fn a_vertex_total_exports_the_budgets_it_chose() {
     assert!(used <= 60, "{used} vertices exported for a total of 60");
 }
 
+/// The report lists exactly the files the run wrote: every file now in
+/// the output and export folders (both fresh), the export's glTF assets
+/// (`.gltf` and `.bin`) included, and nothing that is not there.
+#[test]
+fn the_report_lists_every_file_written_the_gltf_assets_too() {
+    let e = exported("listed", &[]);
+    let report: Value =
+        serde_json::from_slice(&fs::read(e.out.join("scene-report.json")).unwrap()).unwrap();
+    let mut listed: Vec<PathBuf> = report["outputs"]
+        .as_array()
+        .expect("outputs")
+        .iter()
+        .map(|v| PathBuf::from(v.as_str().expect("a path")))
+        .collect();
+    listed.sort();
+    let mut present: Vec<PathBuf> = [&e.out, &e.export]
+        .iter()
+        .flat_map(|d| fs::read_dir(d).unwrap().map(|f| f.unwrap().path()))
+        .collect();
+    present.sort();
+    assert_eq!(listed, present);
+    for l in &e.list.layers {
+        for ext in ["gltf", "bin"] {
+            let f = e.export.join(format!("{}.{ext}", l.name));
+            assert!(listed.contains(&f), "{} is not listed", f.display());
+        }
+    }
+}
+
 #[test]
 fn export_never_overwrites_a_mesh_the_scene_reads() {
     let dir = fresh("protect");

@@ -548,6 +548,15 @@ fn sweep_takes_the_texture_like_cut() {
             .unwrap();
     assert_eq!(at16["opaque_area"], mesh["stats"]["opaque_area"]);
     assert_eq!(at16["covered_area"], mesh["stats"]["covered_area"]);
+    // sweep on the .ktx2 alone notes the format and levels, as cut does
+    let (code, stdout, err) = run(&["sweep", &s(&ktx), "--mip-levels", "1", "--out", &out]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        stdout.contains(
+            "note: guarantee computed for RGBA8 (KTX 2.0, blocks 1x1), mip levels 0 to 1 of 4"
+        ),
+        "{stdout}"
+    );
     let (code, _, err) = run(&["sweep", &s(&ktx), "--mip-levels", "6", "--out", &out]);
     assert_eq!(code, 2);
     assert!(
@@ -556,4 +565,72 @@ fn sweep_takes_the_texture_like_cut() {
             && err.contains("hint:"),
         "{err}"
     );
+}
+
+/// `check --texture` with a texture it cannot read: exit 2, the file named,
+/// what is wrong and what to do, for each kind of bad texture: cut short
+/// (a KTX 2.0 header, an `.astc` file's blocks), a level index pointing past
+/// the end, formats not read (BC1, BasisLZ, UASTC) and block sizes not
+/// decoded (a 7x7 `.astc`, 3D ASTC in a KTX 2.0 file).
+#[test]
+fn check_texture_refusals_name_the_file_and_what_to_do() {
+    let s = |p: &Path| p.to_str().unwrap().to_string();
+    let corpus = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/corpus");
+    let mesh = corpus.join("rgb-rectangle.mesh.json");
+    let dir = TempDir::new("texture_refusals");
+    // an .astc header for 16 x 16 texels in 4x4 blocks, then 3 of its 16 blocks
+    let mut astc = vec![0x13, 0xAB, 0xA1, 0x5C, 4, 4, 1, 16, 0, 0, 16, 0, 0, 1, 0, 0];
+    astc.extend([0u8; 48]);
+    let short = dir.path("short.astc");
+    std::fs::write(&short, &astc).unwrap();
+    // VkFormat 1000288000: ASTC 3x3x3 (VK_EXT_texture_compression_astc_3d)
+    let astc3d = dir.path("astc-3d.ktx2");
+    let ktx = ktx2_file(
+        1_000_288_000,
+        (4, 4),
+        &[Level::raw(vec![0; 16])],
+        0,
+        dfd_for_block(157, 4, 4),
+    );
+    std::fs::write(&astc3d, ktx).unwrap();
+    let export = "hint: export the texture as";
+    let again = "hint: copy the file again from where it was exported, or export the texture again";
+    let cases: Vec<(PathBuf, &str, &str)> = vec![
+        (corpus.join("truncated.ktx2"), "cut short", again),
+        (
+            short,
+            "cut short: a 16 x 16 image in 4x4 blocks needs 272 bytes",
+            again,
+        ),
+        (
+            corpus.join("level-past-end.ktx2"),
+            "past the end of the file",
+            again,
+        ),
+        (
+            corpus.join("bc1.ktx2"),
+            "(VkFormat 131) is not one underdraw reads",
+            export,
+        ),
+        (corpus.join("basislz.ktx2"), "BasisLZ", export),
+        (corpus.join("uastc.ktx2"), "UASTC", export),
+        (
+            corpus.join("block-7x7.astc"),
+            "its ASTC block size is 7x7",
+            export,
+        ),
+        (
+            astc3d,
+            "has 3D ASTC blocks, a block size underdraw does not decode",
+            export,
+        ),
+    ];
+    for (file, what, hint) in cases {
+        let (code, _, err) = run(&["check", &s(&mesh), "--texture", &s(&file)]);
+        assert_eq!(code, 2, "{}: {err}", file.display());
+        let named = format!("error: {}: ", file.display());
+        assert!(err.contains(&named), "{named} not in {err}");
+        assert!(err.contains(what), "{what:?} not in {err}");
+        assert!(err.contains(hint), "{hint:?} not in {err}");
+    }
 }

@@ -9,15 +9,12 @@
 //! caught by [`catch_layer`] and becomes that layer's error.
 
 use super::manifest::{sha256_hex, Entry, LayerResult, OutputFile};
-use super::write::commit;
 use super::{Job, Outputs};
 use crate::alpha::Sampled;
 use crate::cut::{cut_layer, cut_sampled};
-use crate::error::FileError;
-use crate::export::gltf::{
-    build_with, encode_uri, format_refusal, malformed, relative_uri, to_glb,
-};
-use crate::io::{decode_layer, decode_texture, is_texture, ImageLimits};
+use crate::error::{FileError, Setting};
+use crate::export::gltf::{format_refusal, glb_file, gltf_files, malformed, relative_uri};
+use crate::io::{decode_layer, decode_rgba, decode_texture, is_texture, ImageLimits, OutputFolder};
 use std::path::{Path, PathBuf};
 
 /// Widest preview written, pixels.
@@ -107,7 +104,10 @@ pub(crate) fn run_layer(
         FileError::new(
             &dir,
             format!("the output folder cannot be created ({e})"),
-            "check that --out is writable and no file stands where this folder should be",
+            format!(
+                "check that {} is writable and no file stands where this folder should be",
+                Setting::Out
+            ),
         )
     })?;
     let image_uri = if outputs.gltf || outputs.glb {
@@ -118,7 +118,10 @@ pub(crate) fn run_layer(
                     "has no path relative to the output folder {} for the glTF image URI",
                     dir.display()
                 ),
-                "put the --out folder on the same drive as the layers",
+                format!(
+                    "put the {} folder on the same drive as the layers",
+                    Setting::Out
+                ),
             )
         })?)
     } else {
@@ -168,7 +171,7 @@ pub(crate) fn run_layer(
         return Err(FileError::new(
             &job.input,
             "would be overwritten by its own output file",
-            "choose another --out folder",
+            format!("choose another {} folder", Setting::Out),
         ));
     }
     let name = job
@@ -182,14 +185,18 @@ pub(crate) fn run_layer(
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and previews are drawn from the PNG",
-                "cut the PNG with --texture pointing to this file to get a preview, or leave out --preview",
+                format!(
+                    "cut the PNG with {} pointing to this file to get a preview, or leave out {}",
+                    Setting::Texture,
+                    Setting::Preview
+                ),
             ));
         }
         if image_uri.is_some() {
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
-                "cut the PNG with --texture pointing to this file to get a glTF asset, or use --format json",
+                format!("cut the PNG with {} pointing to this file to get a glTF asset, or use {}", Setting::Texture, Setting::Format.given("json")),
             ));
         }
         let t = decode_texture(&job.input, &bytes, limits)?;
@@ -215,7 +222,7 @@ pub(crate) fn run_layer(
                 FileError::new(
                     path,
                     why,
-                    "lower --mip-levels to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l",
+                    format!("lower {} to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l", Setting::MipLevels),
                 )
             })?;
             let sampled = Sampled {
@@ -225,16 +232,16 @@ pub(crate) fn run_layer(
             sampled.validate().map_err(|why| {
                 FileError::new(
                     path,
-                    why,
+                    why.to_string(),
                     "give the texture compressed from this layer, at its size",
                 )
             })?;
             notes.push(format!("guarantee computed for {}", t.describe(mip)));
             if t.levels.len() as u32 > mip + 1 {
                 notes.push(format!(
-                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass --mip-levels {} if the GPU samples them all)",
+                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass {} if the GPU samples them all)",
                     t.levels.len(),
-                    t.levels.len() - 1
+                    Setting::MipLevels.given(t.levels.len() - 1)
                 ));
             }
             cut_sampled(sampled, &name, &job.settings)
@@ -264,37 +271,31 @@ pub(crate) fn run_layer(
                     "cannot be exported to glTF with {} vertices: {why}",
                     outputs.vertex_format.name()
                 ),
-                "export it with --vertex-format f32",
+                format!("export it with {}", Setting::VertexFormat.given("f32")),
             ));
         }
-        let asset = build_with(mesh, uri, &job.stem, outputs.vertex_format);
+        // the glTF files beside the mesh file, in the key's subfolder
+        let folder = base
+            .strip_suffix(job.stem.as_str())
+            .expect("a job's key ends with its stem");
+        let (at, format) = (dir.as_path(), outputs.vertex_format);
         if outputs.gltf {
-            let mut json = asset.json.clone();
-            // an empty layer has no buffer, and no .bin is written for it
-            if !asset.bin.is_empty() {
-                json["buffers"][0]["uri"] =
-                    serde_json::json!(encode_uri(&format!("{}.bin", job.stem)));
-                files.push((format!("{base}.bin"), asset.bin.clone()));
+            for (name, bytes) in gltf_files(mesh, uri, at, &job.stem, format)? {
+                files.push((format!("{folder}{name}"), bytes));
             }
-            let text = serde_json::to_vec_pretty(&json).expect("glTF JSON serializes");
-            files.push((format!("{base}.gltf"), text));
         }
         if outputs.glb {
-            files.push((format!("{base}.glb"), to_glb(&asset)));
+            let (name, bytes) = glb_file(mesh, uri, at, &job.stem, format)?;
+            files.push((format!("{folder}{name}"), bytes));
         }
     }
     if outputs.preview {
-        let rgba = image::load_from_memory_with_format(&bytes, image::ImageFormat::Png)
-            .map_err(|e| {
-                FileError::new(
-                    &job.input,
-                    format!("cannot be read ({e})"),
-                    "check the file",
-                )
-            })?
-            .to_rgba8();
+        let rgba = decode_rgba(&job.input, &bytes, limits)?;
         let img = crate::preview::render_preview(&rgba, mesh, PREVIEW_WIDTH);
-        files.push((format!("{base}.preview.png"), crate::heatmap::rgba_png(img)));
+        files.push((
+            format!("{base}.preview.png"),
+            crate::present::png::rgba_png(img),
+        ));
     }
     let recorded: Vec<OutputFile> = files
         .iter()
@@ -303,11 +304,15 @@ pub(crate) fn run_layer(
             sha256: sha256_hex(data),
         })
         .collect();
-    let written: Vec<(PathBuf, Vec<u8>)> = files
-        .into_iter()
-        .map(|(rel, data)| (out.join(rel), data))
+    let inputs = std::iter::once(job.input.clone())
+        .chain(job.texture.clone())
         .collect();
-    commit(&written)?;
+    OutputFolder::open(out, inputs)
+        .with_refusal(
+            "would be overwritten by its own output file",
+            &format!("choose another {} folder", Setting::Out),
+        )
+        .commit(&files)?;
     let s = &mesh.stats;
     let entry = Entry {
         input: job.relative.clone(),

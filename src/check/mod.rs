@@ -35,10 +35,12 @@ mod geom;
 mod levels;
 mod regions;
 mod runs;
+mod sheet;
 #[cfg(test)]
 mod tests;
 
 pub use regions::regions_for_check;
+pub use sheet::{check_region_mesh, RegionReport};
 
 use crate::alpha::AlphaMap;
 use crate::mesh::{LayerMesh, Winding, FORMAT, VERSION};
@@ -238,6 +240,12 @@ pub enum CheckError {
         /// What does not fit.
         why: String,
     },
+    /// A region mesh's `region` does not fit the sheet (or is missing).
+    #[error("{why}\n  hint: check a region mesh against the sheet it was cut from (with {} {} for a mesh without a \"region\" key), or cut the sheet again", crate::error::Setting::Region.given("NAME"), crate::error::Setting::Regions.given("FILE"))]
+    BadRegion {
+        /// What does not fit.
+        why: String,
+    },
     /// A position is NaN or infinite.
     #[error("vertex {vertex} has a non-finite position ({x}, {y}), but positions must be finite texel coordinates\n  hint: fix the mesh file or cut the layer again")]
     NonFinitePosition {
@@ -276,6 +284,12 @@ fn validate(mesh: &LayerMesh, alpha: &AlphaMap) -> Result<(), CheckError> {
             image_h: alpha.height,
         });
     }
+    validate_structure(mesh)
+}
+
+/// The checks of [`validate`] that do not depend on the image: positions,
+/// texture coordinates, index lists.
+fn validate_structure(mesh: &LayerMesh) -> Result<(), CheckError> {
     if !mesh.positions.len().is_multiple_of(2) {
         return Err(CheckError::OddPositions {
             len: mesh.positions.len(),

@@ -73,6 +73,7 @@ impl Build {
                 indices: self.blended.clone(),
             },
             stats: MeshStats::default(),
+            region: None,
         }
     }
 }

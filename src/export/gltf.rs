@@ -53,8 +53,8 @@
 //! buffer at all (a buffer must have byteLength >= 1): no `.bin` is written
 //! for it, and its `.glb` has no BIN chunk.
 
-use crate::error::FileError;
-use crate::io::write_if_changed;
+use crate::error::{FileError, Setting};
+use crate::io::{NamedBytes, OutputFolder};
 use crate::mesh::{LayerMesh, VertexFormat, Winding};
 use crate::settings::FilterMode;
 use serde_json::{json, Value};
@@ -93,8 +93,8 @@ pub mod gl {
 pub const MAX_U16_VERTICES: usize = 65_535;
 
 /// A built asset: the glTF JSON and its binary buffer (empty when the layer
-/// has no triangles). In the JSON, buffer 0 has no `uri` yet: [`write_gltf`]
-/// names the `.bin`, [`write_glb`] leaves it out (the GLB-stored buffer).
+/// has no triangles). In the JSON, buffer 0 has no `uri` yet: [`gltf_files`]
+/// names the `.bin`, [`glb_file`] leaves it out (the GLB-stored buffer).
 #[derive(Clone, Debug)]
 pub struct Asset {
     /// The glTF JSON document (the `.gltf` file, or the GLB's JSON chunk).
@@ -429,7 +429,10 @@ fn refuse_format(dest: &Path, why: String) -> FileError {
     FileError::new(
         dest,
         format!("cannot be written with 16-bit vertices: {why}"),
-        "write this layer with --vertex-format f32, or split it into smaller layers",
+        format!(
+            "write this layer with {}, or split it into smaller layers",
+            Setting::VertexFormat.given("f32")
+        ),
     )
 }
 
@@ -458,11 +461,52 @@ fn cut_extras(mesh: &LayerMesh, reversed: bool) -> Value {
     })
 }
 
-/// Writes `<dir>/<stem>.bin` (when the layer has triangles) and then
-/// `<dir>/<stem>.gltf`, each atomically (a file that already holds the
-/// same bytes is left untouched), and returns their paths.
-/// `image_uri` is the layer's PNG relative to `dir`, as a URI reference
-/// (see [`relative_uri`]).
+/// The glTF asset of `mesh` as named bytes, for an
+/// [`OutputFolder`] to write: `<stem>.bin` (when
+/// the layer has triangles; first, so a reader never sees a new `.gltf`
+/// with an old `.bin`) and `<stem>.gltf`, with the vertices in `format`
+/// ([`build_with`]). `image_uri` is the layer's PNG relative to the folder,
+/// as a URI reference (see [`relative_uri`]). Refuses, naming the `.gltf`
+/// in `dir`, a malformed mesh or a layer too large for the format.
+pub fn gltf_files(
+    mesh: &LayerMesh,
+    image_uri: &str,
+    dir: &Path,
+    stem: &str,
+    format: VertexFormat,
+) -> Result<Vec<NamedBytes>, FileError> {
+    let [gltf, _] = gltf_paths(dir, stem);
+    malformed(mesh).map_or(Ok(()), |why| Err(refuse(&gltf, why)))?;
+    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&gltf, why)))?;
+    let mut asset = build_with(mesh, image_uri, stem, format);
+    let mut files = Vec::new();
+    if !asset.bin.is_empty() {
+        asset.json["buffers"][0]["uri"] = json!(encode_uri(&format!("{stem}.bin")));
+        files.push((format!("{stem}.bin"), std::mem::take(&mut asset.bin)));
+    }
+    let text = serde_json::to_vec_pretty(&asset.json).expect("glTF JSON serializes");
+    files.push((format!("{stem}.gltf"), text));
+    Ok(files)
+}
+
+/// The GLB of `mesh` as named bytes, `<stem>.glb` (see [`gltf_files`]).
+pub fn glb_file(
+    mesh: &LayerMesh,
+    image_uri: &str,
+    dir: &Path,
+    stem: &str,
+    format: VertexFormat,
+) -> Result<NamedBytes, FileError> {
+    let dest = glb_path(dir, stem);
+    malformed(mesh).map_or(Ok(()), |why| Err(refuse(&dest, why)))?;
+    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&dest, why)))?;
+    let asset = build_with(mesh, image_uri, stem, format);
+    Ok((format!("{stem}.glb"), to_glb(&asset)))
+}
+
+/// Writes [`gltf_files`] into `dir` through an
+/// [`OutputFolder`] (each atomically; a file that
+/// already holds the same bytes is left untouched) and returns their paths.
 pub fn write_gltf(
     mesh: &LayerMesh,
     image_uri: &str,
@@ -481,25 +525,12 @@ pub fn write_gltf_with(
     stem: &str,
     format: VertexFormat,
 ) -> Result<Vec<PathBuf>, FileError> {
-    let [gltf, bin] = gltf_paths(dir, stem);
-    malformed(mesh).map_or(Ok(()), |why| Err(refuse(&gltf, why)))?;
-    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&gltf, why)))?;
-    let mut asset = build_with(mesh, image_uri, stem, format);
-    let mut written = Vec::new();
-    if !asset.bin.is_empty() {
-        // the .bin first, so a reader never sees a new .gltf with an old .bin
-        write_if_changed(&bin, &asset.bin)?;
-        written.push(bin);
-        asset.json["buffers"][0]["uri"] = json!(encode_uri(&format!("{stem}.bin")));
-    }
-    let text = serde_json::to_vec_pretty(&asset.json).expect("glTF JSON serializes");
-    write_if_changed(&gltf, &text)?;
-    written.push(gltf);
-    Ok(written)
+    let mut out = OutputFolder::open(dir, Vec::new());
+    out.write_all(&gltf_files(mesh, image_uri, dir, stem, format)?)?;
+    Ok(out.written().to_vec())
 }
 
-/// Writes `<dir>/<stem>.glb` atomically (left untouched when it already
-/// holds the same bytes) and returns its path.
+/// Writes [`glb_file`] into `dir` (as [`write_gltf`]) and returns its path.
 pub fn write_glb(
     mesh: &LayerMesh,
     image_uri: &str,
@@ -517,12 +548,9 @@ pub fn write_glb_with(
     stem: &str,
     format: VertexFormat,
 ) -> Result<Vec<PathBuf>, FileError> {
-    let dest = glb_path(dir, stem);
-    malformed(mesh).map_or(Ok(()), |why| Err(refuse(&dest, why)))?;
-    format_refusal(mesh, format).map_or(Ok(()), |why| Err(refuse_format(&dest, why)))?;
-    let asset = build_with(mesh, image_uri, stem, format);
-    write_if_changed(&dest, &to_glb(&asset))?;
-    Ok(vec![dest])
+    let mut out = OutputFolder::open(dir, Vec::new());
+    out.write_all(&[glb_file(mesh, image_uri, dir, stem, format)?])?;
+    Ok(out.written().to_vec())
 }
 
 /// The GLB container (Binary glTF Layout): a 12-byte header (magic `glTF`,
@@ -647,7 +675,7 @@ mod tests {
         let e = write_gltf_with(&mesh, "a.png", &dir, "a", VertexFormat::U16).unwrap_err();
         let text = e.to_string();
         assert!(
-            text.contains("a.gltf") && text.contains("--vertex-format f32"),
+            text.contains("a.gltf") && text.contains("`vertex_format` = f32"),
             "{text}"
         );
         assert!(!dir.join("a.gltf").exists());

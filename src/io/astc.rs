@@ -9,9 +9,11 @@
 //! * bytes 7..10, 10..13, 13..16: the image's width, height and depth, each a
 //!   24-bit little-endian number.
 //!
-//! Blocks are decoded by the `texture2ddecoder` crate (a pure-Rust port of
-//! a general-purpose decoder); a block with a reserved or HDR encoding
-//! decodes to the error colour, opaque magenta, as an LDR decoder shows it.
+//! Blocks are decoded by code vendored from the `astc-decode` crate
+//! (`io/astc/decode.rs`, Apache License 2.0) with the reference codec's
+//! conversion from UNORM16 to 8 bits, so the alpha equals `astcenc -dl`'s
+//! texel for texel (tests/texture_decode.rs); a block with a reserved
+//! encoding decodes to the error colour, opaque magenta.
 //!
 //! Invariants: only 2D block sizes of the ASTC LDR profile are read (4x4 to
 //! 12x12, the fourteen footprints of the specification); the data must hold
@@ -20,6 +22,8 @@
 
 use super::texture::TextureFormat;
 use crate::alpha::AlphaMap;
+
+mod decode;
 
 /// The `.astc` file's magic number, as the first 4 bytes (little-endian).
 pub(super) const MAGIC: [u8; 4] = [0x13, 0xAB, 0xA1, 0x5C];
@@ -105,37 +109,31 @@ pub(super) fn data_len(w: u32, h: u32, (bw, bh): (u32, u32)) -> u64 {
 /// Decodes ASTC blocks (exactly [`data_len`] bytes or more) to the alpha
 /// of a `w` x `h` image.
 ///
-/// The decoder's 8-bit alpha of interpolated texels can differ by one from
-/// the reference codec's (which rounds the UNORM16 result through FP16)
-/// but never at 0 or 255; constant-colour (void-extent) blocks are
-/// converted here exactly as the reference codec does ([`unorm16_to_u8`]).
+/// Texel for texel the reference codec's LDR decode (`astcenc -dl`): the
+/// blocks are decoded to UNORM16 per the ASTC specification by the vendored
+/// `astc-decode` code ([`decode`]), then converted to 8 bits as the
+/// reference codec does ([`unorm16_to_u8`]). A block with a reserved
+/// encoding decodes to the specification's error colour, opaque magenta;
+/// an HDR endpoint mode gives its partition that colour. For the sRGB
+/// formats the alpha is decoded the same way (the specification expands
+/// alpha endpoints by bit replication in either mode).
 pub(super) fn decode_alpha(data: &[u8], w: u32, h: u32, block: (u32, u32)) -> AlphaMap {
-    let mut texels = vec![0u32; w as usize * h as usize];
-    texture2ddecoder::decode_astc(
-        data,
-        w as usize,
-        h as usize,
-        block.0 as usize,
-        block.1 as usize,
-        &mut texels,
-    )
-    .expect("the caller checked the data length and the block size");
-    let mut alpha: Vec<u8> = texels.iter().map(|&p| (p >> 24) as u8).collect();
     let (bw, bh) = block;
+    let footprint = decode::Footprint::new(bw, bh);
+    let mut alpha = vec![0u8; w as usize * h as usize];
     let blocks_x = w.div_ceil(bw);
     for (i, b) in data[..data_len(w, h, block) as usize]
         .chunks_exact(16)
         .enumerate()
     {
-        // an LDR void-extent block: bits 0..9 are 0x1FC, bit 9 (HDR) clear
-        if b[0] == 0xFC && b[1] & 3 == 1 {
-            let a = unorm16_to_u8(u16::from_le_bytes([b[14], b[15]]));
-            let (x0, y0) = ((i as u32 % blocks_x) * bw, (i as u32 / blocks_x) * bh);
-            for y in y0..(y0 + bh).min(h) {
-                let row = (y * w) as usize;
-                alpha[row + x0 as usize..row + (x0 + bw).min(w) as usize].fill(a);
+        let (x0, y0) = ((i as u32 % blocks_x) * bw, (i as u32 / blocks_x) * bh);
+        let b: &[u8; 16] = b.try_into().expect("chunks of 16 bytes");
+        decode::astc_decode_block(b, footprint, |x, y, rgba| {
+            let (x, y) = (x0 + x, y0 + y);
+            if x < w && y < h {
+                alpha[(y * w + x) as usize] = rgba[3];
             }
-        }
+        });
     }
     AlphaMap::from_raw(w, h, alpha)
 }
@@ -228,6 +226,31 @@ mod tests {
         let (_, levels) = read_astc(&file).unwrap();
         assert_eq!(levels[0].alpha, vec![128; 15]);
         assert!(read_astc(&file[..40]).unwrap_err().contains("cut short"));
+    }
+
+    /// Arbitrary bytes (a damaged or hand-made file) decode without a panic
+    /// at every footprint: reserved encodings become the error colour, alpha
+    /// 255 (the decoder crate used before panicked on such blocks).
+    #[test]
+    fn arbitrary_blocks_decode_without_panic() {
+        let mut x = 0x9E37_79B9_7F4A_7C15u64;
+        let data: Vec<u8> = (0..16 * 400)
+            .map(|_| {
+                x ^= x << 13;
+                x ^= x >> 7;
+                x ^= x << 17;
+                x as u8
+            })
+            .collect();
+        for &(bw, bh) in &FOOTPRINTS {
+            let (w, h) = (20 * bw, 20 * bh);
+            let a = decode_alpha(&data, w, h, (bw, bh));
+            assert_eq!(a.alpha.len(), (w * h) as usize);
+        }
+        // a reserved block mode (bits 0..4 and 6..9 all zero) is an error block
+        let mut block = [0u8; 16];
+        block[0] = 0x00;
+        assert_eq!(decode_alpha(&block, 4, 4, (4, 4)).alpha, vec![255; 16]);
     }
 
     /// The reference codec's 8-bit values at the ends and in the middle, as

@@ -215,6 +215,8 @@ pub(super) fn read_ktx2(bytes: &[u8]) -> Result<(TextureFormat, Vec<AlphaMap>), 
                 .into()
         } else if (1_000_066_000..=1_000_066_013).contains(&vk_format) {
             format!("its format (VkFormat {vk_format}) is ASTC HDR; underdraw reads ASTC LDR")
+        } else if (1_000_288_000..=1_000_288_029).contains(&vk_format) {
+            format!("its format (VkFormat {vk_format}) has 3D ASTC blocks, a block size underdraw does not decode (it reads the 2D block sizes 4x4 to 12x12)")
         } else {
             format!("its format (VkFormat {vk_format}) is not one underdraw reads")
         });

@@ -10,7 +10,7 @@
 
 use super::{astc, ktx2, ImageLimits};
 use crate::alpha::AlphaMap;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use std::path::Path;
 
 /// What a texture file holds, for the report and the `cut` line.
@@ -132,7 +132,7 @@ pub fn decode_texture(
             return Err(FileError::new(
                 path,
                 format!("is {w} x {h} texels by its header, over the limits; it was refused before decoding"),
-                "split the layer into smaller tiles, or raise the limit with --max-pixels",
+                format!("split the layer into smaller tiles, or raise the limit with {}", Setting::MaxTexels),
             ));
         }
     }

@@ -1,6 +1,6 @@
 //! Choosing a vertex budget per layer for a vertex total: the layers'
 //! sweep curves, scored by what each layer's cut saves *in the scene*, and
-//! split by marginal gain ([`crate::sweep::allocate`]).
+//! split by marginal gain ([`super::allocate::allocate`]).
 //!
 //! **The gain model.** With the split strategy, a pixel p is shaded by layer
 //! L when L's meshes cover p and no nearer layer's opaque mesh does. So with
@@ -30,14 +30,15 @@
 //! is scored exactly (every sample rendered) and the better one kept. The
 //! first reference is the even spread, the choice it is compared against.
 
+use super::allocate::{allocate, CurvePoint};
 use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
 use super::prepare::{cut_all, Layer};
 use super::score::mean_fragments;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::{render, Draw};
 use crate::mesh::LayerMesh;
-use crate::sweep::{allocate, CurvePoint, BUDGETS};
+use crate::sweep::BUDGETS;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::path::PathBuf;
@@ -246,7 +247,7 @@ fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
         format!(
             "a vertex total of {total} cannot hold the scene's smallest meshes ({need} vertices)"
         ),
-        format!("give --vertex-total {need} or more"),
+        format!("give {} or more", Setting::VertexTotal.given(need)),
     )
 }
 

@@ -25,7 +25,7 @@
 use super::prepare::Layer;
 use crate::alpha::{must_cover, safe_opaque, AlphaMap};
 use crate::error::FileError;
-use crate::io::load_alpha;
+use crate::io::{read_layer_file, ImageLimits};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::settings::CutSettings;
@@ -203,6 +203,7 @@ pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> Exac
         uvs,
         opaque: TriangleList { indices: opaque },
         blended: TriangleList { indices: blended },
+        region: None,
     };
     ExactLayer {
         mesh,
@@ -228,7 +229,10 @@ pub fn exact_layers(layers: &[Layer]) -> Result<Vec<ExactLayer>, FileError> {
             let source = super::prepare::source_name(&l.spec.image);
             match &l.alpha {
                 Some(map) => Ok(exact_layer(map, &source, &settings)),
-                None => Ok(exact_layer(&load_alpha(&l.spec.image)?, &source, &settings)),
+                None => {
+                    let map = read_layer_file(&l.spec.image, &ImageLimits::default())?;
+                    Ok(exact_layer(&map.into_layer().alpha, &source, &settings))
+                }
             }
         })
         .collect()

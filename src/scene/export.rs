@@ -30,9 +30,9 @@ use super::draws::layer_depth;
 use super::draws::Strategy; // named in the docs
 use super::file::Scene;
 use super::prepare::Layer;
-use crate::error::FileError;
-use crate::export::gltf::{relative_uri, write_gltf_with};
-use crate::io::write_if_changed;
+use crate::error::{FileError, Setting};
+use crate::export::gltf::{gltf_files, relative_uri};
+use crate::io::NamedBytes;
 use crate::mesh::LayerMesh;
 use crate::mesh::VertexFormat;
 use serde::{Deserialize, Serialize};
@@ -240,18 +240,19 @@ pub fn draw_list(scene: &Scene, layers: &[ExportedLayer], meshes: &[&LayerMesh])
     }
 }
 
-/// Writes into `dir` each layer's `<name>.mesh.json` and glTF asset
-/// (`<name>.gltf` + `<name>.bin`) from `meshes` (one per layer, in the
-/// scene's order), then `draw-list.json`; returns the paths written. The
-/// caller has checked that none of them is one of the scene's inputs.
+/// Every file of the export as named bytes, for an
+/// [`OutputFolder`](crate::io::OutputFolder) to write in this order: per
+/// layer `<name>.mesh.json` and the glTF asset (`<name>.bin` when it has
+/// triangles, then `<name>.gltf`) from `meshes` (one per layer, in the
+/// scene's order), then `draw-list.json`. `dir` is the folder they will be
+/// written to (the images' URIs are relative to it).
 pub fn export_scene(
     dir: &Path,
     scene: &Scene,
     layers: &[Layer],
     meshes: &[&LayerMesh],
-    write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
-) -> Result<DrawList, FileError> {
-    export_scene_with(dir, scene, layers, meshes, VertexFormat::F32, write)
+) -> Result<(DrawList, Vec<NamedBytes>), FileError> {
+    export_scene_with(dir, scene, layers, meshes, VertexFormat::F32)
 }
 
 /// [`export_scene`] with the glTF assets' vertices in `format`
@@ -262,15 +263,8 @@ pub fn export_scene_with(
     layers: &[Layer],
     meshes: &[&LayerMesh],
     format: VertexFormat,
-    write: &mut dyn FnMut(&str, &[u8]) -> Result<(), FileError>,
-) -> Result<DrawList, FileError> {
-    std::fs::create_dir_all(dir).map_err(|e| {
-        FileError::new(
-            dir,
-            format!("the export folder cannot be created ({e})"),
-            "choose a writable --export folder",
-        )
-    })?;
+) -> Result<(DrawList, Vec<NamedBytes>), FileError> {
+    let mut files = Vec::new();
     let n = layers.len();
     let mut exported = Vec::with_capacity(n);
     for (i, (layer, mesh)) in layers.iter().zip(meshes).enumerate() {
@@ -282,15 +276,18 @@ pub fn export_scene_with(
                     "has no path relative to the export folder {}",
                     dir.display()
                 ),
-                "put the --export folder on the same drive as the layers",
+                format!(
+                    "put the {} folder on the same drive as the layers",
+                    Setting::Export
+                ),
             )
         })?;
         let mesh_file = format!("{name}.mesh.json");
-        write(
-            &mesh_file,
-            &serde_json::to_vec_pretty(mesh).expect("a mesh serializes"),
-        )?;
-        write_gltf_with(mesh, &uri, dir, name, format)?;
+        files.push((
+            mesh_file.clone(),
+            serde_json::to_vec_pretty(mesh).expect("a mesh serializes"),
+        ));
+        files.extend(gltf_files(mesh, &uri, dir, name, format)?);
         let s = &layer.spec;
         exported.push(ExportedLayer {
             name: name.clone(),
@@ -308,8 +305,8 @@ pub fn export_scene_with(
     }
     let list = draw_list(scene, &exported, meshes);
     let json = serde_json::to_vec_pretty(&list).expect("a draw list serializes");
-    write("draw-list.json", &json)?;
-    Ok(list)
+    files.push(("draw-list.json".into(), json));
+    Ok((list, files))
 }
 
 /// Reads a draw list written by [`export_scene`].
@@ -335,7 +332,10 @@ pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
         FileError::new(
             path,
             format!("is not a draw list: {e}"),
-            "give a draw-list.json written by `underdraw scene --export`",
+            format!(
+                "give a draw-list.json written by the scene command's {}",
+                Setting::Export
+            ),
         )
     })?;
     if list.format != DRAW_LIST_FORMAT || list.version != DRAW_LIST_VERSION {
@@ -349,11 +349,4 @@ pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
         ));
     }
     Ok(list)
-}
-
-/// Writes `bytes` to `dir/name` atomically, leaving a file that already
-/// holds them untouched (the plain writer for [`export_scene`] when no
-/// input needs protecting).
-pub fn write_into(dir: &Path) -> impl FnMut(&str, &[u8]) -> Result<(), FileError> + '_ {
-    move |name, bytes| write_if_changed(&dir.join(name), bytes).map(|_| ())
 }

@@ -8,17 +8,17 @@
 //! * [`score`]: every strategy at every camera sample measured with
 //!   [`crate::frame::measure`] (the totals of [`crate::frame::render`]
 //!   without per-pixel buffers), summarized per strategy and per layer.
-//! * [`budget`]: the budget per layer for a vertex total, by marginal gain.
+//! * [`budget`]: the budget per layer for a vertex total, by marginal gain
+//!   over the layers' curves ([`allocate`]).
 //! * [`report`], [`run`]: the `underdraw scene` command's report and outputs.
-//! * [`html`]: the report as a self-contained web page (`scene --report DIR`).
 //! * [`export`]: every layer's meshes and the draw list for an engine
 //!   (`scene --export DIR`).
+pub mod allocate;
 pub mod budget;
 pub mod draws;
 pub mod exact;
 pub mod export;
 pub mod file;
-pub mod html;
 pub mod prepare;
 pub mod report;
 pub mod run;

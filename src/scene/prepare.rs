@@ -10,7 +10,7 @@ use super::file::{LayerSpec, MeshSource, Scene};
 use crate::alpha::AlphaMap;
 use crate::cut::cut_layer;
 use crate::error::FileError;
-use crate::io::{load_layer, load_mesh, ImageLimits};
+use crate::io::{image_size, load_mesh, read_layer_file, ImageLimits, LayerFile};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use rayon::prelude::*;
@@ -73,9 +73,37 @@ pub fn decode_images_with(
     paths.dedup();
     let maps: Vec<Result<_, FileError>> = paths
         .par_iter()
-        .map(|p| load_layer(p, limits).map(|l| ((*p).clone(), (Arc::new(l.alpha), l.warnings))))
+        .map(|p| {
+            let file = read_layer_file(p, limits)?;
+            if let LayerFile::Texture(_) = &file {
+                refuse_texture_mips(scene, p)?;
+            }
+            let l = file.into_layer();
+            Ok(((*p).clone(), (Arc::new(l.alpha), l.warnings)))
+        })
         .collect();
     maps.into_iter().collect()
+}
+
+/// A shipped texture (KTX 2.0, `.astc`) is cut from its level 0: the
+/// guarantee then holds for level 0, so a layer asking for mip levels
+/// (whose shipped levels the scene does not analyze yet) is refused.
+fn refuse_texture_mips(scene: &Scene, image: &Path) -> Result<(), FileError> {
+    for l in scene.layers.iter().filter(|l| l.image == image) {
+        if let MeshSource::Cut(s) = l.mesh {
+            if s.filter.mip_levels > 0 {
+                return Err(FileError::new(
+                    image,
+                    format!(
+                        "is a compressed texture, cut for layer {} from its level 0, but the layer asks for mip levels 0 to {}",
+                        l.name, s.filter.mip_levels
+                    ),
+                    "set the layer's mip_levels to 0, or give its PNG and cut the texture with `underdraw cut --texture`",
+                ));
+            }
+        }
+    }
+    Ok(())
 }
 
 /// Cuts each distinct (image, settings) pair once, in parallel.
@@ -174,17 +202,7 @@ fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), Fi
             ));
         }
     }
-    let dims = image::ImageReader::open(image)
-        .and_then(|r| r.with_guessed_format())
-        .map_err(|e| e.to_string())
-        .and_then(|r| r.into_dimensions().map_err(|e| e.to_string()))
-        .map_err(|e| {
-            FileError::new(
-                image,
-                format!("cannot be read as an image ({e})"),
-                "export the layer as PNG",
-            )
-        })?;
+    let dims = image_size(image)?;
     if [dims.0, dims.1] != mesh.size {
         return Err(FileError::new(
             path,

@@ -11,11 +11,12 @@ use super::report::{HeatmapInfo, SceneReport};
 use super::score::{
     render_frame, saving_share, score_exact_frames_with, score_frames_with, summarize,
 };
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::Draw;
-use crate::heatmap::{counts_png, heatmap, rgb_png};
-use crate::io::write_if_changed;
+use crate::heatmap::heatmap;
+use crate::io::OutputFolder;
 use crate::mesh::LayerMesh;
+use crate::present::png::{counts_png, rgb_png};
 use serde::{Deserialize, Serialize};
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
@@ -86,34 +87,21 @@ pub struct DumpedDraws {
     pub draws: Vec<Draw>,
 }
 
-/// Writes outputs into one folder, refusing to overwrite an input.
-struct Outputs {
-    dir: PathBuf,
-    inputs: Vec<PathBuf>,
-    written: Vec<String>,
-}
-
-impl Outputs {
-    fn write(&mut self, name: &str, bytes: &[u8]) -> Result<(), FileError> {
-        let dest = self.dir.join(name);
-        if let Ok(d) = dest.canonicalize() {
-            if self
-                .inputs
-                .iter()
-                .any(|i| i.canonicalize().is_ok_and(|i| i == d))
-            {
-                return Err(FileError::new(
-                    &dest,
-                    "is one of the scene's inputs and would be overwritten",
-                    "choose another --out folder",
-                ));
-            }
-        }
-        // an output with the same bytes is left untouched (its time too)
-        write_if_changed(&dest, bytes)?;
-        self.written.push(dest.display().to_string());
-        Ok(())
-    }
+/// The scene's output folder `dir`, refusing to write over its inputs.
+pub(crate) fn scene_folder(
+    scene: &Scene,
+    dir: &Path,
+    what: &str,
+    setting: Setting,
+) -> Result<OutputFolder, FileError> {
+    let writable = format!("choose a writable {setting} folder");
+    let another = format!("choose another {setting} folder");
+    Ok(
+        OutputFolder::create(dir, scene.inputs(), what, &writable)?.with_refusal(
+            "is one of the scene's inputs and would be overwritten",
+            &another,
+        ),
+    )
 }
 
 /// The frame of `strategy` at camera sample `k`'s draws.
@@ -141,7 +129,8 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             return Err(FileError::new(
                 &opts.scene,
                 format!(
-                    "--dump-frame {k} names no camera sample: the scene has {} (0 to {})",
+                    "{} names no camera sample: the scene has {} (0 to {})",
+                    Setting::DumpFrame.given(k),
                     scene.samples,
                     scene.samples - 1
                 ),
@@ -149,18 +138,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             ));
         }
     }
-    std::fs::create_dir_all(&opts.out).map_err(|e| {
-        FileError::new(
-            &opts.out,
-            format!("the output folder cannot be created ({e})"),
-            "choose a writable --out folder",
-        )
-    })?;
-    let mut out = Outputs {
-        dir: opts.out.clone(),
-        inputs: scene.inputs(),
-        written: Vec::new(),
-    };
+    let mut out = scene_folder(&scene, &opts.out, "output folder", Setting::Out)?;
     let layers = prepare_layers_with(&scene, &opts.limits)?;
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
@@ -254,6 +232,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
     }
 
     let mut chosen: Option<Vec<LayerMesh>> = None;
+    let mut exported_files = Vec::new();
     let allocation = match opts.vertex_total {
         None => None,
         Some(total) => {
@@ -274,20 +253,11 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             Some(m) => m.iter().collect(),
             None => meshes.clone(),
         };
-        let mut to = Outputs {
-            dir: dir.clone(),
-            inputs: scene.inputs(),
-            written: Vec::new(),
-        };
-        super::export::export_scene_with(
-            dir,
-            &scene,
-            &layers,
-            &exported,
-            opts.vertex_format,
-            &mut |name, bytes| to.write(name, bytes),
-        )?;
-        out.written.extend(to.written);
+        let mut to = scene_folder(&scene, dir, "export folder", Setting::Export)?;
+        let (_, files) =
+            super::export::export_scene_with(dir, &scene, &layers, &exported, opts.vertex_format)?;
+        to.write_all(&files)?;
+        exported_files = to.written().to_vec();
     }
 
     let notes = layers
@@ -311,13 +281,25 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         notes,
         outputs: Vec::new(),
     };
-    out.written.push(report_path.display().to_string());
-    report.outputs = out.written.clone();
+    // every file written, the report itself included (written last)
+    report.outputs = out
+        .written()
+        .iter()
+        .chain(&exported_files)
+        .chain([&report_path])
+        .map(|p| p.display().to_string())
+        .collect();
     let json = serde_json::to_vec_pretty(&report).expect("a report serializes");
-    out.written.pop();
     out.write("scene-report.json", &json)?;
     if let Some(dir) = &opts.report {
-        write_report_page(dir, &scene, &layers, &report, &heatmap_files, opts)?;
+        crate::present::html::write_report_page(
+            dir,
+            &scene,
+            &layers,
+            &report,
+            &heatmap_files,
+            opts,
+        )?;
     }
     Ok(report)
 }
@@ -331,192 +313,6 @@ pub fn heatmap_sample(strategies: &[super::score::StrategyReport]) -> usize {
         .map_or(0, |r| r.peak_sample)
 }
 
-/// Writes the web page report into `dir`: `index.html`, the heatmaps, and
-/// per layer `<name>.preview.png` and (for a layer cut on the fly) its
-/// budget plot `<name>.plot.svg` from a sweep at [`crate::sweep::BUDGETS`].
-fn write_report_page(
-    dir: &Path,
-    scene: &Scene,
-    layers: &[super::prepare::Layer],
-    report: &SceneReport,
-    heatmap_files: &[(String, Vec<u8>)],
-    opts: &SceneOptions,
-) -> Result<(), FileError> {
-    use super::html::{index_html, LayerCard};
-    use crate::plot::{sweep_svg, Marks};
-    use crate::sweep::{knee, sweep_layer, BUDGETS};
-    /// The knee's fraction, as `underdraw sweep`'s default.
-    const KNEE: f64 = 0.8;
-    std::fs::create_dir_all(dir).map_err(|e| {
-        FileError::new(
-            dir,
-            format!("the report folder cannot be created ({e})"),
-            "choose a writable --report folder",
-        )
-    })?;
-    let mut out = Outputs {
-        dir: dir.to_path_buf(),
-        inputs: scene.inputs(),
-        written: Vec::new(),
-    };
-    let mut shown = Vec::new();
-    for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {
-        out.write(file, bytes)?;
-        let strategy = file.trim_start_matches("heatmap-").trim_end_matches(".png");
-        shown.push((
-            file.clone(),
-            format!(
-                "{strategy}: camera sample {} (x = {}), where plain rectangles peak",
-                info.sample, info.camera_x
-            ),
-        ));
-    }
-    let mut cards = Vec::new();
-    // layers drawn from one image with one cut share their sweep
-    let mut sweeps = std::collections::HashMap::new();
-    let progress = opts.progress.as_deref();
-    if let Some(p) = progress {
-        p.start("budget sweeps", layers.len());
-    }
-    for (layer, lr) in layers.iter().zip(&report.layers) {
-        if let Some(p) = progress {
-            p.step();
-        }
-        let name = &layer.spec.name;
-        let mesh = &layer.mesh;
-        let s = &mesh.stats;
-        let mut card = LayerCard {
-            name: name.clone(),
-            ..Default::default()
-        };
-        let rgba = image::open(&layer.spec.image).map_err(|e| {
-            FileError::new(
-                &layer.spec.image,
-                format!("cannot be read for its preview ({e})"),
-                "check the file",
-            )
-        })?;
-        let rgba = rgba.to_rgba8();
-        if rgba.dimensions() == (mesh.size[0], mesh.size[1]) {
-            let file = format!("{name}.preview.png");
-            let img = crate::preview::render_preview(&rgba, mesh, 1024);
-            out.write(&file, &crate::heatmap::rgba_png(img))?;
-            card.preview = Some(file);
-        }
-        let mut knee_budget = None;
-        if let (Some(alpha), Some(settings)) = (&layer.alpha, layer.cut_settings()) {
-            let source = super::prepare::source_name(&layer.spec.image);
-            let points: &Vec<_> = sweeps
-                .entry((layer.spec.image.clone(), settings))
-                .or_insert_with(|| sweep_layer(alpha, &source, &settings, &BUDGETS));
-            knee_budget = knee(points, KNEE);
-            let svg = sweep_svg(
-                &format!("{name}: saving against vertices"),
-                points,
-                Marks {
-                    knee: knee_budget.map(|k| (k, KNEE)),
-                    chosen: mesh.budget,
-                },
-            );
-            let file = format!("{name}.plot.svg");
-            out.write(&file, svg.as_bytes())?;
-            card.plot = Some(file);
-        }
-        let n = crate::quality::CutNumbers::of_mesh(s, mesh.budget, mesh.vertex_count());
-        let opt = |v: Option<usize>| v.map_or("-".to_string(), |b| b.to_string());
-        card.numbers = vec![
-            ("budget".into(), opt(mesh.budget)),
-            ("vertices".into(), mesh.vertex_count().to_string()),
-            (
-                "triangles, opaque and blended".into(),
-                format!(
-                    "{} and {}",
-                    mesh.opaque.triangle_count(),
-                    mesh.blended.triangle_count()
-                ),
-            ),
-            ("opaque capture".into(), n.capture_text()),
-            (
-                "excess".into(),
-                format!(
-                    "{:.0} texels ({:.1}% of the must-cover area)",
-                    n.excess,
-                    100.0 * n.excess_share()
-                ),
-            ),
-            (
-                "saved vs rect (fragments per frame)".into(),
-                format!("{:.0}", lr.saved_vs_rect),
-            ),
-            (
-                "saved vs outline (fragments per frame)".into(),
-                format!("{:.0}", lr.saved_vs_outline),
-            ),
-            (
-                "share of the possible saving, (rect - split) / (rect - exact)".into(),
-                lr.saving_share
-                    .map_or("-".to_string(), |v| format!("{v:.2}")),
-            ),
-            (
-                "saved per vertex added (fragments per frame)".into(),
-                lr.saved_per_vertex
-                    .map_or("-".to_string(), |v| format!("{v:.0}")),
-            ),
-            ("knee (80% of the largest saving)".into(), opt(knee_budget)),
-            (
-                "filter".into(),
-                match mesh.filter.mip_levels {
-                    0 => format!("{:?}, no mip levels", mesh.filter.mode),
-                    l => format!("{:?}, mip levels 0 to {l}", mesh.filter.mode),
-                }
-                .to_lowercase(),
-            ),
-            ("wrap".into(), mesh.wrap.as_str().to_string()),
-            (
-                "alpha".into(),
-                format!(
-                    "opaque from {}, visible from {}",
-                    mesh.alpha.opaque_min, mesh.alpha.visible_min
-                ),
-            ),
-        ];
-        if mesh.opaque.indices.is_empty() && s.safe_opaque_area > 0.0 {
-            card.warnings.push(
-                "opaque mesh empty at this budget: the layer hides nothing behind it; try a larger budget"
-                    .into(),
-            );
-        }
-        card.warnings.extend(n.warnings(knee_budget));
-        card.warnings.extend(layer.notes.iter().cloned());
-        cards.push(card);
-    }
-    let settings = vec![
-        ("scene file".to_string(), scene.path.display().to_string()),
-        (
-            "viewport".into(),
-            format!("{} x {} pixels", scene.viewport[0], scene.viewport[1]),
-        ),
-        (
-            "camera".into(),
-            format!(
-                "{} samples over {} pixels of travel",
-                scene.samples, scene.travel
-            ),
-        ),
-        (
-            "vertex total".into(),
-            opts.vertex_total
-                .map_or("- (each layer its own budget)".into(), |t| t.to_string()),
-        ),
-        (
-            "budget sweep".into(),
-            format!("budgets {BUDGETS:?}, knee at {KNEE} of the largest saving"),
-        ),
-    ];
-    let page = index_html(report, &shown, &cards, &settings);
-    out.write("index.html", page.as_bytes())
-}
-
 /// Reads a dumped frame (`frame-K.json`).
 pub fn load_frame_dump(path: &Path) -> Result<FrameDump, FileError> {
     let text = std::fs::read_to_string(path)
@@ -525,7 +321,10 @@ pub fn load_frame_dump(path: &Path) -> Result<FrameDump, FileError> {
         FileError::new(
             path,
             format!("is not a frame dump: {e}"),
-            "give a frame-K.json written by `underdraw scene --dump-frame K`",
+            format!(
+                "give a frame-K.json written by the scene command's {}",
+                Setting::DumpFrame.given("K")
+            ),
         )
     })
 }

@@ -130,8 +130,8 @@ mod tests {
     #[test]
     fn no_hand_made_glyph_table_is_left() {
         for (name, src) in [
-            ("heatmap.rs", include_str!("heatmap.rs")),
-            ("preview.rs", include_str!("preview.rs")),
+            ("heatmap.rs", include_str!("../heatmap.rs")),
+            ("preview.rs", include_str!("../preview.rs")),
         ] {
             assert!(!src.contains("fn glyph("), "{name} has a glyph table");
             assert!(!src.contains("[7, 5, 5, 5, 7]"), "{name} has a glyph table");

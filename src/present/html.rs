@@ -3,11 +3,16 @@
 //! named by a relative path. The page is well-formed XML (XHTML syntax:
 //! every element closed, attributes quoted) so it can be read back by an
 //! XML parser, and prints on paper (a print style sheet keeps cards whole).
+//! [`write_report_page`] writes it with its images (`scene --report DIR`).
 
-use super::draws::Strategy;
-use super::report::SceneReport;
+use crate::error::FileError;
 use crate::plot::xml_escape as esc;
+use crate::scene::draws::Strategy;
+use crate::scene::file::Scene;
+use crate::scene::report::SceneReport;
+use crate::scene::run::SceneOptions;
 use std::fmt::Write;
+use std::path::Path;
 
 /// One layer's card.
 #[derive(Clone, Debug, Default)]
@@ -219,4 +224,185 @@ pub fn index_html(
     }
     s.push_str("</body>\n</html>\n");
     s
+}
+
+/// Writes the web page report into `dir`: `index.html`, the heatmaps, and
+/// per layer `<name>.preview.png` and (for a layer cut on the fly) its
+/// budget plot `<name>.plot.svg` from a sweep at [`crate::sweep::BUDGETS`].
+pub fn write_report_page(
+    dir: &Path,
+    scene: &Scene,
+    layers: &[crate::scene::prepare::Layer],
+    report: &SceneReport,
+    heatmap_files: &[(String, Vec<u8>)],
+    opts: &SceneOptions,
+) -> Result<(), FileError> {
+    use crate::plot::{sweep_svg, Marks};
+    use crate::sweep::{knee, sweep_layer, BUDGETS};
+    /// The knee's fraction, as `underdraw sweep`'s default.
+    const KNEE: f64 = 0.8;
+    let mut out = crate::scene::run::scene_folder(
+        scene,
+        dir,
+        "report folder",
+        crate::error::Setting::Report,
+    )?;
+    let mut shown = Vec::new();
+    for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {
+        out.write(file, bytes)?;
+        let strategy = file.trim_start_matches("heatmap-").trim_end_matches(".png");
+        shown.push((
+            file.clone(),
+            format!(
+                "{strategy}: camera sample {} (x = {}), where plain rectangles peak",
+                info.sample, info.camera_x
+            ),
+        ));
+    }
+    let mut cards = Vec::new();
+    // layers drawn from one image with one cut share their sweep
+    let mut sweeps = std::collections::HashMap::new();
+    let progress = opts.progress.as_deref();
+    if let Some(p) = progress {
+        p.start("budget sweeps", layers.len());
+    }
+    for (layer, lr) in layers.iter().zip(&report.layers) {
+        if let Some(p) = progress {
+            p.step();
+        }
+        let name = &layer.spec.name;
+        let mesh = &layer.mesh;
+        let s = &mesh.stats;
+        let mut card = LayerCard {
+            name: name.clone(),
+            ..Default::default()
+        };
+        // a preview is drawn over a PNG (a shipped texture has none)
+        let bytes = crate::io::read_input(&layer.spec.image)?;
+        let rgba = match crate::io::is_texture(&bytes) {
+            false => Some(crate::io::decode_rgba(
+                &layer.spec.image,
+                &bytes,
+                &opts.limits,
+            )?),
+            true => None,
+        };
+        if let Some(rgba) = rgba.filter(|r| r.dimensions() == (mesh.size[0], mesh.size[1])) {
+            let file = format!("{name}.preview.png");
+            let img = crate::preview::render_preview(&rgba, mesh, 1024);
+            out.write(&file, &super::png::rgba_png(img))?;
+            card.preview = Some(file);
+        }
+        let mut knee_budget = None;
+        if let (Some(alpha), Some(settings)) = (&layer.alpha, layer.cut_settings()) {
+            let source = crate::scene::prepare::source_name(&layer.spec.image);
+            let points: &Vec<_> = sweeps
+                .entry((layer.spec.image.clone(), settings))
+                .or_insert_with(|| sweep_layer(alpha, &source, &settings, &BUDGETS));
+            knee_budget = knee(points, KNEE);
+            let svg = sweep_svg(
+                &format!("{name}: saving against vertices"),
+                points,
+                Marks {
+                    knee: knee_budget.map(|k| (k, KNEE)),
+                    chosen: mesh.budget,
+                },
+            );
+            let file = format!("{name}.plot.svg");
+            out.write(&file, svg.as_bytes())?;
+            card.plot = Some(file);
+        }
+        let n = crate::quality::CutNumbers::of_mesh(s, mesh.budget, mesh.vertex_count());
+        let opt = |v: Option<usize>| v.map_or("-".to_string(), |b| b.to_string());
+        card.numbers = vec![
+            ("budget".into(), opt(mesh.budget)),
+            ("vertices".into(), mesh.vertex_count().to_string()),
+            (
+                "triangles, opaque and blended".into(),
+                format!(
+                    "{} and {}",
+                    mesh.opaque.triangle_count(),
+                    mesh.blended.triangle_count()
+                ),
+            ),
+            ("opaque capture".into(), n.capture_text()),
+            (
+                "excess".into(),
+                format!(
+                    "{:.0} texels ({:.1}% of the must-cover area)",
+                    n.excess,
+                    100.0 * n.excess_share()
+                ),
+            ),
+            (
+                "saved vs rect (fragments per frame)".into(),
+                format!("{:.0}", lr.saved_vs_rect),
+            ),
+            (
+                "saved vs outline (fragments per frame)".into(),
+                format!("{:.0}", lr.saved_vs_outline),
+            ),
+            (
+                "share of the possible saving, (rect - split) / (rect - exact)".into(),
+                lr.saving_share
+                    .map_or("-".to_string(), |v| format!("{v:.2}")),
+            ),
+            (
+                "saved per vertex added (fragments per frame)".into(),
+                lr.saved_per_vertex
+                    .map_or("-".to_string(), |v| format!("{v:.0}")),
+            ),
+            ("knee (80% of the largest saving)".into(), opt(knee_budget)),
+            (
+                "filter".into(),
+                match mesh.filter.mip_levels {
+                    0 => format!("{:?}, no mip levels", mesh.filter.mode),
+                    l => format!("{:?}, mip levels 0 to {l}", mesh.filter.mode),
+                }
+                .to_lowercase(),
+            ),
+            ("wrap".into(), mesh.wrap.as_str().to_string()),
+            (
+                "alpha".into(),
+                format!(
+                    "opaque from {}, visible from {}",
+                    mesh.alpha.opaque_min, mesh.alpha.visible_min
+                ),
+            ),
+        ];
+        if mesh.opaque.indices.is_empty() && s.safe_opaque_area > 0.0 {
+            card.warnings.push(
+                "opaque mesh empty at this budget: the layer hides nothing behind it; try a larger budget"
+                    .into(),
+            );
+        }
+        card.warnings.extend(n.warnings(knee_budget));
+        card.warnings.extend(layer.notes.iter().cloned());
+        cards.push(card);
+    }
+    let settings = vec![
+        ("scene file".to_string(), scene.path.display().to_string()),
+        (
+            "viewport".into(),
+            format!("{} x {} pixels", scene.viewport[0], scene.viewport[1]),
+        ),
+        (
+            "camera".into(),
+            format!(
+                "{} samples over {} pixels of travel",
+                scene.samples, scene.travel
+            ),
+        ),
+        (
+            "vertex total".into(),
+            opts.vertex_total
+                .map_or("- (each layer its own budget)".into(), |t| t.to_string()),
+        ),
+        (
+            "budget sweep".into(),
+            format!("budgets {BUDGETS:?}, knee at {KNEE} of the largest saving"),
+        ),
+    ];
+    let page = index_html(report, &shown, &cards, &settings);
+    out.write("index.html", page.as_bytes())
 }

@@ -1,0 +1,274 @@
+//! `underdraw cut SHEET.png --regions FILE` / `--find-regions`: a sprite
+//! sheet's regions, each cut as its own layer (the work is
+//! `underdraw::sheet::run`; this checks the flags, calls it and prints).
+
+use crate::{Failures, Line, Print};
+use anyhow::{bail, Result};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+use underdraw::batch::Outputs;
+use underdraw::io::ImageLimits;
+use underdraw::present::tables as table;
+use underdraw::quality::CutNumbers;
+use underdraw::settings::CutSettings;
+use underdraw::settings::PartialSettings;
+use underdraw::sheet::run::{run_sheet, RegionSource, SheetReport, SheetRequest};
+
+/// The `cut` options a sheet run uses.
+pub(crate) struct SheetArgs<'a> {
+    pub(crate) images: &'a [PathBuf],
+    pub(crate) out: &'a Path,
+    pub(crate) regions: Option<&'a Path>,
+    pub(crate) find: bool,
+    pub(crate) per_frame: bool,
+    pub(crate) force: bool,
+    pub(crate) settings: Option<&'a Path>,
+    pub(crate) base: CutSettings,
+    pub(crate) overrides: PartialSettings,
+    pub(crate) outputs: Outputs,
+    /// Flags given that a sheet run does not take.
+    pub(crate) unsupported: Vec<&'static str>,
+}
+
+pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) -> Result<ExitCode> {
+    if args.regions.is_none() && !args.find {
+        bail!("--per-frame cuts each frame of an animation region alone, but no regions were given\n  hint: add --regions FILE (a regions file with \"frames\")");
+    }
+    if let Some(flag) = args.unsupported.first() {
+        bail!("{flag} is not taken with --regions or --find-regions\n  hint: cut the sheet's regions without it, or cut the layer without regions");
+    }
+    if args.regions.is_some() && args.images.len() != 1 {
+        bail!("--regions gives the regions of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its regions file, or use --find-regions for several", args.images.len());
+    }
+    if let Some(dir) = args.images.iter().find(|p| p.is_dir()) {
+        bail!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display());
+    }
+    let mut reports = Vec::new();
+    let mut errors = Vec::new();
+    for sheet in args.images {
+        let req = SheetRequest {
+            sheet: sheet.clone(),
+            regions: match args.regions {
+                Some(p) => RegionSource::File(p.to_path_buf()),
+                None => RegionSource::Find {
+                    replace: args.force,
+                },
+            },
+            out: args.out.to_path_buf(),
+            settings_file: args.settings.map(Path::to_path_buf),
+            base: args.base,
+            overrides: args.overrides,
+            outputs: args.outputs,
+            per_frame: args.per_frame,
+            limits,
+        };
+        match run_sheet(&req) {
+            Ok(r) => reports.push(r),
+            Err(e) => errors.push(Line::Error(e.to_string())),
+        }
+    }
+    if print.json {
+        let objects: Vec<serde_json::Value> = reports.iter().flat_map(json_lines).collect();
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&objects).expect("plain values serialize")
+        );
+    } else if print.text() {
+        for r in &reports {
+            for w in &r.warnings {
+                println!("note: {}: {w}", r.sheet.display());
+            }
+            if let Some(p) = &r.regions_written {
+                println!(
+                    "note: {} regions found in {}, written to {} (rename and edit them, then cut with --regions)",
+                    r.regions.len(),
+                    r.sheet.display(),
+                    p.display()
+                );
+            }
+        }
+        print_table(&reports);
+    }
+    for r in &reports {
+        for g in &r.regions {
+            if let Err(e) = &g.cut {
+                errors.push(Line::Error(format!(
+                    "{}: region {:?}: {e}",
+                    r.sheet.display(),
+                    g.region.name
+                )));
+            }
+        }
+    }
+    if errors.is_empty() {
+        Ok(ExitCode::SUCCESS)
+    } else {
+        Err(Failures(errors).into())
+    }
+}
+
+fn print_table(reports: &[SheetReport]) {
+    let mut rows = Vec::new();
+    let mut vertices = 0;
+    let mut count = 0;
+    for r in reports {
+        for g in &r.regions {
+            let Ok(c) = &g.cut else { continue };
+            let s = &c.mesh.stats;
+            let numbers = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
+            vertices += c.mesh.vertex_count();
+            count += 1;
+            rows.push(table::CutRow {
+                layer: format!("{}/{}", r.stem, g.region.name),
+                status: "cut".into(),
+                numbers,
+                warnings: c
+                    .warnings
+                    .iter()
+                    .cloned()
+                    .chain(numbers.warnings(None))
+                    .collect(),
+                notes: c.notes.clone(),
+            });
+        }
+    }
+    print!("{}", table::cut_table(&rows));
+    let failed: usize = reports.iter().map(|r| r.failed()).sum();
+    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+}
+
+fn json_lines(r: &SheetReport) -> Vec<serde_json::Value> {
+    r.regions
+        .iter()
+        .map(|g| {
+            let mut o = serde_json::json!({
+                "sheet": r.sheet.display().to_string(),
+                "region": g.region.name,
+                "rect": g.region.rect.to_array(),
+                "outputs": g.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
+            });
+            match &g.cut {
+                Ok(c) => {
+                    let s = &c.mesh.stats;
+                    let n = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
+                    o["status"] = "cut".into();
+                    o["vertices"] = c.mesh.vertex_count().into();
+                    o["opaque_capture"] = n.capture().into();
+                    o["excess"] = s.excess().into();
+                    o["excess_share"] = n.excess_share().into();
+                    o["must_cover_area"] = s.must_cover_area.into();
+                    o["notes"] = serde_json::json!(c.notes);
+                    let warnings: Vec<String> =
+                        c.warnings.iter().cloned().chain(n.warnings(None)).collect();
+                    o["warnings"] = serde_json::json!(warnings);
+                }
+                Err(e) => {
+                    o["status"] = "failed".into();
+                    o["error"] = e.clone().into();
+                }
+            }
+            o
+        })
+        .collect()
+}
+
+/// `check MESH SHEET` for a region mesh (a `region` key, or `--region NAME
+/// --regions FILE`): the contract within the region, on the whole sheet.
+pub(crate) fn check_region(
+    mesh: &underdraw::mesh::LayerMesh,
+    (mesh_path, image_path, texture_path): (&Path, Option<&Path>, Option<&Path>),
+    named: Option<(&str, &Path)>,
+    print: Print,
+    limits: ImageLimits,
+) -> Result<ExitCode> {
+    if texture_path.is_some() {
+        bail!("--texture is not taken for a region of a sheet\n  hint: check the region mesh against the sheet's PNG");
+    }
+    let Some(image_path) = image_path else {
+        bail!("a region mesh is checked against its sheet, but no IMAGE was given\n  hint: give the sheet's PNG after the mesh file");
+    };
+    let sheet = underdraw::io::load_layer(image_path, &limits)?.alpha;
+    let region = match named {
+        None => mesh.region.clone().expect("a region key"),
+        Some((name, file)) => {
+            let size = (sheet.width, sheet.height);
+            let regions = underdraw::sheet::regions::load_regions(file, size)?;
+            let Some(r) = regions.iter().find(|r| r.name == name) else {
+                let names: Vec<&str> = regions.iter().map(|r| r.name.as_str()).collect();
+                bail!(
+                    "{}: has no region named {name:?}\n  hint: give one of its regions: {}",
+                    file.display(),
+                    names.join(", ")
+                );
+            };
+            let from_mesh = mesh.region.clone();
+            let (slices, frames) = match &r.kind {
+                underdraw::sheet::regions::RegionKind::Plain => (None, None),
+                underdraw::sheet::regions::RegionKind::Sliced(s) => (Some(*s), None),
+                underdraw::sheet::regions::RegionKind::Frames(f) => {
+                    (None, Some(f.iter().map(|f| f.to_array()).collect()))
+                }
+            };
+            underdraw::mesh::MeshRegion {
+                sheet: image_path
+                    .file_name()
+                    .map(|n| n.to_string_lossy().into_owned())
+                    .unwrap_or_default(),
+                sheet_size: [sheet.width, sheet.height],
+                rect: r.rect.to_array(),
+                slices,
+                frames,
+                // the anchors and frame offsets are the mesh's own
+                slice_positions: from_mesh.as_ref().and_then(|m| m.slice_positions.clone()),
+                frame_uv_offsets: from_mesh.and_then(|m| m.frame_uv_offsets),
+            }
+        }
+    };
+    let report = underdraw::check::check_region_mesh(mesh, &sheet, Some(&region))
+        .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
+    let c = &report.contract;
+    let code = ExitCode::from(if report.holds() { 0 } else { 1 });
+    if print.json {
+        let v = serde_json::json!({
+            "holds": report.holds(),
+            "region": {"sheet": region.sheet, "rect": region.rect},
+            "opaque_area": c.opaque_area,
+            "safe_area": c.safe_area,
+            "covered_area": c.covered_area,
+            "must_cover_area": c.must_cover_area,
+            "must_cover_covered": c.must_cover_covered(),
+            "beyond_must_cover": c.beyond_must_cover(),
+            "violations": report.violations(),
+        });
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&v).expect("plain values serialize")
+        );
+        return Ok(code);
+    }
+    if print.quiet && report.holds() {
+        return Ok(code);
+    }
+    let [x, y, w, h] = region.rect;
+    let what = match (&region.frames, &region.slices) {
+        (Some(f), _) => format!(" and {} frames", f.len()),
+        (_, Some(_)) => " as a nine-slice panel".to_string(),
+        _ => String::new(),
+    };
+    println!(
+        "region {w} x {h} at ({x}, {y}) of {}{what}, regions computed on the whole sheet",
+        image_path.display()
+    );
+    if report.holds() {
+        println!(
+            "contract holds: {}; no overlap",
+            underdraw::quality::check_summary(c)
+        );
+    } else {
+        println!("contract violated:");
+        for v in report.violations() {
+            println!("  {v}");
+        }
+    }
+    Ok(code)
+}

@@ -1,0 +1,278 @@
+//! The contract for a region of a sprite sheet, with the checker's own
+//! code: S and C are computed on the WHOLE sheet (a filtered sample near the
+//! region's edge reads the neighbours, the padding or the sheet's edge),
+//! then clipped to the region's rectangle (for an animation: S intersected
+//! over the frames, C united), and the mesh, whose positions are local to
+//! the rectangle, is measured against them as a layer of the rectangle's
+//! size. Besides: the texture coordinates must address the sheet at the
+//! region (and each frame by its offset), and a nine-slice panel's
+//! triangles must each lie within one slice, with anchors that give back
+//! their positions.
+
+use super::regions::region_runs;
+use super::runs::{intersect_into, union_into, CellRuns};
+use super::{measure, validate_structure, CheckError, ContractReport};
+use crate::alpha::AlphaMap;
+use crate::mesh::{LayerMesh, MeshRegion, FORMAT, VERSION};
+
+/// Texture coordinates farther than this from the sheet position they
+/// should address count as wrong (f32 rounding of `(x + rx) / W` is far
+/// below it for sheets up to 16384 texels).
+pub const UV_TOLERANCE: f64 = 1e-6;
+
+/// What [`check_region_mesh`] measured.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct RegionReport {
+    /// The contract's areas within the region's rectangle.
+    pub contract: ContractReport,
+    /// Vertices whose texture coordinate is not (position + rect corner) /
+    /// sheet size, or frame offsets that are not the frames' distances.
+    pub wrong_uvs: usize,
+    /// Triangles of a nine-slice panel reaching into more than one slice
+    /// column or row (stretching would bend them).
+    pub across_slices: usize,
+    /// Vertices whose `slice_positions` anchor does not give back their
+    /// position (or is missing).
+    pub wrong_anchors: usize,
+}
+
+impl RegionReport {
+    /// True when the contract and the region's own rules hold.
+    pub fn holds(&self) -> bool {
+        self.violations().is_empty()
+    }
+    /// One line per violated rule.
+    pub fn violations(&self) -> Vec<String> {
+        let mut v = self.contract.violations();
+        if self.wrong_uvs > 0 {
+            v.push(format!(
+                "{} texture coordinate(s) or frame offsets do not address the region in the sheet",
+                self.wrong_uvs
+            ));
+        }
+        if self.across_slices > 0 {
+            v.push(format!(
+                "{} triangle(s) cross a slice line of the nine-slice panel",
+                self.across_slices
+            ));
+        }
+        if self.wrong_anchors > 0 {
+            v.push(format!(
+                "{} vertex anchor(s) in slice_positions do not give back the vertex's position",
+                self.wrong_anchors
+            ));
+        }
+        v
+    }
+}
+
+/// Checks a region mesh (one with a `region` key, or `region` given for
+/// one without) against its sheet's alpha.
+pub fn check_region_mesh(
+    mesh: &LayerMesh,
+    sheet: &AlphaMap,
+    region: Option<&MeshRegion>,
+) -> Result<RegionReport, CheckError> {
+    if mesh.format != FORMAT {
+        return Err(CheckError::WrongFormat {
+            found: mesh.format.clone(),
+        });
+    }
+    if mesh.version != VERSION {
+        return Err(CheckError::WrongVersion {
+            found: mesh.version,
+        });
+    }
+    let Some(region) = region.or(mesh.region.as_ref()) else {
+        return Err(CheckError::BadRegion {
+            why: "the mesh has no \"region\" key: it was cut from a whole layer, not a region of a sheet".into(),
+        });
+    };
+    if sheet.alpha.len() != sheet.width as usize * sheet.height as usize {
+        return Err(CheckError::BadAlphaMap {
+            len: sheet.alpha.len(),
+            width: sheet.width,
+            height: sheet.height,
+        });
+    }
+    let (sw, sh) = (sheet.width, sheet.height);
+    if region.sheet_size != [sw, sh] {
+        return Err(CheckError::BadRegion {
+            why: format!(
+                "the mesh is for a region of a {} x {} sheet but the sheet given is {sw} x {sh}",
+                region.sheet_size[0], region.sheet_size[1]
+            ),
+        });
+    }
+    let mut frames = vec![region.rect];
+    if let Some(f) = &region.frames {
+        if f.first() != Some(&region.rect) {
+            return Err(CheckError::BadRegion {
+                why: "the region's rect is not its first frame".into(),
+            });
+        }
+        frames = f.clone();
+    }
+    let [_, _, w, h] = region.rect;
+    for f in &frames {
+        let [x, y, fw, fh] = *f;
+        if fw == 0
+            || fh == 0
+            || x as u64 + fw as u64 > sw as u64
+            || y as u64 + fh as u64 > sh as u64
+        {
+            return Err(CheckError::BadRegion {
+                why: format!(
+                    "the rectangle {f:?} is empty or reaches outside the {sw} x {sh} sheet"
+                ),
+            });
+        }
+        if (fw, fh) != (w, h) {
+            return Err(CheckError::BadRegion {
+                why: format!("frame {f:?} is not of the first frame's size {w} x {h}"),
+            });
+        }
+    }
+    if mesh.size != [w, h] {
+        return Err(CheckError::SizeMismatch {
+            mesh_w: mesh.size[0],
+            mesh_h: mesh.size[1],
+            image_w: w,
+            image_h: h,
+        });
+    }
+    validate_structure(mesh)?;
+
+    // S and C on the whole sheet, then clipped to each frame.
+    let (safe, cover) = region_runs(sheet, mesh.filter, mesh.alpha, mesh.wrap);
+    let mut s: Option<CellRuns> = None;
+    let mut c: Option<CellRuns> = None;
+    for f in &frames {
+        let (fs, fc) = (clip(&safe, *f), clip(&cover, *f));
+        s = Some(match s {
+            None => fs,
+            Some(a) => rowwise(&a, &fs, intersect_into),
+        });
+        c = Some(match c {
+            None => fc,
+            Some(a) => rowwise(&a, &fc, union_into),
+        });
+    }
+    let (s, c) = (s.expect("a frame"), c.expect("a frame"));
+    let mut report = RegionReport {
+        contract: measure(mesh, (w, h), &s, &c),
+        ..Default::default()
+    };
+
+    // Texture coordinates: the sheet at the region, frames by offsets.
+    let (swf, shf) = (sw as f64, sh as f64);
+    let [rx, ry, _, _] = region.rect;
+    for (p, uv) in mesh.positions.chunks(2).zip(mesh.uvs.chunks(2)) {
+        let u = (p[0] as f64 + rx as f64) / swf;
+        let v = (p[1] as f64 + ry as f64) / shf;
+        if (uv[0] as f64 - u).abs() > UV_TOLERANCE || (uv[1] as f64 - v).abs() > UV_TOLERANCE {
+            report.wrong_uvs += 1;
+        }
+    }
+    if frames.len() > 1 {
+        match &region.frame_uv_offsets {
+            Some(offsets) if offsets.len() == frames.len() => {
+                for (o, f) in offsets.iter().zip(&frames) {
+                    let du = (f[0] as f64 - rx as f64) / swf;
+                    let dv = (f[1] as f64 - ry as f64) / shf;
+                    if (o[0] as f64 - du).abs() > UV_TOLERANCE
+                        || (o[1] as f64 - dv).abs() > UV_TOLERANCE
+                    {
+                        report.wrong_uvs += 1;
+                    }
+                }
+            }
+            _ => report.wrong_uvs += frames.len(),
+        }
+    }
+
+    // Nine-slice: every triangle within one slice; anchors give positions.
+    if let Some([l, t, r, b]) = region.slices {
+        let cols = [0.0, l as f64, w as f64 - r as f64, w as f64];
+        let rows = [0.0, t as f64, h as f64 - b as f64, h as f64];
+        let slot = |lines: &[f64; 4], lo: f64, hi: f64| {
+            (0..3).any(|k| lines[k] <= lo && hi <= lines[k + 1])
+        };
+        for tri in mesh
+            .opaque
+            .indices
+            .chunks(3)
+            .chain(mesh.blended.indices.chunks(3))
+        {
+            let ps: Vec<[f32; 2]> = tri.iter().map(|&i| mesh.position(i)).collect();
+            let xs = ps.iter().map(|p| p[0] as f64);
+            let ys = ps.iter().map(|p| p[1] as f64);
+            let (x0, x1) = (
+                xs.clone().fold(f64::MAX, f64::min),
+                xs.fold(f64::MIN, f64::max),
+            );
+            let (y0, y1) = (
+                ys.clone().fold(f64::MAX, f64::min),
+                ys.fold(f64::MIN, f64::max),
+            );
+            if !slot(&cols, x0, x1) || !slot(&rows, y0, y1) {
+                report.across_slices += 1;
+            }
+        }
+        match &region.slice_positions {
+            Some(anchors) if anchors.len() == mesh.vertex_count() => {
+                for (i, a) in anchors.iter().enumerate() {
+                    let p = mesh.position(i as u32);
+                    let ok = |k: f32, d: f32, lines: &[f64; 4], at: f32| {
+                        let k = k as usize;
+                        k < 3
+                            && d >= 0.0
+                            && (d as f64) <= lines[k + 1] - lines[k]
+                            && lines[k] + d as f64 == at as f64
+                    };
+                    let whole = a[0].fract() == 0.0 && a[1].fract() == 0.0;
+                    if !whole || !ok(a[0], a[2], &cols, p[0]) || !ok(a[1], a[3], &rows, p[1]) {
+                        report.wrong_anchors += 1;
+                    }
+                }
+            }
+            _ => report.wrong_anchors += mesh.vertex_count(),
+        }
+    }
+    Ok(report)
+}
+
+/// The cells of `runs` (a sheet's half-texel grid) inside `rect` (texels),
+/// moved so the rectangle's top-left corner is cell (0, 0).
+fn clip(runs: &CellRuns, [x, y, w, h]: [u32; 4]) -> CellRuns {
+    let (x0, x1) = (2 * x, 2 * (x + w));
+    let mut out = CellRuns::new(2 * w as usize);
+    let mut row = Vec::new();
+    for b in 2 * y as usize..2 * (y + h) as usize {
+        row.clear();
+        if b < runs.height() {
+            for r in runs.row(b) {
+                let (s, e) = (r[0].max(x0), r[1].min(x1));
+                if s < e {
+                    row.push([s - x0, e - x0]);
+                }
+            }
+        }
+        out.push_row(&row);
+    }
+    out
+}
+
+/// A row operation on runs: intersection or union into the last argument.
+type RunOp = fn(&[[u32; 2]], &[[u32; 2]], &mut Vec<[u32; 2]>);
+
+/// Row by row `op` (intersection or union) of two regions of one size.
+fn rowwise(a: &CellRuns, b: &CellRuns, op: RunOp) -> CellRuns {
+    let mut out = CellRuns::new(a.width());
+    let mut row = Vec::new();
+    for k in 0..a.height() {
+        op(a.row(k), b.row(k), &mut row);
+        out.push_row(&row);
+    }
+    out
+}

@@ -1,0 +1,329 @@
+//! A sheet's whole run: read the sheet and its regions (from a file, or
+//! found and written to `OUT/<stem>.regions.json`), cut every region with
+//! its settings, write `OUT/<stem>/<name>.mesh.json` (and glTF) per region.
+//! Every file is written atomically, and left untouched when it already
+//! holds the same bytes; no input is ever written over.
+
+use super::find::{find_regions, region_names};
+use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
+use super::{cut_region, RegionCut, SheetAnalysis};
+use crate::batch::settings_file::SettingsFile;
+use crate::batch::Outputs;
+use crate::error::{FileError, Setting};
+use crate::export::gltf::{relative_uri, write_glb_with, write_gltf_with};
+use crate::io::{load_layer, write_if_changed, ImageLimits};
+use crate::mesh::LayerMesh;
+use crate::settings::CutSettings;
+use crate::settings::PartialSettings;
+use rayon::prelude::*;
+use std::path::{Path, PathBuf};
+
+/// Where a sheet's regions come from.
+#[derive(Clone, Debug)]
+pub enum RegionSource {
+    /// A regions file.
+    File(PathBuf),
+    /// Found from the alpha and written to `OUT/<stem>.regions.json`;
+    /// `replace` allows replacing a different file already there.
+    Find {
+        /// Replace an existing regions file of other content.
+        replace: bool,
+    },
+}
+
+/// What to cut and write for one sheet.
+#[derive(Clone, Debug)]
+pub struct SheetRequest {
+    /// The sheet (a PNG).
+    pub sheet: PathBuf,
+    /// Its regions.
+    pub regions: RegionSource,
+    /// The output folder.
+    pub out: PathBuf,
+    /// A settings file, its patterns matched against `<stem>/<name>`.
+    pub settings_file: Option<PathBuf>,
+    /// The settings before the file.
+    pub base: CutSettings,
+    /// Settings given explicitly (over the file's).
+    pub overrides: PartialSettings,
+    /// What to write per region (`preview` is not written for regions).
+    pub outputs: Outputs,
+    /// Also cut and write each frame of an animation alone.
+    pub per_frame: bool,
+    /// Largest sheet read.
+    pub limits: ImageLimits,
+}
+
+/// One region's result.
+#[derive(Clone, Debug)]
+pub struct RegionResult {
+    /// The region.
+    pub region: SheetRegion,
+    /// Its settings.
+    pub settings: CutSettings,
+    /// The cut, or why it failed.
+    pub cut: Result<RegionCut, String>,
+    /// Files written (or already holding these bytes).
+    pub outputs: Vec<PathBuf>,
+}
+
+/// What a sheet's run did.
+#[derive(Clone, Debug)]
+pub struct SheetReport {
+    /// The sheet.
+    pub sheet: PathBuf,
+    /// Its stem, the outputs' folder name.
+    pub stem: String,
+    /// The regions file written by a run that found the regions.
+    pub regions_written: Option<PathBuf>,
+    /// Warnings about the sheet's file.
+    pub warnings: Vec<String>,
+    /// Per region, in the file's order.
+    pub regions: Vec<RegionResult>,
+}
+
+impl SheetReport {
+    /// Regions that failed.
+    pub fn failed(&self) -> usize {
+        self.regions.iter().filter(|r| r.cut.is_err()).count()
+    }
+}
+
+/// Cuts every region of a sheet and writes its outputs. Errors that stop
+/// the whole sheet (unreadable sheet or regions file, a settings file
+/// refused, an output that would replace an input) come back as `Err`; a
+/// region that fails is reported in its [`RegionResult`].
+pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
+    let layer = load_layer(&req.sheet, &req.limits)?;
+    let sheet = layer.alpha;
+    let stem = req
+        .sheet
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_else(|| "sheet".into());
+    let sheet_name = req
+        .sheet
+        .file_name()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let size = (sheet.width, sheet.height);
+    std::fs::create_dir_all(&req.out).map_err(|e| {
+        FileError::new(
+            &req.out,
+            format!("cannot be created ({e})"),
+            "give an output folder you can write to",
+        )
+    })?;
+    let inputs: Vec<&Path> = match &req.regions {
+        RegionSource::File(p) => vec![req.sheet.as_path(), p.as_path()],
+        RegionSource::Find { .. } => vec![req.sheet.as_path()],
+    };
+    let would_replace_input = |dest: &Path| inputs.iter().any(|i| same_file(i, dest));
+    let mut regions_written = None;
+    let regions: Vec<SheetRegion> = match &req.regions {
+        RegionSource::File(p) => load_regions(p, size)?,
+        RegionSource::Find { replace } => {
+            let found = find_regions(&sheet, req.base_visible_min());
+            if found.is_empty() {
+                return Err(FileError::new(
+                    &req.sheet,
+                    "has no visible texel: no region was found",
+                    format!("check the sheet (or {})", Setting::VisibleMin),
+                ));
+            }
+            let names = region_names(&stem, found.len());
+            let file = RegionsFile::plain(&names.into_iter().zip(found).collect::<Vec<_>>());
+            let text = file.to_text();
+            let dest = req.out.join(format!("{stem}.regions.json"));
+            if would_replace_input(&dest) {
+                return Err(FileError::new(
+                    &dest,
+                    "is an input of this run: the found regions would be written over it",
+                    format!("give another {} folder", Setting::Out),
+                ));
+            }
+            if !replace
+                && dest.exists()
+                && std::fs::read(&dest).ok().as_deref() != Some(text.as_bytes())
+            {
+                return Err(FileError::new(
+                    &dest,
+                    "already exists with other regions (perhaps edited by hand): finding the regions again would replace it",
+                    format!("cut with {} to use it, or add {} to replace it with the regions found", Setting::Regions.given("FILE"), Setting::Force),
+                ));
+            }
+            write_if_changed(&dest, text.as_bytes())?;
+            regions_written = Some(dest.clone());
+            parse_regions(&dest, &text, size)?
+        }
+    };
+    let settings_file = req
+        .settings_file
+        .as_ref()
+        .map(|p| SettingsFile::load(p))
+        .transpose()?;
+    let dir = req.out.join(&stem);
+    std::fs::create_dir_all(&dir).map_err(|e| {
+        FileError::new(
+            &dir,
+            format!("cannot be created ({e})"),
+            "give an output folder you can write to",
+        )
+    })?;
+    // the settings of every region, validated before anything is cut
+    let mut settings = Vec::with_capacity(regions.len());
+    for r in &regions {
+        let mut s = req.base;
+        if let Some(f) = &settings_file {
+            f.apply(&format!("{stem}/{}", r.name), &mut s);
+        }
+        req.overrides.apply(&mut s);
+        s.validate().map_err(|e| {
+            FileError::new(
+                req.settings_file.as_deref().unwrap_or(&req.sheet),
+                format!("gives region {:?} settings that are refused: {e}", r.name),
+                "fix the settings for this region",
+            )
+        })?;
+        settings.push(s);
+    }
+    // the whole sheet analyzed once per filter, thresholds and addressing
+    let mut analyses: Vec<SheetAnalysis> = Vec::new();
+    for s in &settings {
+        if !analyses.iter().any(|a| a.serves(s)) {
+            analyses.push(SheetAnalysis::new(&sheet, s));
+        }
+    }
+    // output names: a region's, and with --per-frame its frames' `<name>.<k>`
+    let mut stems: Vec<(String, &str)> = Vec::new();
+    for r in &regions {
+        stems.push((r.name.clone(), &r.name));
+        if let (true, RegionKind::Frames(f)) = (req.per_frame, &r.kind) {
+            stems.extend((0..f.len()).map(|k| (format!("{}.{k}", r.name), r.name.as_str())));
+        }
+    }
+    let mut sorted = stems.clone();
+    sorted.sort();
+    if let Some(w) = sorted.windows(2).find(|w| w[0].0 == w[1].0) {
+        return Err(FileError::new(
+            req.regions_path().unwrap_or(&req.sheet),
+            format!(
+                "regions {:?} and {:?} would both write {}.mesh.json",
+                w[0].1, w[1].1, w[0].0
+            ),
+            format!(
+                "rename one of them (a frame k of an animation is written as <name>.<k> with {})",
+                Setting::PerFrame
+            ),
+        ));
+    }
+    for r in &regions {
+        for p in [".mesh.json", ".gltf", ".bin", ".glb"] {
+            let dest = dir.join(format!("{}{p}", r.name));
+            if would_replace_input(&dest) {
+                return Err(FileError::new(
+                    &dest,
+                    "is an input of this run: a region's output would be written over it",
+                    format!("give another {} folder", Setting::Out),
+                ));
+            }
+        }
+    }
+    let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
+    let results: Vec<RegionResult> = regions
+        .par_iter()
+        .zip(&settings)
+        .map(|(r, s)| {
+            let a = analyses
+                .iter()
+                .find(|a| a.serves(s))
+                .expect("analyzed above");
+            let cut = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame);
+            let mut outputs = Vec::new();
+            let cut = cut.and_then(|c| {
+                write_mesh(
+                    &dir,
+                    &r.name,
+                    &c.mesh,
+                    &req.outputs,
+                    &image_uri,
+                    &mut outputs,
+                )?;
+                for (k, m) in &c.per_frame {
+                    let name = format!("{}.{k}", r.name);
+                    write_mesh(&dir, &name, m, &req.outputs, &image_uri, &mut outputs)?;
+                }
+                Ok(c)
+            });
+            RegionResult {
+                region: r.clone(),
+                settings: *s,
+                cut,
+                outputs,
+            }
+        })
+        .collect();
+    Ok(SheetReport {
+        sheet: req.sheet.clone(),
+        stem,
+        regions_written,
+        warnings: layer.warnings,
+        regions: results,
+    })
+}
+
+impl SheetRequest {
+    /// The regions file, when one is given.
+    fn regions_path(&self) -> Option<&Path> {
+        match &self.regions {
+            RegionSource::File(p) => Some(p),
+            RegionSource::Find { .. } => None,
+        }
+    }
+
+    /// The visible threshold for finding regions: the explicit one, else
+    /// the base settings'.
+    fn base_visible_min(&self) -> u8 {
+        self.overrides
+            .visible_min
+            .unwrap_or(self.base.alpha.visible_min)
+    }
+}
+
+/// Writes one mesh's outputs into `dir` as `<name>.*`.
+fn write_mesh(
+    dir: &Path,
+    name: &str,
+    mesh: &LayerMesh,
+    outputs: &Outputs,
+    image_uri: &str,
+    written: &mut Vec<PathBuf>,
+) -> Result<(), String> {
+    if outputs.json {
+        let dest = dir.join(format!("{name}.mesh.json"));
+        let json = serde_json::to_vec_pretty(mesh).expect("a mesh serializes");
+        write_if_changed(&dest, &json).map_err(|e| e.to_string())?;
+        written.push(dest);
+    }
+    if outputs.gltf {
+        written.extend(
+            write_gltf_with(mesh, image_uri, dir, name, outputs.vertex_format)
+                .map_err(|e| e.to_string())?,
+        );
+    }
+    if outputs.glb {
+        written.extend(
+            write_glb_with(mesh, image_uri, dir, name, outputs.vertex_format)
+                .map_err(|e| e.to_string())?,
+        );
+    }
+    Ok(())
+}
+
+/// Whether two paths name the same existing file.
+fn same_file(a: &Path, b: &Path) -> bool {
+    match (a.canonicalize(), b.canonicalize()) {
+        (Ok(a), Ok(b)) => a == b,
+        _ => false,
+    }
+}
