@@ -155,7 +155,7 @@ fn check_texture_levels(scene: &Scene, image: &Path, texture: &Texture) -> Resul
                 return Err(FileError::new(
                     image,
                     format!(
-                        "is a compressed texture cut for layer {}, which asks for mip levels 0 to {}, but the file {why}",
+                        "{why} (layer {} is cut with mip levels 0 to {})",
                         l.name, s.filter.mip_levels
                     ),
                     format!(
