@@ -236,7 +236,7 @@ pub(crate) fn run_layer(
                     "give the texture compressed from this layer, at its size",
                 )
             })?;
-            notes.push(format!("guarantee computed for {}", t.describe(mip)));
+            notes.push(t.guarantee_note(mip));
             if t.levels.len() as u32 > mip + 1 {
                 notes.push(format!(
                     "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass {} if the GPU samples them all)",

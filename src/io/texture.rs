@@ -83,6 +83,13 @@ impl Texture {
             self.levels.len()
         )
     }
+
+    /// The note a cut from this texture carries (the `cut` line, a scene
+    /// layer's notes): the format, block size and levels the guarantee was
+    /// computed for.
+    pub fn guarantee_note(&self, highest: u32) -> String {
+        format!("guarantee computed for {}", self.describe(highest))
+    }
 }
 
 /// Whether `bytes` start like a texture file this module reads (KTX 2.0 or

@@ -418,6 +418,7 @@ mod tests {
     use crate::alpha::AlphaMap;
     use crate::cut::cut_layer;
     use crate::scene::file::LayerSpec;
+    use crate::scene::prepare::LayerAlpha;
     use crate::settings::CutSettings;
     use std::sync::Arc;
 
@@ -455,7 +456,7 @@ mod tests {
                 fill_width,
             },
             mesh,
-            alpha: Some(Arc::new(m)),
+            alpha: Some(Arc::new(LayerAlpha::Png(m))),
             notes: Vec::new(),
         }
     }
@@ -504,7 +505,7 @@ mod tests {
                         budget,
                         ..Default::default()
                     };
-                    cut_layer(layers[i].alpha.as_ref().unwrap(), "x", &s).mesh
+                    cut_layer(layers[i].alpha.as_ref().unwrap().level0(), "x", &s).mesh
                 })
                 .collect();
             let exact: Vec<f64> = cuts
