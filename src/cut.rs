@@ -26,7 +26,7 @@ use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
-use crate::triangulate::{triangulate, Triangulation};
+use crate::triangulate::{triangulate, TriangulateError, Triangulation};
 use crate::vertex_order::order_vertices;
 
 /// A cut layer and what the user should know about it.
@@ -144,8 +144,8 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 
 /// Stage 3: fitted rings → an opaque and a blended triangle list over one
 /// vertex array ([`triangulate`]), the vertices renumbered and the
-/// triangles sorted ([`order_vertices`]); fails when the rings cannot be
-/// triangulated.
+/// triangles sorted ([`order_vertices`]); fails ([`TriangulateError`]) when the rings
+/// cannot be triangulated.
 ///
 /// ```
 /// use underdraw::{alpha::AlphaMap, cut::{fit_layer, triangulate_outlines}, settings::CutSettings};
@@ -155,7 +155,7 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 /// let t = triangulate_outlines(&outlines.fit).unwrap();
 /// assert_eq!((t.positions.len(), t.opaque.len(), t.blended.len()), (4, 2, 0));
 /// ```
-pub fn triangulate_outlines(fit: &Fit) -> Result<Triangulation, String> {
+pub fn triangulate_outlines(fit: &Fit) -> Result<Triangulation, TriangulateError> {
     let mut t = triangulate(fit)?;
     order_vertices(&mut t);
     Ok(t)
@@ -269,17 +269,19 @@ fn finish(
     if outlines.fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
     }
-    let attempt = triangulate_outlines(&outlines.fit).and_then(|t| {
-        if t.positions.len() > settings.budget {
-            return Err(format!(
-                "{} vertices after triangulation, over the budget of {}",
-                t.positions.len(),
-                settings.budget
-            ));
-        }
-        let mesh = layer_mesh(&outlines, &t, source, settings);
-        check(&mesh).map(|()| mesh)
-    });
+    let attempt = triangulate_outlines(&outlines.fit)
+        .map_err(|e| e.to_string())
+        .and_then(|t| {
+            if t.positions.len() > settings.budget {
+                return Err(format!(
+                    "{} vertices after triangulation, over the budget of {}",
+                    t.positions.len(),
+                    settings.budget
+                ));
+            }
+            let mesh = layer_mesh(&outlines, &t, source, settings);
+            check(&mesh).map(|()| mesh)
+        });
     let mesh = match attempt {
         Ok(mesh) => mesh,
         Err(why) => {

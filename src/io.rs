@@ -22,7 +22,7 @@ mod ktx2;
 mod texture;
 
 pub use folder::{backup_path, staged_path, NamedBytes, OutputFolder};
-pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
+pub use texture::{decode_texture, is_texture, load_texture, LevelsError, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
 use crate::error::{FileError, Setting};
