@@ -91,6 +91,24 @@ impl OutputFolder {
         self.dir.join(name)
     }
 
+    /// Checks that files can be created in the folder, before anything is
+    /// written: creates an empty `.underdraw-probe-<process id>` and removes
+    /// it. Fails as "the `what` cannot be written to", with `hint`.
+    pub fn probe(&self, what: &str, hint: &str) -> Result<(), FileError> {
+        let probe = self
+            .dir
+            .join(format!(".underdraw-probe-{}", std::process::id()));
+        fs::write(&probe, b"").map_err(|e| {
+            FileError::new(
+                &self.dir,
+                format!("the {what} cannot be written to ({e})"),
+                hint,
+            )
+        })?;
+        let _ = fs::remove_file(&probe);
+        Ok(())
+    }
+
     /// Every file written through this folder, in the order written.
     pub fn written(&self) -> &[PathBuf] {
         &self.written
