@@ -233,15 +233,15 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
 /// sheet's regions clipped to one region's rectangle ([`crate::sheet`]).
 /// `regions` holds their areas and the rectangle's texel classes; `check`
 /// verifies a mesh (positions in the rectangle's texels) and says why it
-/// fails. The stages, the fallback and the notes are those of
-/// [`cut_sampled`].
-pub fn cut_runs(
+/// fails (any error that displays: the fallback's note quotes it). The
+/// stages, the fallback and the notes are those of [`cut_sampled`].
+pub fn cut_runs<E: std::fmt::Display>(
     size: (u32, u32),
     (safe, cover): (RowRuns, RowRuns),
     regions: &RegionStats,
     source: &str,
     settings: &CutSettings,
-    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+    check: &dyn Fn(&LayerMesh) -> Result<(), E>,
 ) -> CutOutcome {
     let prepared = PreparedRegions {
         safe,
@@ -253,7 +253,7 @@ pub fn cut_runs(
         fit_regions(prepared, settings.budget),
         source,
         settings,
-        check,
+        &|mesh: &LayerMesh| check(mesh).map_err(|e| e.to_string()),
     )
 }
 
