@@ -26,7 +26,7 @@ use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
 use crate::settings::CutSettings;
-use crate::triangulate::{triangulate, Triangulation};
+use crate::triangulate::{triangulate, TriangulateError, Triangulation};
 use crate::vertex_order::order_vertices;
 
 /// A cut layer and what the user should know about it.
@@ -144,8 +144,8 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 
 /// Stage 3: fitted rings → an opaque and a blended triangle list over one
 /// vertex array ([`triangulate`]), the vertices renumbered and the
-/// triangles sorted ([`order_vertices`]); fails when the rings cannot be
-/// triangulated.
+/// triangles sorted ([`order_vertices`]); fails ([`TriangulateError`]) when the rings
+/// cannot be triangulated.
 ///
 /// ```
 /// use underdraw::{alpha::AlphaMap, cut::{fit_layer, triangulate_outlines}, settings::CutSettings};
@@ -155,7 +155,7 @@ pub fn fit_layer(map: &AlphaMap, settings: &CutSettings) -> Outlines {
 /// let t = triangulate_outlines(&outlines.fit).unwrap();
 /// assert_eq!((t.positions.len(), t.opaque.len(), t.blended.len()), (4, 2, 0));
 /// ```
-pub fn triangulate_outlines(fit: &Fit) -> Result<Triangulation, String> {
+pub fn triangulate_outlines(fit: &Fit) -> Result<Triangulation, TriangulateError> {
     let mut t = triangulate(fit)?;
     order_vertices(&mut t);
     Ok(t)
@@ -233,15 +233,15 @@ pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> Cu
 /// sheet's regions clipped to one region's rectangle ([`crate::sheet`]).
 /// `regions` holds their areas and the rectangle's texel classes; `check`
 /// verifies a mesh (positions in the rectangle's texels) and says why it
-/// fails. The stages, the fallback and the notes are those of
-/// [`cut_sampled`].
-pub fn cut_runs(
+/// fails (any error that displays: the fallback's note quotes it). The
+/// stages, the fallback and the notes are those of [`cut_sampled`].
+pub fn cut_runs<E: std::fmt::Display>(
     size: (u32, u32),
     (safe, cover): (RowRuns, RowRuns),
     regions: &RegionStats,
     source: &str,
     settings: &CutSettings,
-    check: &dyn Fn(&LayerMesh) -> Result<(), String>,
+    check: &dyn Fn(&LayerMesh) -> Result<(), E>,
 ) -> CutOutcome {
     let prepared = PreparedRegions {
         safe,
@@ -253,7 +253,7 @@ pub fn cut_runs(
         fit_regions(prepared, settings.budget),
         source,
         settings,
-        check,
+        &|mesh: &LayerMesh| check(mesh).map_err(|e| e.to_string()),
     )
 }
 
@@ -269,17 +269,19 @@ fn finish(
     if outlines.fit.cover.is_empty() {
         notes.push("fully transparent: the meshes are empty".to_string());
     }
-    let attempt = triangulate_outlines(&outlines.fit).and_then(|t| {
-        if t.positions.len() > settings.budget {
-            return Err(format!(
-                "{} vertices after triangulation, over the budget of {}",
-                t.positions.len(),
-                settings.budget
-            ));
-        }
-        let mesh = layer_mesh(&outlines, &t, source, settings);
-        check(&mesh).map(|()| mesh)
-    });
+    let attempt = triangulate_outlines(&outlines.fit)
+        .map_err(|e| e.to_string())
+        .and_then(|t| {
+            if t.positions.len() > settings.budget {
+                return Err(format!(
+                    "{} vertices after triangulation, over the budget of {}",
+                    t.positions.len(),
+                    settings.budget
+                ));
+            }
+            let mesh = layer_mesh(&outlines, &t, source, settings);
+            check(&mesh).map(|()| mesh)
+        });
     let mesh = match attempt {
         Ok(mesh) => mesh,
         Err(why) => {

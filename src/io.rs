@@ -22,7 +22,7 @@ mod ktx2;
 mod texture;
 
 pub use folder::{backup_path, staged_path, NamedBytes, OutputFolder};
-pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
+pub use texture::{decode_texture, is_texture, load_texture, LevelsError, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
 use crate::error::{FileError, Setting};
@@ -142,6 +142,28 @@ impl LayerFile {
 /// Reads a layer file within `limits`: a shipped texture when its first
 /// bytes say so ([`is_texture`]), else a PNG. The one entry for a layer
 /// that may ship compressed.
+///
+/// ```
+/// use underdraw::io::{read_layer_file, ImageLimits, LayerFile};
+/// let dir = std::env::temp_dir().join(format!("underdraw-doc-read-{}", std::process::id()));
+/// std::fs::create_dir_all(&dir).unwrap();
+/// // a 4 x 2 PNG: opaque on the left half, transparent on the right
+/// let path = dir.join("half.png");
+/// image::RgbaImage::from_fn(4, 2, |x, _| image::Rgba([9, 9, 9, if x < 2 { 255 } else { 0 }]))
+///     .save(&path)
+///     .unwrap();
+/// let LayerFile::Png(layer) = read_layer_file(&path, &ImageLimits::default()).unwrap() else {
+///     panic!("a PNG is read as a PNG layer");
+/// };
+/// assert_eq!((layer.alpha.width, layer.alpha.height), (4, 2));
+/// assert_eq!(layer.alpha.alpha, [255, 255, 0, 0, 255, 255, 0, 0]);
+/// assert!(layer.warnings.is_empty());
+/// // a file that is neither: the error names it and says what is wrong
+/// std::fs::write(dir.join("notes.png"), b"not an image").unwrap();
+/// let e = read_layer_file(&dir.join("notes.png"), &ImageLimits::default()).unwrap_err();
+/// assert!(e.to_string().contains("notes.png"));
+/// std::fs::remove_dir_all(&dir).unwrap();
+/// ```
 pub fn read_layer_file(path: &Path, limits: &ImageLimits) -> Result<LayerFile, FileError> {
     let bytes = read_input(path)?;
     if is_texture(&bytes) {

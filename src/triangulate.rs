@@ -33,6 +33,34 @@ pub struct Triangulation {
     pub interior_length: f64,
 }
 
+/// Why a fit could not be triangulated: a library step (ear clipping, the
+/// constrained triangulation, the boolean difference) produced something
+/// that does not tile the outlines on the lattice. The cut then falls back
+/// to a plainer mesh and quotes this in its note.
+#[derive(Clone, Copy, Debug, PartialEq, thiserror::Error)]
+pub enum TriangulateError {
+    /// `earcutr` refused the rings.
+    #[error("ear clipping failed: {0:?}")]
+    EarClipping(earcutr::Error),
+    /// `spade` refused a ring's vertex.
+    #[error("constrained triangulation: {0:?}")]
+    Insertion(spade::InsertionError),
+    /// Two outline edges cross, so they cannot both be constraints.
+    #[error("constrained triangulation: outline edges cross")]
+    EdgesCross,
+    /// Neither triangulation's triangles sum to the polygon's area.
+    #[error("neither ear clipping nor the constrained triangulation tiles an outline")]
+    NotTiled,
+    /// `geo`'s boolean difference returned a point off the half-texel lattice.
+    #[error("boolean difference produced a point off the lattice: ({x}, {y})")]
+    OffLattice {
+        /// Its x, half texels.
+        x: f64,
+        /// Its y, half texels.
+        y: f64,
+    },
+}
+
 #[derive(Default)]
 struct Builder {
     positions: Vec<Point>,
@@ -55,7 +83,7 @@ impl Builder {
         outer: &[Point],
         holes: &[Vec<Point>],
         out: &mut Vec<[u32; 3]>,
-    ) -> Result<(), String> {
+    ) -> Result<(), TriangulateError> {
         let mut flat: Vec<f64> = Vec::new();
         let mut pts: Vec<Point> = Vec::new();
         let mut hole_starts = Vec::new();
@@ -72,8 +100,8 @@ impl Builder {
                 pts.push(p);
             }
         }
-        let tris = earcutr::earcut(&flat, &hole_starts, 2)
-            .map_err(|e| format!("ear clipping failed: {e:?}"))?;
+        let tris =
+            earcutr::earcut(&flat, &hole_starts, 2).map_err(TriangulateError::EarClipping)?;
         let found: Vec<[Point; 3]> = tris
             .chunks_exact(3)
             .map(|t| [pts[t[0]], pts[t[1]], pts[t[2]]])
@@ -92,10 +120,7 @@ impl Builder {
         } else {
             let cdt = constrained(&rings)?;
             if twice_area_sum(&cdt) != want {
-                return Err(
-                    "neither ear clipping nor the constrained triangulation tiles an outline"
-                        .into(),
-                );
+                return Err(TriangulateError::NotTiled);
             }
             cdt
         };
@@ -132,7 +157,7 @@ fn twice_area_sum(tris: &[[Point; 3]]) -> i64 {
 /// vertices but do not cross) by a constrained Delaunay triangulation
 /// (`spade`, exact predicates) of its ring edges, keeping the triangles
 /// whose centroid is inside by the even-odd rule. Adds no vertex.
-fn constrained(rings: &[&[Point]]) -> Result<Vec<[Point; 3]>, String> {
+fn constrained(rings: &[&[Point]]) -> Result<Vec<[Point; 3]>, TriangulateError> {
     use spade::{ConstrainedDelaunayTriangulation, Point2, Triangulation as _};
     let mut cdt = ConstrainedDelaunayTriangulation::<Point2<f64>>::new();
     for ring in rings {
@@ -140,14 +165,14 @@ fn constrained(rings: &[&[Point]]) -> Result<Vec<[Point; 3]>, String> {
             .iter()
             .map(|p| cdt.insert(Point2::new(p[0] as f64, p[1] as f64)))
             .collect::<Result<Vec<_>, _>>()
-            .map_err(|e| format!("constrained triangulation: {e:?}"))?;
+            .map_err(TriangulateError::Insertion)?;
         for i in 0..handles.len() {
             let (a, b) = (handles[i], handles[(i + 1) % handles.len()]);
             if a == b {
                 continue;
             }
             if !cdt.can_add_constraint(a, b) {
-                return Err("constrained triangulation: outline edges cross".into());
+                return Err(TriangulateError::EdgesCross);
             }
             cdt.add_constraint(a, b);
         }
@@ -200,15 +225,12 @@ fn to_geo(poly: &FitPolygon) -> Polygon<f64> {
     )
 }
 
-fn from_geo_ring(ls: &LineString<f64>) -> Result<Vec<Point>, String> {
+fn from_geo_ring(ls: &LineString<f64>) -> Result<Vec<Point>, TriangulateError> {
     let mut pts: Vec<Point> = Vec::with_capacity(ls.0.len());
     for c in &ls.0 {
         let p = [c.x.round() as i64, c.y.round() as i64];
         if (c.x - p[0] as f64).abs() > 1e-9 || (c.y - p[1] as f64).abs() > 1e-9 {
-            return Err(format!(
-                "boolean difference produced a point off the lattice: ({}, {})",
-                c.x, c.y
-            ));
+            return Err(TriangulateError::OffLattice { x: c.x, y: c.y });
         }
         if pts.last() != Some(&p) {
             pts.push(p);
@@ -222,7 +244,7 @@ fn from_geo_ring(ls: &LineString<f64>) -> Result<Vec<Point>, String> {
 
 /// Triangulates a fit. Fails (with the reason) only when a library step
 /// produced something outside the lattice; the caller then falls back.
-pub fn triangulate(fit: &Fit) -> Result<Triangulation, String> {
+pub fn triangulate(fit: &Fit) -> Result<Triangulation, TriangulateError> {
     let mut b = Builder::default();
     let mut opaque = Vec::new();
     for poly in &fit.opaque {

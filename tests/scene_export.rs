@@ -332,6 +332,44 @@ fn the_report_lists_every_file_written_the_gltf_assets_too() {
 }
 
 #[test]
+fn the_report_lists_the_web_page_files_too() {
+    // the page's folder of its own, beside the scene's
+    let page = fresh("listed-page-report");
+    let e = exported(
+        "listed-page",
+        &["--report", page.to_str().expect("a UTF-8 temp path")],
+    );
+    let report: Value =
+        serde_json::from_slice(&fs::read(e.out.join("scene-report.json")).unwrap()).unwrap();
+    let listed: Vec<PathBuf> = report["outputs"]
+        .as_array()
+        .expect("outputs")
+        .iter()
+        .map(|v| PathBuf::from(v.as_str().expect("a path")))
+        .collect();
+    // the report itself is written last, so it is listed last
+    assert_eq!(listed.last(), Some(&e.out.join("scene-report.json")));
+    let mut sorted = listed.clone();
+    sorted.sort();
+    let mut present: Vec<PathBuf> = [&e.out, &e.export, &page]
+        .iter()
+        .flat_map(|d| fs::read_dir(d).unwrap().map(|f| f.unwrap().path()))
+        .collect();
+    present.sort();
+    assert_eq!(sorted, present);
+    for f in ["index.html", "heatmap-rect.png", "heatmap-split.png"] {
+        assert!(listed.contains(&page.join(f)), "{f} is not listed");
+    }
+    assert!(
+        listed
+            .iter()
+            .any(|p| p.starts_with(&page) && p.to_string_lossy().ends_with(".preview.png")),
+        "no preview listed: {listed:?}"
+    );
+    let _ = fs::remove_dir_all(&page);
+}
+
+#[test]
 fn export_never_overwrites_a_mesh_the_scene_reads() {
     let dir = fresh("protect");
     // a mesh file cut before, read by the scene, in the export folder

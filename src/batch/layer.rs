@@ -221,7 +221,7 @@ pub(crate) fn run_layer(
             let levels = t.levels_for(mip).map_err(|why| {
                 FileError::new(
                     path,
-                    why,
+                    why.to_string(),
                     format!("lower {} to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l", Setting::MipLevels),
                 )
             })?;

@@ -16,6 +16,14 @@
 //! still locked, and a run that locked a file another run had just
 //! removed notices (the path no longer names the file it locked) and tries
 //! again, so two runs never both hold the lock.
+//!
+//! The one file of the library written outside [`crate::io::OutputFolder`]:
+//! the lock lives on the open file itself (its inode), so the file must be
+//! opened in place, created if missing and never truncated before the lock
+//! is held, then rewritten in place. The folder's atomic write (a temporary
+//! file renamed over the path) would put a new, unlocked file under the
+//! name, and a second run opening it would take its lock as well. It is not
+//! an output either: it is removed when the run ends.
 
 use crate::error::{FileError, Setting};
 use serde::{Deserialize, Serialize};

@@ -19,7 +19,7 @@
 //! files that were whole and complete together.
 
 use crate::error::FileError;
-use crate::io::write_if_changed;
+use crate::io::OutputFolder;
 use serde::{Deserialize, Serialize};
 use sha2::{Digest, Sha256};
 use std::collections::BTreeMap;
@@ -151,13 +151,15 @@ impl Manifest {
         Ok(Some(m))
     }
 
-    /// Writes the manifest into `out`, atomically, unless the file there
-    /// already holds the same bytes (a rerun with nothing to do leaves it
-    /// untouched, modification time included). Returns whether it wrote.
-    pub fn save(&self, out: &Path) -> Result<bool, FileError> {
+    /// Writes the manifest into the output folder `out` as [`FILE_NAME`],
+    /// through its gate ([`OutputFolder::write`]): atomically, never over an
+    /// input, and not at all when the file there already holds the same
+    /// bytes (a rerun with nothing to do leaves it untouched, modification
+    /// time included).
+    pub fn save(&self, out: &mut OutputFolder) -> Result<(), FileError> {
         let mut bytes = serde_json::to_vec_pretty(self).expect("a manifest serializes");
         bytes.push(b'\n');
-        write_if_changed(&out.join(FILE_NAME), &bytes)
+        out.write(FILE_NAME, &bytes)
     }
 }
 
@@ -226,7 +228,9 @@ mod tests {
         let _ = std::fs::remove_dir_all(&d);
         std::fs::create_dir_all(&d).unwrap();
         assert_eq!(Manifest::load(&d), Ok(None));
-        Manifest::new().save(&d).unwrap();
+        Manifest::new()
+            .save(&mut OutputFolder::open(&d, Vec::new()))
+            .unwrap();
         assert_eq!(Manifest::load(&d), Ok(Some(Manifest::new())));
         let text = std::fs::read_to_string(d.join(FILE_NAME)).unwrap();
         std::fs::write(

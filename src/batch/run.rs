@@ -15,7 +15,7 @@ use super::lock::OutputLock;
 use super::manifest::{LayerResult, Manifest};
 use super::{Job, Plan};
 use crate::error::{FileError, Setting};
-use crate::io::ImageLimits;
+use crate::io::{ImageLimits, OutputFolder};
 use serde::Serialize;
 use std::path::{Path, PathBuf};
 use std::sync::Mutex;
@@ -82,23 +82,11 @@ impl BatchReport {
 
 /// Checks that `out` can be created and written to.
 pub fn prepare_out(out: &Path) -> Result<(), FileError> {
-    let fail = |what: String| {
-        FileError::new(
-            out,
-            what,
-            format!(
-                "choose a writable {} folder, or fix its permissions",
-                Setting::Out
-            ),
-        )
-    };
-    std::fs::create_dir_all(out)
-        .map_err(|e| fail(format!("the output folder cannot be created ({e})")))?;
-    let probe = out.join(format!(".underdraw-probe-{}", std::process::id()));
-    std::fs::write(&probe, b"")
-        .map_err(|e| fail(format!("the output folder cannot be written to ({e})")))?;
-    let _ = std::fs::remove_file(&probe);
-    Ok(())
+    let hint = format!(
+        "choose a writable {} folder, or fix its permissions",
+        Setting::Out
+    );
+    OutputFolder::create(out, Vec::new(), "output folder", &hint)?.probe("output folder", &hint)
 }
 
 /// Runs `plan`: every layer on a pool of `opts.jobs` threads, calling
@@ -137,7 +125,19 @@ pub fn run(
         }
     };
     let previous = manifest.layers.clone();
-    let shared = Mutex::new((manifest, Instant::now(), None::<FileError>));
+    // the manifest is written through the folder's gate, never over an input
+    let manifest_out = OutputFolder::open(
+        &plan.out,
+        plan.jobs
+            .iter()
+            .flat_map(|j| std::iter::once(j.input.clone()).chain(j.texture.clone()))
+            .collect(),
+    )
+    .with_refusal(
+        "is one of the inputs and would be overwritten by the manifest",
+        &format!("choose another {} folder", Setting::Out),
+    );
+    let shared = Mutex::new((manifest, Instant::now(), None::<FileError>, manifest_out));
     let one = |j: &Job| -> LayerReport {
         let r = match &j.clash {
             Some(first) => Err(FileError::new(
@@ -174,7 +174,8 @@ pub fn run(
                 let mut g = shared.lock().unwrap_or_else(|p| p.into_inner());
                 g.0.layers.insert(j.key.clone(), d.entry);
                 if g.1.elapsed() > Duration::from_secs(1) {
-                    g.2 = g.0.save(&plan.out).err().or(g.2.take());
+                    let g = &mut *g;
+                    g.2 = g.0.save(&mut g.3).err().or(g.2.take());
                     g.1 = Instant::now();
                 }
                 drop(g);
@@ -213,9 +214,10 @@ pub fn run(
         )
     })?;
     let layers: Vec<LayerReport> = pool.install(|| plan.jobs.par_iter().map(one).collect());
-    let (manifest, _, mut manifest_error) = shared.into_inner().unwrap_or_else(|p| p.into_inner());
+    let (manifest, _, mut manifest_error, mut manifest_out) =
+        shared.into_inner().unwrap_or_else(|p| p.into_inner());
     if existed || !manifest.layers.is_empty() {
-        if let Err(e) = manifest.save(&plan.out) {
+        if let Err(e) = manifest.save(&mut manifest_out) {
             manifest_error = Some(e);
         }
     }

@@ -468,6 +468,32 @@ fn cut_extras(mesh: &LayerMesh, reversed: bool) -> Value {
 /// ([`build_with`]). `image_uri` is the layer's PNG relative to the folder,
 /// as a URI reference (see [`relative_uri`]). Refuses, naming the `.gltf`
 /// in `dir`, a malformed mesh or a layer too large for the format.
+///
+/// ```
+/// use underdraw::{alpha::AlphaMap, cut::cut_layer, export::gltf::gltf_files};
+/// use underdraw::{mesh::VertexFormat, settings::CutSettings};
+/// // a 16 x 16 opaque layer: one quad, 4 vertices, 2 triangles
+/// let map = AlphaMap::from_raw(16, 16, vec![255; 256]);
+/// let mesh = cut_layer(&map, "quad.png", &CutSettings::default()).mesh;
+/// let dir = std::path::Path::new("out");
+/// let files = gltf_files(&mesh, "quad.png", dir, "quad", VertexFormat::F32).unwrap();
+/// let names: Vec<&str> = files.iter().map(|(n, _)| n.as_str()).collect();
+/// assert_eq!(names, ["quad.bin", "quad.gltf"]);
+/// let gltf: serde_json::Value = serde_json::from_slice(&files[1].1).unwrap();
+/// assert_eq!(gltf["buffers"][0]["uri"], "quad.bin");
+/// // one primitive (no blended triangles), opaque: positions VEC3 of FLOAT
+/// // (componentType 5126), texture coordinates VEC2 of FLOAT, indices of
+/// // UNSIGNED_SHORT (5123), as the glTF 2.0 specification numbers them
+/// let prims = gltf["meshes"][0]["primitives"].as_array().unwrap();
+/// assert_eq!(prims.len(), 1);
+/// assert_eq!(gltf["materials"][0]["alphaMode"], "OPAQUE");
+/// let acc = &gltf["accessors"];
+/// assert_eq!((acc[0]["componentType"].as_u64(), acc[0]["count"].as_u64()), (Some(5126), Some(4)));
+/// assert_eq!((acc[2]["componentType"].as_u64(), acc[2]["count"].as_u64()), (Some(5123), Some(6)));
+/// // so the .bin holds 4 x 12 + 4 x 8 + 6 x 2 = 92 bytes
+/// assert_eq!(files[0].1.len(), 92);
+/// assert_eq!(gltf["buffers"][0]["byteLength"], 92);
+/// ```
 pub fn gltf_files(
     mesh: &LayerMesh,
     image_uri: &str,

@@ -91,6 +91,24 @@ impl OutputFolder {
         self.dir.join(name)
     }
 
+    /// Checks that files can be created in the folder, before anything is
+    /// written: creates an empty `.underdraw-probe-<process id>` and removes
+    /// it. Fails as "the `what` cannot be written to", with `hint`.
+    pub fn probe(&self, what: &str, hint: &str) -> Result<(), FileError> {
+        let probe = self
+            .dir
+            .join(format!(".underdraw-probe-{}", std::process::id()));
+        fs::write(&probe, b"").map_err(|e| {
+            FileError::new(
+                &self.dir,
+                format!("the {what} cannot be written to ({e})"),
+                hint,
+            )
+        })?;
+        let _ = fs::remove_file(&probe);
+        Ok(())
+    }
+
     /// Every file written through this folder, in the order written.
     pub fn written(&self) -> &[PathBuf] {
         &self.written
@@ -114,6 +132,22 @@ impl OutputFolder {
 
     /// Writes one file atomically; one that already holds `bytes` is left
     /// untouched (its time too), and is listed as written all the same.
+    ///
+    /// ```
+    /// use underdraw::io::OutputFolder;
+    /// let dir = std::env::temp_dir().join(format!("underdraw-doc-write-{}", std::process::id()));
+    /// let input = dir.join("layer.png");
+    /// let mut out = OutputFolder::create(&dir, vec![input.clone()], "output folder", "choose another").unwrap();
+    /// std::fs::write(&input, b"the art").unwrap();
+    /// out.write("layer.mesh.json", b"{}").unwrap();
+    /// assert_eq!(std::fs::read(dir.join("layer.mesh.json")).unwrap(), b"{}");
+    /// // an input is never written over: refused, naming it, and left as it was
+    /// let e = out.write("layer.png", b"a mesh").unwrap_err();
+    /// assert!(e.to_string().contains("layer.png"));
+    /// assert_eq!(std::fs::read(&input).unwrap(), b"the art");
+    /// assert_eq!(out.written(), [dir.join("layer.mesh.json")]);
+    /// std::fs::remove_dir_all(&dir).unwrap();
+    /// ```
     pub fn write(&mut self, name: &str, bytes: &[u8]) -> Result<(), FileError> {
         self.refuse_inputs(name)?;
         let dest = self.path(name);
@@ -132,6 +166,22 @@ impl OutputFolder {
 
     /// Writes `files` as one group: either all are replaced or, on an
     /// error, none is (see the module documentation for an interruption).
+    ///
+    /// ```
+    /// use underdraw::io::OutputFolder;
+    /// let dir = std::env::temp_dir().join(format!("underdraw-doc-commit-{}", std::process::id()));
+    /// let mut out = OutputFolder::create(&dir, Vec::new(), "output folder", "choose another").unwrap();
+    /// out.commit(&[("a.gltf".into(), b"{}".to_vec()), ("a.bin".into(), vec![0; 8])]).unwrap();
+    /// assert_eq!(std::fs::read(dir.join("a.bin")).unwrap(), [0; 8]);
+    /// // a group with a file that cannot be written (a folder stands where
+    /// // `b.bin` should go) replaces none of them: `a.gltf` keeps its bytes
+    /// std::fs::create_dir_all(dir.join("b.bin")).unwrap();
+    /// let group = [("a.gltf".to_string(), b"new".to_vec()), ("b.bin".to_string(), vec![1])];
+    /// assert!(out.commit(&group).is_err());
+    /// assert_eq!(std::fs::read(dir.join("a.gltf")).unwrap(), b"{}");
+    /// assert_eq!(out.written(), [dir.join("a.gltf"), dir.join("a.bin")]);
+    /// std::fs::remove_dir_all(&dir).unwrap();
+    /// ```
     pub fn commit(&mut self, files: &[NamedBytes]) -> Result<(), FileError> {
         for (name, _) in files {
             self.refuse_inputs(name)?;

@@ -37,6 +37,30 @@ pub struct Texture {
     pub levels: Vec<AlphaMap>,
 }
 
+/// Why a texture's levels cannot serve a cut or check up to a mip level
+/// ([`Texture::levels_for`]); the caller names the file and says what to do.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum LevelsError {
+    /// The file holds fewer levels than asked for.
+    #[error("holds {held} mip level(s) (0 to {}), but the guarantee was asked for levels 0 to {highest}", .held - 1)]
+    NotHeld {
+        /// Levels the file holds (at least 1).
+        held: u32,
+        /// The highest level asked for.
+        highest: u32,
+    },
+    /// A level's texel does not span a whole number of level-0 texels.
+    #[error("its mip level {level} is {} x {} texels for a level 0 of {} x {}: a level-{level} texel does not span a whole number of level-0 texels, so the sampled regions are not exact on the half-texel grid", .size[0], .size[1], .base[0], .base[1])]
+    Misaligned {
+        /// The level.
+        level: u32,
+        /// Its width and height, texels.
+        size: [u32; 2],
+        /// Level 0's width and height, texels.
+        base: [u32; 2],
+    },
+}
+
 impl Texture {
     /// Level 0's width and height.
     pub fn size(&self) -> (u32, u32) {
@@ -47,21 +71,19 @@ impl Texture {
     /// hold them, and each level's texel must span a whole number of level-0
     /// texels on each axis (W and H multiples of that level's size), so the
     /// regions' boundaries stay on the half-texel grid.
-    pub fn levels_for(&self, highest: u32) -> Result<&[AlphaMap], String> {
+    pub fn levels_for(&self, highest: u32) -> Result<&[AlphaMap], LevelsError> {
         let held = self.levels.len() as u32;
         if highest >= held {
-            return Err(format!(
-                "holds {held} mip level(s) (0 to {}), but the guarantee was asked for levels 0 to {highest}",
-                held - 1
-            ));
+            return Err(LevelsError::NotHeld { held, highest });
         }
         let (w, h) = self.size();
         for (l, m) in self.levels[..=highest as usize].iter().enumerate() {
             if w % m.width != 0 || h % m.height != 0 {
-                return Err(format!(
-                    "its mip level {l} is {} x {} texels for a level 0 of {w} x {h}: a level-{l} texel does not span a whole number of level-0 texels, so the sampled regions are not exact on the half-texel grid",
-                    m.width, m.height
-                ));
+                return Err(LevelsError::Misaligned {
+                    level: l as u32,
+                    size: [m.width, m.height],
+                    base: [w, h],
+                });
             }
         }
         Ok(&self.levels[..=highest as usize])

@@ -12,7 +12,7 @@ use crate::scene::file::Scene;
 use crate::scene::report::SceneReport;
 use crate::scene::run::SceneOptions;
 use std::fmt::Write;
-use std::path::Path;
+use std::path::{Path, PathBuf};
 
 /// One layer's card.
 #[derive(Clone, Debug, Default)]
@@ -229,6 +229,9 @@ pub fn index_html(
 /// Writes the web page report into `dir`: `index.html`, the heatmaps, and
 /// per layer `<name>.preview.png` and (for a layer cut on the fly) its
 /// budget plot `<name>.plot.svg` from a sweep at [`crate::sweep::BUDGETS`].
+/// Returns every file written, in the order written (`index.html` last), for
+/// the report's `outputs`: the page does not show them, so the caller writes
+/// it before `scene-report.json`.
 pub fn write_report_page(
     dir: &Path,
     scene: &Scene,
@@ -236,7 +239,7 @@ pub fn write_report_page(
     report: &SceneReport,
     heatmap_files: &[(String, Vec<u8>)],
     opts: &SceneOptions,
-) -> Result<(), FileError> {
+) -> Result<Vec<PathBuf>, FileError> {
     use crate::plot::{sweep_svg, Marks};
     use crate::sweep::{knee, sweep_sampled, BUDGETS};
     /// The knee's fraction, as `underdraw sweep`'s default.
@@ -424,5 +427,6 @@ pub fn write_report_page(
         ),
     ];
     let page = index_html(report, &shown, &cards, &settings);
-    out.write("index.html", page.as_bytes())
+    out.write("index.html", page.as_bytes())?;
+    Ok(out.written().to_vec())
 }

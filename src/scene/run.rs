@@ -281,26 +281,30 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
         notes,
         outputs: Vec::new(),
     };
-    // every file written, the report itself included (written last)
-    report.outputs = out
-        .written()
-        .iter()
-        .chain(&exported_files)
-        .chain([&report_path])
-        .map(|p| p.display().to_string())
-        .collect();
-    let json = serde_json::to_vec_pretty(&report).expect("a report serializes");
-    out.write("scene-report.json", &json)?;
-    if let Some(dir) = &opts.report {
-        crate::present::html::write_report_page(
+    // the web page first (it does not show `outputs`), so that the report
+    // lists its files too
+    let page_files = match &opts.report {
+        Some(dir) => crate::present::html::write_report_page(
             dir,
             &scene,
             &layers,
             &report,
             &heatmap_files,
             opts,
-        )?;
-    }
+        )?,
+        None => Vec::new(),
+    };
+    // every file written, the report itself included (written last)
+    report.outputs = out
+        .written()
+        .iter()
+        .chain(&exported_files)
+        .chain(&page_files)
+        .chain([&report_path])
+        .map(|p| p.display().to_string())
+        .collect();
+    let json = serde_json::to_vec_pretty(&report).expect("a report serializes");
+    out.write("scene-report.json", &json)?;
     Ok(report)
 }
 

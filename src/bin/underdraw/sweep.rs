@@ -62,7 +62,11 @@ pub(crate) fn sweep(args: &SweepArgs, print: Print, limits: ImageLimits) -> Resu
     let mip = base.filter.mip_levels;
     let shipped = match (&texture, &texture_path) {
         (Some(t), Some(p)) => t.levels_for(mip).map_err(|why| {
-            FileError::new(p, why, "lower --mip-levels to the levels the texture holds")
+            FileError::new(
+                p,
+                why.to_string(),
+                "lower --mip-levels to the levels the texture holds",
+            )
         })?,
         _ => &[][..],
     };
