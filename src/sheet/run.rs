@@ -42,8 +42,13 @@ pub struct SheetRequest {
     pub regions: RegionSource,
     /// The output folder.
     pub out: PathBuf,
-    /// A settings file, its patterns matched against `<stem>/<name>`.
+    /// A settings file, its patterns matched against
+    /// `<match_prefix><stem>/<name>`.
     pub settings_file: Option<PathBuf>,
+    /// What comes before `<stem>/<name>` when the settings file's patterns
+    /// are matched: the sheet's folder relative to the batch's input folder
+    /// with a trailing `/` (empty for a sheet given directly).
+    pub match_prefix: String,
     /// The settings before the file.
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
@@ -176,7 +181,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
     for r in &regions {
         let mut s = req.base;
         if let Some(f) = &settings_file {
-            f.apply(&format!("{stem}/{}", r.name), &mut s);
+            f.apply(&format!("{}{stem}/{}", req.match_prefix, r.name), &mut s);
         }
         req.overrides.apply(&mut s);
         s.validate().map_err(|e| {

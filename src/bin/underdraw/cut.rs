@@ -214,14 +214,16 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         },
         texture: args.texture.clone(),
     };
-    let plan = match batch::plan(&request) {
+    let mut plan = match batch::plan(&request) {
         Ok(p) => p,
         Err(e) => {
             error(&e);
             return ExitCode::from(2);
         }
     };
-    if plan.jobs.is_empty() {
+    // PNGs with a `<stem>.regions.json` beside them are cut as sheets
+    let sheets = underdraw::sheet::batch::take_sheets(&mut plan, &request, false, limits);
+    if plan.jobs.is_empty() && sheets.is_empty() {
         // nothing to cut: a typo in a path or a pattern must not pass silently
         for e in &plan.empty {
             error(e);
@@ -241,8 +243,17 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
     } else {
         indicatif::ProgressBar::hidden()
     };
-    let report = batch::run(&plan, &options, &|_| progress.inc(1));
+    let report = if plan.jobs.is_empty() {
+        Ok(batch::BatchReport {
+            layers: Vec::new(),
+            notes: Vec::new(),
+            manifest_error: None,
+        })
+    } else {
+        batch::run(&plan, &options, &|_| progress.inc(1))
+    };
     progress.finish_and_clear();
+    let (sheet_reports, sheets_failed) = crate::sheet::run_found(&sheets);
     let report = match report {
         Ok(r) => r,
         Err(e) => {
@@ -252,6 +263,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
     };
     if print.json {
         let mut objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
+        objects.extend(crate::sheet::found_json(&sheet_reports));
         objects.extend(plan.empty.iter().map(|e| {
             serde_json::json!({
                 "layer": e.path.display().to_string(),
@@ -268,7 +280,8 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         for n in &report.notes {
             println!("note: {n}");
         }
-        print_table(&report.layers);
+        let (region_rows, regions_cut, region_vertices) = crate::sheet::region_rows(&sheet_reports);
+        print_table(&report.layers, region_rows);
         let count = |s| report.count(s);
         let vertices: usize = report
             .layers
@@ -276,14 +289,24 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
             .filter_map(|l| l.result.as_ref())
             .map(|r| r.vertices)
             .sum();
+        let regions = if sheet_reports.is_empty() {
+            String::new()
+        } else {
+            format!(
+                "; {regions_cut} regions of {} sheet(s) cut ({} failed), {region_vertices} vertices",
+                sheet_reports.len(),
+                sheet_reports.iter().map(|r| r.failed()).sum::<usize>()
+            )
+        };
         println!(
-            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices",
+            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices{regions}",
             report.layers.len(),
             count(Status::Cut),
             count(Status::Unchanged),
             count(Status::Failed),
         );
     }
+    crate::sheet::print_region_errors(&sheet_reports);
     let failed: Vec<&LayerReport> = report
         .layers
         .iter()
@@ -303,7 +326,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         }
     }
     if failed.is_empty() {
-        return if report.manifest_error.is_some() || !plan.empty.is_empty() {
+        return if report.manifest_error.is_some() || !plan.empty.is_empty() || sheets_failed > 0 {
             ExitCode::from(2)
         } else {
             ExitCode::SUCCESS
@@ -318,7 +341,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
     ExitCode::from(2)
 }
 
-fn print_table(layers: &[LayerReport]) {
+fn print_table(layers: &[LayerReport], regions: Vec<table::CutRow>) {
     let shown: Vec<&LayerReport> = layers.iter().filter(|l| l.result.is_some()).collect();
     let cwd = std::env::current_dir().unwrap_or_default();
     let paths: Vec<PathBuf> = shown.iter().map(|l| l.input.clone()).collect();
@@ -342,6 +365,7 @@ fn print_table(layers: &[LayerReport]) {
                 notes: r.notes.clone(),
             }
         })
+        .chain(regions)
         .collect();
     print!("{}", table::cut_table(&rows));
 }

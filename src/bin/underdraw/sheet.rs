@@ -59,6 +59,7 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             },
             out: args.out.to_path_buf(),
             settings_file: args.settings.map(Path::to_path_buf),
+            match_prefix: String::new(),
             base: args.base,
             overrides: args.overrides,
             outputs: args.outputs,
@@ -116,6 +117,56 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
 }
 
 fn print_table(reports: &[SheetReport]) {
+    let (rows, count, vertices) = region_rows(reports);
+    print!("{}", table::cut_table(&rows));
+    let failed: usize = reports.iter().map(|r| r.failed()).sum();
+    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+}
+
+/// The sheets a `cut` batch found (PNGs with a `<stem>.regions.json`
+/// beside them), each run: the reports, and how many sheets and regions
+/// failed (a sheet's own error is printed here).
+pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, usize) {
+    let mut reports = Vec::new();
+    let mut failed = 0;
+    for req in requests {
+        match run_sheet(req) {
+            Ok(r) => {
+                failed += r.failed();
+                reports.push(r);
+            }
+            Err(e) => {
+                error(&e);
+                failed += 1;
+            }
+        }
+    }
+    (reports, failed)
+}
+
+/// The `--json` objects of the regions of sheets a batch found.
+pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<serde_json::Value> {
+    reports.iter().flat_map(json_lines).collect()
+}
+
+/// Errors of the regions that failed, printed.
+pub(crate) fn print_region_errors(reports: &[SheetReport]) {
+    for r in reports {
+        for g in &r.regions {
+            if let Err(e) = &g.cut {
+                error(format!(
+                    "{}: region {:?}: {e}",
+                    r.sheet.display(),
+                    g.region.name
+                ));
+            }
+        }
+    }
+}
+
+/// One table row per region cut (`<stem>/<name>`), the regions cut and
+/// their vertices.
+pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, usize, usize) {
     let mut rows = Vec::new();
     let mut vertices = 0;
     let mut count = 0;
@@ -140,9 +191,7 @@ fn print_table(reports: &[SheetReport]) {
             });
         }
     }
-    print!("{}", table::cut_table(&rows));
-    let failed: usize = reports.iter().map(|r| r.failed()).sum();
-    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+    (rows, count, vertices)
 }
 
 fn json_lines(r: &SheetReport) -> Vec<serde_json::Value> {
