@@ -163,8 +163,28 @@ fn push_rect(r: [u32; 4], positions: &mut Vec<f32>, indices: &mut Vec<u32>) {
 /// is ignored). The mesh's stats hold the regions' areas; its `budget` is
 /// `None`.
 pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> ExactLayer {
-    let (safe, safe_area) = safe_opaque(map, settings);
-    let (cover, cover_area) = must_cover(map, settings);
+    let (safe, _) = safe_opaque(map, settings);
+    let (cover, _) = must_cover(map, settings);
+    exact_runs(safe, cover, [map.width, map.height], source, settings)
+}
+
+/// The exact meshes of the regions `safe` and `cover` (half-texel cells of
+/// a layer of `size` texels), as [`exact_layer`]: two triangles a
+/// rectangle, four vertices a rectangle.
+pub fn exact_runs(
+    safe: RowRuns,
+    cover: RowRuns,
+    size: [u32; 2],
+    source: &str,
+    settings: &CutSettings,
+) -> ExactLayer {
+    let cells = |r: &RowRuns| -> f64 {
+        (0..r.height)
+            .flat_map(|y| r.row(y).iter().map(|s| (s[1] - s[0]) as f64))
+            .sum::<f64>()
+            / 4.0
+    };
+    let (safe_area, cover_area) = (cells(&safe), cells(&cover));
     let rest = difference(&cover, &safe);
     let mut positions = Vec::new();
     let (mut opaque, mut blended) = (Vec::new(), Vec::new());
@@ -174,7 +194,7 @@ pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> Exac
     for r in rectangles(&rest) {
         push_rect(r, &mut positions, &mut blended);
     }
-    let (w, h) = (map.width as f32, map.height as f32);
+    let (w, h) = (size[0] as f32, size[1] as f32);
     let uvs = positions
         .chunks_exact(2)
         .flat_map(|p| [p[0] / w, p[1] / h])
@@ -183,7 +203,7 @@ pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> Exac
         format: FORMAT.to_string(),
         version: VERSION,
         source: source.to_string(),
-        size: [map.width, map.height],
+        size,
         filter: settings.filter,
         alpha: settings.alpha,
         wrap: settings.wrap,
@@ -227,6 +247,9 @@ pub fn exact_layers(layers: &[Layer]) -> Result<Vec<ExactLayer>, FileError> {
                 wrap: l.mesh.wrap,
             });
             let source = super::prepare::source_name(&l.spec.image);
+            if let Some(e) = super::region::exact_region(l)? {
+                return Ok(e);
+            }
             match &l.alpha {
                 Some(map) => Ok(exact_layer(map, &source, &settings)),
                 None => {
