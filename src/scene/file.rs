@@ -11,6 +11,11 @@
 //!     "parallax": 0.1, "fill_width": true}]}
 //! ```
 //!
+//! A layer may be a region of a sprite sheet: `"region": NAME` (its
+//! regions file `"regions": FILE`, default `<image stem>.regions.json`
+//! beside the image), and a nine-slice region `"size": [w, h]`, the size it
+//! is drawn stretched to ([`MeshSource::Region`], see [`super::region`]).
+//!
 //! A texel (tx, ty) of a layer lands on screen at
 //! `(position.x + scale * tx - camera_x * parallax, position.y + scale * ty)`.
 //!
