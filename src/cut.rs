@@ -303,7 +303,7 @@ fn finish(
     if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || s.excess_share() > 0.01) {
         notes.push(format!(
             "stopped at {} of {} vertices: no further vertex the fitter tried gains area \
-             (an island or hole given up whole is not rebuilt)",
+             (a hole given up whole is not rebuilt, nor an island whose largest rectangle does not fit)",
             s.vertices, settings.budget
         ));
     }

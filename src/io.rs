@@ -25,7 +25,7 @@ pub use folder::{backup_path, staged_path, NamedBytes, OutputFolder};
 pub use texture::{decode_texture, is_texture, load_texture, Texture, TextureFormat};
 
 use crate::alpha::AlphaMap;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::mesh::LayerMesh;
 use image::{DynamicImage, ImageFormat, ImageReader, Limits, RgbaImage};
 use std::fs;
@@ -254,7 +254,10 @@ fn decode_png(
         } else {
             (
                 format!("over the limit of {} texels in all", limits.max_pixels),
-                "split the layer into smaller tiles, or raise the limit with --max-texels".into(),
+                format!(
+                    "split the layer into smaller tiles, or raise the limit with {}",
+                    Setting::MaxTexels
+                ),
             )
         };
         return Err(FileError::new(
@@ -276,7 +279,10 @@ fn decode_png(
         image::ImageError::Limits(_) => FileError::new(
             path,
             format!("is {w} x {h} texels, too large to decode within the limits"),
-            "split the layer into smaller tiles, or raise the limit with --max-texels",
+            format!(
+                "split the layer into smaller tiles, or raise the limit with {}",
+                Setting::MaxTexels
+            ),
         ),
         other => match chunks::diagnose(bytes) {
             Some(why) => FileError::new(

@@ -52,16 +52,18 @@
 //!   out ([`io::OutputFolder`]: atomic writes, inputs never overwritten, every file recorded).
 //! - [`error`]: errors that name the file, what is wrong and what to do.
 //! - [`export`]: a layer mesh → glTF 2.0 (`.gltf` + `.bin`, or `.glb`) as named bytes.
-//! - [`present`]: the report web page, PNG encoding and text in pictures.
+//! - [`present`]: each command's result as a value (`--json`) and its text table, the report web
+//!   page, PNG encoding and text in pictures.
 //! - [`heatmap`]: per-pixel counts → a colour heatmap with a legend.
 //! - [`preview`]: a layer and its cut → the preview picture.
 //! - [`plot`]: a layer's budget sweep → the plot SVG.
-//! - [`table`]: the `cut` command's text table.
 //!
 //! **Runners**
 //! - [`batch`]: files and folders cut into one output folder, with a settings file, a manifest and
 //!   reruns that skip unchanged layers.
 //! - [`sweep`]: one layer cut at a range of budgets, and the knee of the curve.
+//! - [`sheet`]: a sprite sheet's regions (a regions file, or found from the alpha) cut one by one
+//!   on the whole sheet's regions, animation frames and nine-slice panels.
 //!
 //! ```
 //! use underdraw::{alpha::AlphaMap, check::check_mesh, cut::cut_layer, settings::CutSettings};
@@ -101,7 +103,6 @@ pub mod scene;
 pub mod settings;
 pub mod sheet;
 pub mod sweep;
-pub mod table;
 pub mod triangulate;
 pub mod vertex_order;
 

@@ -109,15 +109,27 @@ impl MeshStats {
 }
 
 /// How a vertex is stored for the GPU: a position and a texture coordinate.
+/// With the `cli` feature, also the command line's value enum.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[cfg_attr(feature = "cli", derive(clap::ValueEnum))]
 #[serde(rename_all = "lowercase")]
 pub enum VertexFormat {
     /// 32-bit floats: position x, y and texture coordinate u, v (16 bytes).
     #[default]
+    #[cfg_attr(
+        feature = "cli",
+        value(help = "32-bit floats: position and texture coordinate, 16 bytes a vertex")
+    )]
     F32,
     /// Unsigned 16-bit integers: position in half-texel units, texture
     /// coordinate normalized (8 bytes). Exact: every position lies on a
     /// multiple of half a texel.
+    #[cfg_attr(
+        feature = "cli",
+        value(
+            help = "16-bit: positions in half texels, texture coordinates normalized, 8 bytes a vertex (glTF's KHR_mesh_quantization; layers up to 32767 texels a side)"
+        )
+    )]
     U16,
 }
 

@@ -324,7 +324,7 @@ pub fn sweep_svg(title: &str, points: &[SweepPoint], marks: Marks) -> String {
     let _ = writeln!(
         s,
         r#"<text class="title" x="{LEFT}" y="24" font-size="14" font-weight="bold">{}</text>"#,
-        xml_escape(&crate::table::shorten_middle(title, fit))
+        xml_escape(&crate::present::tables::shorten_middle(title, fit))
     );
     // grid and ticks
     let _ = writeln!(s, r#"<g class="x-ticks" text-anchor="middle">"#);

@@ -2,18 +2,43 @@
 //! sampled with, the alpha thresholds and the addressing mode.
 //!
 //! Invariants (enforced by [`CutSettings::validate`]): `budget >= 4`,
-//! `visible_min <= opaque_min`, `mip_levels <= 15`.
+//! `visible_min <= opaque_min`, `mip_levels <= 15`. Each rule is written
+//! once ([`SettingsError::budget`], [`SettingsError::alpha`],
+//! [`SettingsError::mip_levels`]) and applied both to whole
+//! settings and to [`PartialSettings`] (the keys a settings file, a scene
+//! file or the command line gave), so every source refuses the same values
+//! with the same typed [`SettingsError`]. Its messages name the setting by
+//! its key (`budget`, `mip_levels`, `visible_min`, `opaque_min`, as in the
+//! files); the command line adds its flag names itself.
+//!
+//! Where to add a setting: a field here (in [`CutSettings`] and
+//! [`PartialSettings`], with [`PartialSettings::apply`]), its rule in
+//! [`SettingsError`], then its flag in the binary's `CutOptions`.
 
 use serde::{Deserialize, Serialize};
 
 /// How the layer's texture is filtered when drawn.
+///
+/// With the `cli` feature (on by default) it is also the command line's
+/// value enum; `value(help)` is the one line `--help` shows per value.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
+#[cfg_attr(feature = "cli", derive(clap::ValueEnum))]
 #[serde(rename_all = "lowercase")]
 pub enum FilterMode {
     /// Nearest-texel sampling (GL_NEAREST / GL_NEAREST_MIPMAP_NEAREST).
+    #[cfg_attr(
+        feature = "cli",
+        value(help = "The opaque mesh stays inside opaque texels")
+    )]
     Nearest,
     /// Bilinear sampling (GL_LINEAR / GL_LINEAR_MIPMAP_*), the default.
     #[default]
+    #[cfg_attr(
+        feature = "cli",
+        value(
+            help = "The opaque mesh also stays half a texel (2^(l-1) at mip level l) from any texel that is not opaque"
+        )
+    )]
     Bilinear,
 }
 
@@ -54,17 +79,27 @@ impl Default for AlphaThresholds {
 }
 
 /// Texture addressing: which axes repeat (tiling strips); the others clamp to edge.
+///
+/// With the `cli` feature it is also the command line's value enum.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, Default, Hash)]
+#[cfg_attr(feature = "cli", derive(clap::ValueEnum))]
 #[serde(rename_all = "lowercase")]
 pub enum Wrap {
     /// No axis repeats: both clamp to the edge texel (the default).
     #[default]
+    #[cfg_attr(feature = "cli", value(help = "Both axes clamp to the edge texel"))]
     None,
     /// The texture repeats horizontally (x); y clamps.
+    #[cfg_attr(
+        feature = "cli",
+        value(help = "The texture repeats horizontally (a strip tiled side by side)")
+    )]
     X,
     /// The texture repeats vertically (y); x clamps.
+    #[cfg_attr(feature = "cli", value(help = "The texture repeats vertically"))]
     Y,
     /// The texture repeats on both axes.
+    #[cfg_attr(feature = "cli", value(help = "The texture repeats on both axes"))]
     Xy,
 }
 
@@ -114,26 +149,167 @@ impl Default for CutSettings {
 }
 
 impl CutSettings {
-    /// Checks the settings; the error says what to change.
-    pub fn validate(&self) -> Result<(), String> {
-        if self.budget < 4 {
-            return Err(format!(
-                "the vertex budget {} is too small: a mesh needs at least 4 vertices (use --budget 4 or more)",
-                self.budget
-            ));
-        }
-        if self.alpha.visible_min > self.alpha.opaque_min {
-            return Err(format!(
-                "visible-min {} is above opaque-min {}: an opaque texel must also be visible (lower --visible-min or raise --opaque-min)",
-                self.alpha.visible_min, self.alpha.opaque_min
-            ));
-        }
-        if self.filter.mip_levels > 15 {
-            return Err(format!(
-                "{} mip levels is more than any texture has (at most 15)",
-                self.filter.mip_levels
-            ));
+    /// Checks the settings: the first rule broken, as a typed error that
+    /// names the setting.
+    pub fn validate(&self) -> Result<(), SettingsError> {
+        SettingsError::budget(self.budget)?;
+        SettingsError::alpha(self.alpha.visible_min, self.alpha.opaque_min)?;
+        SettingsError::mip_levels(self.filter.mip_levels)
+    }
+
+    /// These settings with every key given in `partial` set.
+    pub fn with(mut self, partial: &PartialSettings) -> CutSettings {
+        partial.apply(&mut self);
+        self
+    }
+}
+
+/// A cut setting out of its range: the one validation of every source
+/// (settings file, scene file, command line). The message names the setting
+/// by its key and says what is wrong; each front end adds how to change it
+/// (a flag, a file key).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum SettingsError {
+    /// `budget` below 4.
+    #[error("budget {0}: a mesh needs at least 4 vertices")]
+    Budget(usize),
+    /// `visible_min` above `opaque_min`.
+    #[error("visible_min {visible_min} is above opaque_min {opaque_min}: an opaque texel must also be visible")]
+    Alpha {
+        /// The visible threshold given.
+        visible_min: u8,
+        /// The opaque threshold given.
+        opaque_min: u8,
+    },
+    /// `mip_levels` above 15.
+    #[error("mip_levels {0} is more than any texture has (at most 15)")]
+    MipLevels(u32),
+}
+
+impl SettingsError {
+    /// The smallest budget a mesh can have.
+    pub const MIN_BUDGET: usize = 4;
+    /// The highest mip level any texture has (a 32768-texel side).
+    pub const MAX_MIP_LEVELS: u32 = 15;
+
+    /// The budget rule: at least [`Self::MIN_BUDGET`] vertices.
+    pub fn budget(budget: usize) -> Result<(), SettingsError> {
+        if budget < Self::MIN_BUDGET {
+            return Err(SettingsError::Budget(budget));
         }
         Ok(())
+    }
+
+    /// The alpha rule: an opaque texel must also be visible.
+    pub fn alpha(visible_min: u8, opaque_min: u8) -> Result<(), SettingsError> {
+        if visible_min > opaque_min {
+            return Err(SettingsError::Alpha {
+                visible_min,
+                opaque_min,
+            });
+        }
+        Ok(())
+    }
+
+    /// The mip rule: at most [`Self::MAX_MIP_LEVELS`].
+    pub fn mip_levels(mip_levels: u32) -> Result<(), SettingsError> {
+        if mip_levels > Self::MAX_MIP_LEVELS {
+            return Err(SettingsError::MipLevels(mip_levels));
+        }
+        Ok(())
+    }
+}
+
+/// Some cut settings, each optional: the keys a block of the settings file,
+/// a scene layer's `"cut"` or the command line gave. Merged over whole
+/// settings by [`PartialSettings::apply`] (the one merge), checked by
+/// [`PartialSettings::validate`] (the rules of [`CutSettings::validate`] on
+/// the keys given). The keys are the files' names; unknown keys are refused.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PartialSettings {
+    /// Most vertices per layer (at least 4).
+    pub budget: Option<usize>,
+    /// The texture filter.
+    pub filter: Option<FilterMode>,
+    /// Highest mip level sampled (at most 15).
+    pub mip_levels: Option<u32>,
+    /// The repeating axes.
+    pub wrap: Option<Wrap>,
+    /// Alpha from which a texel is opaque.
+    pub opaque_min: Option<u8>,
+    /// Alpha from which a texel is visible.
+    pub visible_min: Option<u8>,
+}
+
+impl PartialSettings {
+    /// Sets in `s` every value given here.
+    pub fn apply(&self, s: &mut CutSettings) {
+        if let Some(b) = self.budget {
+            s.budget = b;
+        }
+        if let Some(f) = self.filter {
+            s.filter.mode = f;
+        }
+        if let Some(m) = self.mip_levels {
+            s.filter.mip_levels = m;
+        }
+        if let Some(w) = self.wrap {
+            s.wrap = w;
+        }
+        if let Some(a) = self.opaque_min {
+            s.alpha.opaque_min = a;
+        }
+        if let Some(a) = self.visible_min {
+            s.alpha.visible_min = a;
+        }
+    }
+
+    /// The rules of [`CutSettings::validate`] on the keys given (the alpha
+    /// rule when both thresholds are given).
+    pub fn validate(&self) -> Result<(), SettingsError> {
+        if let Some(b) = self.budget {
+            SettingsError::budget(b)?;
+        }
+        if let Some(m) = self.mip_levels {
+            SettingsError::mip_levels(m)?;
+        }
+        if let (Some(v), Some(o)) = (self.visible_min, self.opaque_min) {
+            SettingsError::alpha(v, o)?;
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn errors_name_the_setting_not_a_flag() {
+        let small = CutSettings {
+            budget: 3,
+            ..CutSettings::default()
+        };
+        let e = small.validate().unwrap_err();
+        assert_eq!(e, SettingsError::Budget(3));
+        assert_eq!(e.to_string(), "budget 3: a mesh needs at least 4 vertices");
+        let partial = PartialSettings {
+            visible_min: Some(200),
+            opaque_min: Some(100),
+            ..PartialSettings::default()
+        };
+        let e = CutSettings::default()
+            .with(&partial)
+            .validate()
+            .unwrap_err();
+        assert_eq!(partial.validate(), Err(e));
+        assert!(!e.to_string().contains("--"), "{e}");
+        // one key alone is checked against the rules it can break by itself
+        let mip = PartialSettings {
+            mip_levels: Some(16),
+            ..PartialSettings::default()
+        };
+        assert_eq!(mip.validate(), Err(SettingsError::MipLevels(16)));
     }
 }

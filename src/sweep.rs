@@ -123,42 +123,6 @@ pub fn to_csv(points: &[SweepPoint]) -> String {
     s
 }
 
-/// The sweep as a table, with the knee marked.
-pub fn to_table(points: &[SweepPoint], knee: Option<usize>) -> String {
-    let top = points
-        .iter()
-        .max_by_key(|p| p.budget)
-        .map_or(0.0, |p| p.saving);
-    let mut s = format!(
-        "{:>6} {:>8} {:>12} {:>12} {:>12} {:>7}\n",
-        "budget", "vertices", "opaque tx", "covering tx", "saving tx", "of max"
-    );
-    for p in points {
-        s += &format!(
-            "{:>6} {:>8} {:>12.0} {:>12.0} {:>12.0} {:>6.1}%{}\n",
-            p.budget,
-            p.vertices,
-            p.opaque_area,
-            p.covered_area,
-            p.saving,
-            if top > 0.0 {
-                100.0 * p.saving / top
-            } else {
-                100.0
-            },
-            if Some(p.budget) == knee {
-                "  <- knee"
-            } else {
-                ""
-            }
-        );
-        for n in &p.notes {
-            s += &format!("  note: {n}\n");
-        }
-    }
-    s
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;

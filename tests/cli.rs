@@ -218,6 +218,33 @@ fn budget_below_four_is_a_usage_error() {
 }
 
 #[test]
+fn a_settings_error_names_the_setting_and_the_flags_to_change() {
+    // the library's SettingsError names the setting; the command adds the
+    // flags (the alpha rule is the one clap's ranges cannot catch)
+    let dir = TempDir::new("alpha-rule");
+    let out = dir.path("out");
+    let r = run(&[
+        p("cut"),
+        &demo("ui-button.png"),
+        p("--out"),
+        &out,
+        p("--visible-min"),
+        p("200"),
+        p("--opaque-min"),
+        p("100"),
+    ]);
+    assert_status(&r, 2, "--visible-min above --opaque-min");
+    let err = text(&r.stderr);
+    assert!(
+        err.contains("visible_min 200 is above opaque_min 100")
+            && err.contains("hint: lower --visible-min or raise --opaque-min"),
+        "{err}"
+    );
+    assert_eq!(err.matches("error:").count(), 1, "printed once: {err}");
+    assert!(!out.exists(), "nothing is written on a usage error");
+}
+
+#[test]
 fn batch_goes_on_past_bad_files_and_names_them() {
     let dir = TempDir::new("batch");
     let out = dir.path("out");

@@ -301,3 +301,29 @@ fn compare(strict: bool) {
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
+
+/// Budget left unused: a UI frame (an opaque border around a transparent
+/// centre) at budget 8 with `bilinear` keeps only its covering box after
+/// the greedy edits; its opaque island, dropped whole, must come back (as
+/// its largest rectangle) when the insertions leave room for it, so the
+/// cut does not stop more than 2 vertices under its budget while it has
+/// opaque area to gain. (Before the rebuild: 4 vertices, capture 0.)
+#[test]
+fn a_dropped_island_comes_back_when_the_budget_has_room() {
+    let layer = sets::sprites()
+        .into_iter()
+        .find(|l| l.name == "frame-panel")
+        .expect("the frame-panel layer");
+    let settings = CutSettings {
+        budget: 8,
+        ..CutSettings::default()
+    };
+    let out = cut_layer(&layer.map, &layer.name, &settings);
+    let s = &out.mesh.stats;
+    assert!(
+        out.mesh.vertex_count() + 2 >= 8,
+        "{} vertices",
+        out.mesh.vertex_count()
+    );
+    assert!(s.opaque_capture() > 0.0, "capture {}", s.opaque_capture());
+}

@@ -478,7 +478,8 @@ fn a_layer_over_the_limit_is_refused_from_its_header() {
 
 /// A scene layer may be a shipped texture (KTX 2.0 specification: an
 /// uncompressed RGBA8 level, VK_FORMAT_R8G8B8A8_UNORM): it is read through
-/// the same gate as a PNG, cut from its level 0 and scored like one.
+/// the same gate as a PNG, cut from its level 0 and scored like one (mip
+/// chains: tests/scene_texture.rs).
 #[test]
 fn a_ktx2_layer_is_cut_and_scored() {
     let dir = TempDir::new("ktx2");
@@ -515,7 +516,7 @@ fn a_ktx2_layer_is_cut_and_scored() {
         Some(4),
         "{report}"
     );
-    // asking for mip levels the scene does not analyze for a texture is refused
+    // asking for mip levels the file does not hold is refused
     let mipped = r#"    {"name": "t", "image": "t.ktx2", "cut": {"mip_levels": 2}}"#;
     fs::write(&scene, scene_text(CAMERA, mipped)).unwrap();
     let o = Command::new(BIN)
@@ -528,7 +529,8 @@ fn a_ktx2_layer_is_cut_and_scored() {
     assert_eq!(o.status.code(), Some(2));
     let err = String::from_utf8_lossy(&o.stderr);
     assert!(
-        err.contains("t.ktx2") && err.contains("mip levels"),
+        err.contains("t.ktx2") && err.contains("layer t") && err.contains("mip levels"),
         "{err}"
     );
+    assert!(err.contains("mip_levels"), "{err}");
 }

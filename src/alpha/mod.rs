@@ -139,32 +139,59 @@ impl<'a> Sampled<'a> {
 
     /// Checks that the shipped levels can be analyzed with the source: level
     /// 0 the source's size, every level's size dividing level 0's.
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), SampledError> {
         let Some(first) = self.shipped.first() else {
             return match self.source {
                 Some(_) => Ok(()),
-                None => Err("neither a source nor a shipped level was given".into()),
+                None => Err(SampledError::Nothing),
             };
         };
         let (w, h) = (first.width, first.height);
         if let Some(s) = self.source {
             if (s.width, s.height) != (w, h) {
-                return Err(format!(
-                    "the texture is {w} x {h} texels but the layer is {} x {}",
-                    s.width, s.height
-                ));
+                return Err(SampledError::Size {
+                    texture: [w, h],
+                    layer: [s.width, s.height],
+                });
             }
         }
         for (l, m) in self.shipped.iter().enumerate() {
             if m.width == 0 || m.height == 0 || w % m.width != 0 || h % m.height != 0 {
-                return Err(format!(
-                    "mip level {l} is {} x {} texels, which does not divide level 0's {w} x {h}",
-                    m.width, m.height
-                ));
+                return Err(SampledError::Level {
+                    level: l,
+                    size: [m.width, m.height],
+                    base: [w, h],
+                });
             }
         }
         Ok(())
     }
+}
+
+/// Why a layer and its shipped levels cannot be analyzed together.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum SampledError {
+    /// Neither was given.
+    #[error("neither a source nor a shipped level was given")]
+    Nothing,
+    /// Level 0 is not the layer's size.
+    #[error("the texture is {} x {} texels but the layer is {} x {}", texture[0], texture[1], layer[0], layer[1])]
+    Size {
+        /// Level 0's size.
+        texture: [u32; 2],
+        /// The layer's size.
+        layer: [u32; 2],
+    },
+    /// A level's size does not divide level 0's.
+    #[error("mip level {level} is {} x {} texels, which does not divide level 0's {} x {}", size[0], size[1], base[0], base[1])]
+    Level {
+        /// The mip level.
+        level: usize,
+        /// Its size.
+        size: [u32; 2],
+        /// Level 0's size.
+        base: [u32; 2],
+    },
 }
 
 /// Areas of a layer's classes and regions, in texels.

@@ -12,7 +12,7 @@ use super::manifest::{sha256_hex, Entry, LayerResult, OutputFile};
 use super::{Job, Outputs};
 use crate::alpha::Sampled;
 use crate::cut::{cut_layer, cut_sampled};
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::export::gltf::{format_refusal, glb_file, gltf_files, malformed, relative_uri};
 use crate::io::{decode_layer, decode_rgba, decode_texture, is_texture, ImageLimits, OutputFolder};
 use std::path::{Path, PathBuf};
@@ -104,7 +104,10 @@ pub(crate) fn run_layer(
         FileError::new(
             &dir,
             format!("the output folder cannot be created ({e})"),
-            "check that --out is writable and no file stands where this folder should be",
+            format!(
+                "check that {} is writable and no file stands where this folder should be",
+                Setting::Out
+            ),
         )
     })?;
     let image_uri = if outputs.gltf || outputs.glb {
@@ -115,7 +118,10 @@ pub(crate) fn run_layer(
                     "has no path relative to the output folder {} for the glTF image URI",
                     dir.display()
                 ),
-                "put the --out folder on the same drive as the layers",
+                format!(
+                    "put the {} folder on the same drive as the layers",
+                    Setting::Out
+                ),
             )
         })?)
     } else {
@@ -165,7 +171,7 @@ pub(crate) fn run_layer(
         return Err(FileError::new(
             &job.input,
             "would be overwritten by its own output file",
-            "choose another --out folder",
+            format!("choose another {} folder", Setting::Out),
         ));
     }
     let name = job
@@ -179,14 +185,18 @@ pub(crate) fn run_layer(
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and previews are drawn from the PNG",
-                "cut the PNG with --texture pointing to this file to get a preview, or leave out --preview",
+                format!(
+                    "cut the PNG with {} pointing to this file to get a preview, or leave out {}",
+                    Setting::Texture,
+                    Setting::Preview
+                ),
             ));
         }
         if image_uri.is_some() {
             return Err(FileError::new(
                 &job.input,
                 "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
-                "cut the PNG with --texture pointing to this file to get a glTF asset, or use --format json",
+                format!("cut the PNG with {} pointing to this file to get a glTF asset, or use {}", Setting::Texture, Setting::Format.given("json")),
             ));
         }
         let t = decode_texture(&job.input, &bytes, limits)?;
@@ -212,7 +222,7 @@ pub(crate) fn run_layer(
                 FileError::new(
                     path,
                     why,
-                    "lower --mip-levels to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l",
+                    format!("lower {} to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l", Setting::MipLevels),
                 )
             })?;
             let sampled = Sampled {
@@ -222,16 +232,16 @@ pub(crate) fn run_layer(
             sampled.validate().map_err(|why| {
                 FileError::new(
                     path,
-                    why,
+                    why.to_string(),
                     "give the texture compressed from this layer, at its size",
                 )
             })?;
-            notes.push(format!("guarantee computed for {}", t.describe(mip)));
+            notes.push(t.guarantee_note(mip));
             if t.levels.len() as u32 > mip + 1 {
                 notes.push(format!(
-                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass --mip-levels {} if the GPU samples them all)",
+                    "the texture holds {} mip levels; the meshes are safe for levels 0 to {mip} only (pass {} if the GPU samples them all)",
                     t.levels.len(),
-                    t.levels.len() - 1
+                    Setting::MipLevels.given(t.levels.len() - 1)
                 ));
             }
             cut_sampled(sampled, &name, &job.settings)
@@ -261,7 +271,7 @@ pub(crate) fn run_layer(
                     "cannot be exported to glTF with {} vertices: {why}",
                     outputs.vertex_format.name()
                 ),
-                "export it with --vertex-format f32",
+                format!("export it with {}", Setting::VertexFormat.given("f32")),
             ));
         }
         // the glTF files beside the mesh file, in the key's subfolder
@@ -300,7 +310,7 @@ pub(crate) fn run_layer(
     OutputFolder::open(out, inputs)
         .with_refusal(
             "would be overwritten by its own output file",
-            "choose another --out folder",
+            &format!("choose another {} folder", Setting::Out),
         )
         .commit(&files)?;
     let s = &mesh.stats;

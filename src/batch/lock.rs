@@ -17,7 +17,7 @@
 //! removed notices (the path no longer names the file it locked) and tries
 //! again, so two runs never both hold the lock.
 
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use serde::{Deserialize, Serialize};
 use std::fs::{self, File};
 use std::io::{Read, Seek, Write};
@@ -173,7 +173,7 @@ impl OutputLock {
                                     format!(", still after waiting {} s", wait.as_secs_f64().round())
                                 }
                             ),
-                            "run again when it has finished (or give a longer --lock-wait), or cut into another --out folder",
+                            format!("run again when it has finished (or give a longer {}), or cut into another {} folder", Setting::LockWait, Setting::Out),
                         ));
                     }
                     drop(file);

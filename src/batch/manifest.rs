@@ -120,22 +120,33 @@ impl Manifest {
     /// Reads the manifest of `out`: `Ok(None)` when there is none; `Err`
     /// with a note when it cannot be used (every layer is then cut again and
     /// the file rewritten).
-    pub fn load(out: &Path) -> Result<Option<Manifest>, String> {
+    pub fn load(out: &Path) -> Result<Option<Manifest>, ManifestError> {
         let path = out.join(FILE_NAME);
         let bytes = match std::fs::read(&path) {
             Ok(b) => b,
             Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(None),
-            Err(e) => return Err(format!("{}: cannot be read ({e})", path.display())),
+            Err(e) => {
+                return Err(ManifestError::Unreadable {
+                    path,
+                    reason: e.to_string(),
+                })
+            }
         };
-        let m: Manifest = serde_json::from_slice(&bytes)
-            .map_err(|e| format!("{}: is not an underdraw manifest ({e})", path.display()))?;
+        let m: Manifest = match serde_json::from_slice(&bytes) {
+            Ok(m) => m,
+            Err(e) => {
+                return Err(ManifestError::NotAManifest {
+                    path,
+                    reason: e.to_string(),
+                })
+            }
+        };
         if m.format != FORMAT || m.version != VERSION {
-            return Err(format!(
-                "{}: is {} version {}, not {FORMAT} version {VERSION}",
-                path.display(),
-                m.format,
-                m.version
-            ));
+            return Err(ManifestError::OtherVersion {
+                path,
+                format: m.format,
+                version: m.version,
+            });
         }
         Ok(Some(m))
     }
@@ -157,6 +168,38 @@ impl Entry {
             .iter()
             .all(|o| std::fs::read(out.join(&o.path)).is_ok_and(|b| sha256_hex(&b) == o.sha256))
     }
+}
+
+/// Why a manifest cannot be used (every layer is then cut again and the
+/// file rewritten).
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+pub enum ManifestError {
+    /// The file exists but cannot be read.
+    #[error("{}: cannot be read ({reason})", path.display())]
+    Unreadable {
+        /// The manifest's path.
+        path: std::path::PathBuf,
+        /// The system's reason.
+        reason: String,
+    },
+    /// The file is not a manifest's JSON.
+    #[error("{}: is not an underdraw manifest ({reason})", path.display())]
+    NotAManifest {
+        /// The manifest's path.
+        path: std::path::PathBuf,
+        /// What the JSON parser found.
+        reason: String,
+    },
+    /// Another format or version.
+    #[error("{}: is {format} version {version}, not {FORMAT} version {VERSION}", path.display())]
+    OtherVersion {
+        /// The manifest's path.
+        path: std::path::PathBuf,
+        /// The format it names.
+        format: String,
+        /// The version it names.
+        version: u32,
+    },
 }
 
 #[cfg(test)]
@@ -191,7 +234,10 @@ mod tests {
             text.replace("\"version\": 1", "\"version\": 9"),
         )
         .unwrap();
-        assert!(Manifest::load(&d).unwrap_err().contains("version 9"));
+        assert!(Manifest::load(&d)
+            .unwrap_err()
+            .to_string()
+            .contains("version 9"));
         std::fs::remove_dir_all(&d).unwrap();
     }
 }

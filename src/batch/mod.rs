@@ -69,10 +69,10 @@ pub mod walk;
 pub use layer::catch_layer;
 pub use run::{prepare_out, run, BatchReport, LayerReport, RunOptions, Status};
 use serde::{Deserialize, Serialize};
-use settings_file::{SettingsFile, Values};
+use settings_file::SettingsFile;
 
-use crate::error::FileError;
-use crate::settings::CutSettings;
+use crate::error::{FileError, Setting};
+use crate::settings::{CutSettings, PartialSettings};
 use std::collections::HashMap;
 use std::path::{Path, PathBuf};
 
@@ -114,7 +114,7 @@ pub struct Request {
     /// The built-in defaults.
     pub base: CutSettings,
     /// The settings given explicitly on the command line.
-    pub overrides: Values,
+    pub overrides: PartialSettings,
     /// What to write.
     pub outputs: Outputs,
     /// The shipped texture (KTX 2.0 or `.astc`) of the one layer given: the
@@ -215,9 +215,9 @@ fn empty_input(input: &Path, pngs: usize, req: &Request) -> FileError {
     } else {
         "is a folder"
     };
-    let patterns = |flag: &str, ps: &[String]| {
+    let patterns = |setting: Setting, ps: &[String]| {
         ps.iter()
-            .map(|p| format!("{flag} '{p}'"))
+            .map(|p| setting.given(format!("'{p}'")))
             .collect::<Vec<_>>()
             .join(" ")
     };
@@ -228,8 +228,8 @@ fn empty_input(input: &Path, pngs: usize, req: &Request) -> FileError {
             "check the path; give the folder that holds the PNG layers, or the PNG files themselves",
         )
     } else {
-        let mut tried = patterns("--include", &req.include);
-        let ex = patterns("--exclude", &req.exclude);
+        let mut tried = patterns(Setting::Include, &req.include);
+        let ex = patterns(Setting::Exclude, &req.exclude);
         if !ex.is_empty() {
             if !tried.is_empty() {
                 tried.push(' ');
@@ -239,7 +239,7 @@ fn empty_input(input: &Path, pngs: usize, req: &Request) -> FileError {
         FileError::new(
             input,
             format!("{what} with {pngs} PNG file(s), but the patterns took none of them ({tried})"),
-            "patterns match the path relative to this folder with `/`: `*` stays within a folder name, `**` crosses folders (`--include '**/sky*.png'`); check the patterns or leave them out",
+            format!("patterns match the path relative to this folder with `/`: `*` stays within a folder name, `**` crosses folders ({}); check the patterns or leave them out", Setting::Include.given("'**/sky*.png'")),
         )
     }
 }
@@ -253,22 +253,24 @@ fn canonical(p: &Path) -> Option<PathBuf> {
 /// bad, a folder cannot be read.
 pub fn plan(req: &Request) -> Result<Plan, FileError> {
     let out_canon = canonical(&req.out);
-    let compile = |ps: &[String], flag: &str| -> Result<Vec<globset::GlobMatcher>, FileError> {
+    let compile = |ps: &[String],
+                   setting: Setting|
+     -> Result<Vec<globset::GlobMatcher>, FileError> {
         ps.iter()
-            .map(|p| {
-                settings_file::pattern(p).map_err(|e| {
-                    FileError::new(
-                        Path::new(flag),
-                        e,
-                        "see `underdraw cut --help` for patterns",
-                    )
+                .map(|p| {
+                    settings_file::pattern(p).map_err(|e| {
+                        FileError::new(
+                            Path::new(&setting.to_string()),
+                            e.to_string(),
+                            "a pattern matches the path relative to the input folder with `/`: `*` stays within a folder name, `**` crosses folders (see the README, Batches)",
+                        )
+                    })
                 })
-            })
-            .collect()
+                .collect()
     };
     let filter = walk::Filter {
-        include: compile(&req.include, "--include")?,
-        exclude: compile(&req.exclude, "--exclude")?,
+        include: compile(&req.include, Setting::Include)?,
+        exclude: compile(&req.exclude, Setting::Exclude)?,
     };
     let given = req
         .settings_file
@@ -321,7 +323,7 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
             return Err(FileError::new(
                 &req.out,
                 "is an input folder: the outputs would be mixed with the layers",
-                "choose another --out folder (a folder inside the input is fine: the walk skips it)",
+                format!("choose another {} folder (a folder inside the input is fine: the walk skips it)", Setting::Out),
             ));
         }
         let own = input.join(settings_file::FILE_NAME);
@@ -356,7 +358,7 @@ pub fn plan(req: &Request) -> Result<Plan, FileError> {
                     "is one texture, but {} layers were given to cut against it",
                     jobs.len()
                 ),
-                "give --texture with exactly one PNG layer",
+                format!("give {} with exactly one PNG layer", Setting::Texture),
             ));
         }
         jobs[0].texture = Some(texture.clone());

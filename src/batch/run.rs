@@ -14,7 +14,7 @@ use super::layer::{self, catch_layer};
 use super::lock::OutputLock;
 use super::manifest::{LayerResult, Manifest};
 use super::{Job, Plan};
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::io::ImageLimits;
 use serde::Serialize;
 use std::path::{Path, PathBuf};
@@ -86,7 +86,10 @@ pub fn prepare_out(out: &Path) -> Result<(), FileError> {
         FileError::new(
             out,
             what,
-            "choose a writable --out folder, or fix its permissions",
+            format!(
+                "choose a writable {} folder, or fix its permissions",
+                Setting::Out
+            ),
         )
     };
     std::fs::create_dir_all(out)
@@ -143,7 +146,10 @@ pub fn run(
                     "has the same name as {} and would overwrite its output files",
                     first.display()
                 ),
-                "rename one of them, or cut them into separate --out folders",
+                format!(
+                    "rename one of them, or cut them into separate {} folders",
+                    Setting::Out
+                ),
             )),
             None => catch_layer(&j.input, || {
                 layer::run_layer(
@@ -203,7 +209,7 @@ pub fn run(
         FileError::new(
             &plan.out,
             format!("the worker threads cannot start ({e})"),
-            "try a smaller --jobs",
+            format!("try a smaller {}", Setting::Jobs),
         )
     })?;
     let layers: Vec<LayerReport> = pool.install(|| plan.jobs.par_iter().map(one).collect());

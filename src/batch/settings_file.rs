@@ -13,13 +13,14 @@
 //! names. A pattern is matched against the layer's path relative to the
 //! input folder, with `/` separators; `*` does not cross a `/`, `**` does.
 //!
-//! Invariants: unknown keys are refused (naming the file); every value is
-//! checked as the command line checks it ([`Values::check`]); blocks apply
+//! Invariants: unknown keys are refused (naming the file); every block is a
+//! [`PartialSettings`], checked by the one validation of the settings
+//! ([`PartialSettings::validate`]); blocks apply
 //! in order (defaults, then every matching entry in file order), so a later
 //! match overrides an earlier one, key by key.
 
 use crate::error::FileError;
-use crate::settings::{CutSettings, FilterMode, Wrap};
+use crate::settings::{CutSettings, PartialSettings};
 use globset::{GlobBuilder, GlobMatcher};
 use serde::Deserialize;
 use std::path::{Path, PathBuf};
@@ -27,92 +28,14 @@ use std::path::{Path, PathBuf};
 /// The name of the settings file looked for at the root of an input folder.
 pub const FILE_NAME: &str = "underdraw.settings.json";
 
-/// Some cut settings, each optional: a block of the settings file, or the
-/// options given explicitly on the command line.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct Values {
-    /// Most vertices per layer (at least 4).
-    pub budget: Option<usize>,
-    /// The texture filter.
-    pub filter: Option<FilterMode>,
-    /// Highest mip level sampled (at most 15).
-    pub mip_levels: Option<u32>,
-    /// The repeating axes.
-    pub wrap: Option<Wrap>,
-    /// Alpha from which a texel is opaque.
-    pub opaque_min: Option<u8>,
-    /// Alpha from which a texel is visible.
-    pub visible_min: Option<u8>,
-}
-
-impl Values {
-    /// Sets in `s` every value given here.
-    pub fn apply(&self, s: &mut CutSettings) {
-        if let Some(b) = self.budget {
-            s.budget = b;
-        }
-        if let Some(f) = self.filter {
-            s.filter.mode = f;
-        }
-        if let Some(m) = self.mip_levels {
-            s.filter.mip_levels = m;
-        }
-        if let Some(w) = self.wrap {
-            s.wrap = w;
-        }
-        if let Some(a) = self.opaque_min {
-            s.alpha.opaque_min = a;
-        }
-        if let Some(a) = self.visible_min {
-            s.alpha.visible_min = a;
-        }
-    }
-
-    /// The range checks of the command line's options, on the values given.
-    pub fn check(&self) -> Result<(), String> {
-        if let Some(b) = self.budget.filter(|&b| b < 4) {
-            return Err(format!(
-                "budget {b} is too small: a mesh needs at least 4 vertices"
-            ));
-        }
-        if let Some(m) = self.mip_levels.filter(|&m| m > 15) {
-            return Err(format!(
-                "mip_levels {m} is more than any texture has (at most 15)"
-            ));
-        }
-        if let (Some(v), Some(o)) = (self.visible_min, self.opaque_min) {
-            if v > o {
-                return Err(format!(
-                    "visible_min {v} is above opaque_min {o}: an opaque texel must also be visible"
-                ));
-            }
-        }
-        Ok(())
-    }
-}
-
-/// An entry of `layers` as written in the file.
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct EntryForm {
-    #[serde(rename = "match")]
-    pattern: String,
-    budget: Option<usize>,
-    filter: Option<FilterMode>,
-    mip_levels: Option<u32>,
-    wrap: Option<Wrap>,
-    opaque_min: Option<u8>,
-    visible_min: Option<u8>,
-}
-
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct FileForm {
     #[serde(default)]
-    defaults: Values,
+    defaults: PartialSettings,
+    /// Each entry is `"match"` and the keys of a [`PartialSettings`].
     #[serde(default)]
-    layers: Vec<EntryForm>,
+    layers: Vec<serde_json::Map<String, serde_json::Value>>,
 }
 
 /// A parsed settings file.
@@ -121,9 +44,9 @@ pub struct SettingsFile {
     /// Where it was read from (named in errors and reports).
     pub path: PathBuf,
     /// The values for every layer.
-    pub defaults: Values,
+    pub defaults: PartialSettings,
     /// Per-pattern values, in file order.
-    pub layers: Vec<(String, GlobMatcher, Values)>,
+    pub layers: Vec<(String, GlobMatcher, PartialSettings)>,
 }
 
 const HINT: &str = "the settings file is {\"defaults\": {...}, \"layers\": [{\"match\": \"pattern\", ...}]} with the keys budget, filter, mip_levels, wrap, opaque_min, visible_min (see README, Batches)";
@@ -147,22 +70,27 @@ impl SettingsFile {
         let form: FileForm = serde_json::from_str(text)
             .map_err(|e| bad(format!("is not a valid settings file: {e}")))?;
         form.defaults
-            .check()
+            .validate()
             .map_err(|e| bad(format!("in \"defaults\": {e}")))?;
         let mut layers = Vec::new();
-        for (i, e) in form.layers.into_iter().enumerate() {
-            let values = Values {
-                budget: e.budget,
-                filter: e.filter,
-                mip_levels: e.mip_levels,
-                wrap: e.wrap,
-                opaque_min: e.opaque_min,
-                visible_min: e.visible_min,
+        for (i, mut entry) in form.layers.into_iter().enumerate() {
+            let pattern_text = match entry.remove("match") {
+                Some(serde_json::Value::String(p)) => p,
+                Some(other) => {
+                    return Err(bad(format!(
+                        "in layers[{i}]: \"match\" is {other}, not a pattern in quotes"
+                    )))
+                }
+                None => return Err(bad(format!("in layers[{i}]: missing field `match`"))),
             };
-            let which = format!("in layers[{i}] (\"match\": {:?})", e.pattern);
-            values.check().map_err(|m| bad(format!("{which}: {m}")))?;
-            let glob = pattern(&e.pattern).map_err(|m| bad(format!("{which}: {m}")))?;
-            layers.push((e.pattern, glob, values));
+            let which = format!("in layers[{i}] (\"match\": {pattern_text:?})");
+            let values = PartialSettings::deserialize(serde_json::Value::Object(entry))
+                .map_err(|e| bad(format!("{which}: {e}")))?;
+            values
+                .validate()
+                .map_err(|m| bad(format!("{which}: {m}")))?;
+            let glob = pattern(&pattern_text).map_err(|m| bad(format!("{which}: {m}")))?;
+            layers.push((pattern_text, glob, values));
         }
         Ok(SettingsFile {
             path: path.to_path_buf(),
@@ -183,19 +111,33 @@ impl SettingsFile {
     }
 }
 
+/// A pattern that is not a valid glob.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[error("the pattern {pattern:?} is not valid ({reason})")]
+pub struct PatternError {
+    /// The pattern as given.
+    pub pattern: String,
+    /// What the glob parser found wrong.
+    pub reason: String,
+}
+
 /// Compiles a pattern as the batch matches it: `*` and `?` stay within one
 /// path component, `**` crosses them.
-pub fn pattern(p: &str) -> Result<GlobMatcher, String> {
+pub fn pattern(p: &str) -> Result<GlobMatcher, PatternError> {
     GlobBuilder::new(p)
         .literal_separator(true)
         .build()
         .map(|g| g.compile_matcher())
-        .map_err(|e| format!("the pattern {p:?} is not valid ({e})"))
+        .map_err(|e| PatternError {
+            pattern: p.to_string(),
+            reason: e.to_string(),
+        })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::settings::{FilterMode, Wrap};
 
     fn parse(text: &str) -> Result<SettingsFile, FileError> {
         SettingsFile::parse(Path::new("in/underdraw.settings.json"), text)

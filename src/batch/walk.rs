@@ -8,7 +8,7 @@
 //! folder are not read back as layers; relative paths use `/` separators
 //! whatever the platform, as the patterns do.
 
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use globset::GlobMatcher;
 use std::path::{Path, PathBuf};
 
@@ -68,7 +68,10 @@ pub fn walk_counted(
             FileError::new(
                 &at,
                 format!("cannot be read while looking for layers ({e})"),
-                "check the folder's permissions, or leave it out with --exclude",
+                format!(
+                    "check the folder's permissions, or leave it out with {}",
+                    Setting::Exclude
+                ),
             )
         })?;
         let path = entry.path();

@@ -241,7 +241,7 @@ pub enum CheckError {
         why: String,
     },
     /// A region mesh's `region` does not fit the sheet (or is missing).
-    #[error("{why}\n  hint: check a region mesh against the sheet it was cut from (with --region NAME --regions FILE for a mesh without a \"region\" key), or cut the sheet again")]
+    #[error("{why}\n  hint: check a region mesh against the sheet it was cut from (with {} {} for a mesh without a \"region\" key), or cut the sheet again", crate::error::Setting::Region.given("NAME"), crate::error::Setting::Regions.given("FILE"))]
     BadRegion {
         /// What does not fit.
         why: String,

@@ -53,7 +53,7 @@
 //! buffer at all (a buffer must have byteLength >= 1): no `.bin` is written
 //! for it, and its `.glb` has no BIN chunk.
 
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::io::{NamedBytes, OutputFolder};
 use crate::mesh::{LayerMesh, VertexFormat, Winding};
 use crate::settings::FilterMode;
@@ -429,7 +429,10 @@ fn refuse_format(dest: &Path, why: String) -> FileError {
     FileError::new(
         dest,
         format!("cannot be written with 16-bit vertices: {why}"),
-        "write this layer with --vertex-format f32, or split it into smaller layers",
+        format!(
+            "write this layer with {}, or split it into smaller layers",
+            Setting::VertexFormat.given("f32")
+        ),
     )
 }
 
@@ -672,7 +675,7 @@ mod tests {
         let e = write_gltf_with(&mesh, "a.png", &dir, "a", VertexFormat::U16).unwrap_err();
         let text = e.to_string();
         assert!(
-            text.contains("a.gltf") && text.contains("--vertex-format f32"),
+            text.contains("a.gltf") && text.contains("`vertex_format` = f32"),
             "{text}"
         );
         assert!(!dir.join("a.gltf").exists());

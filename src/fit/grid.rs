@@ -11,6 +11,7 @@ pub const CELL: i64 = 32;
 /// its position(s), so a query can pass over entries that cannot meet it
 /// without reading the vertices (a vertex's position never changes: an
 /// edit that moves a corner makes a new vertex).
+#[derive(Clone)]
 pub struct BucketGrid {
     cols: i64,
     rows: i64,

@@ -417,6 +417,7 @@ impl Fitter<'_> {
             self.comps.push(Comp {
                 class: Class::Cover,
                 rect: None,
+                largest: None,
                 rings: Vec::new(),
                 area2: 0,
                 version: 0,

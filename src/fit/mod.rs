@@ -96,6 +96,7 @@ impl Fit {
     }
 }
 
+#[derive(Clone)]
 struct Vert {
     p: Point,
     prev: u32,
@@ -105,6 +106,7 @@ struct Vert {
     stamp: u32,
 }
 
+#[derive(Clone)]
 struct RingState {
     class: Class,
     hole: bool,
@@ -115,10 +117,14 @@ struct RingState {
     alive: bool,
 }
 
+#[derive(Clone)]
 struct Comp {
     class: Class,
     /// The largest rectangle inside the island (opaque), a stand-in.
     rect: Option<[i64; 4]>,
+    /// The same rectangle, kept after the rectangle edit used it: what an
+    /// island dropped whole comes back as.
+    largest: Option<[i64; 4]>,
     rings: Vec<u32>,
     area2: i64,
     version: u32,
@@ -169,6 +175,7 @@ impl Prepared {
 }
 
 /// The fitter's state; see the module docs.
+#[derive(Clone)]
 pub struct Fitter<'a> {
     verts: Vec<Vert>,
     rings: Vec<RingState>,
@@ -183,6 +190,10 @@ pub struct Fitter<'a> {
     budget: usize,
     cap_savings: bool,
     share_credit: bool,
+    /// Set while [`Fitter::fit_greedy_both`] waits for the first edit the
+    /// two rankings of large edits weigh differently.
+    watch_cap: bool,
+    cap_diverged: bool,
 }
 
 impl<'a> Fitter<'a> {
@@ -207,6 +218,8 @@ impl<'a> Fitter<'a> {
             budget: usize::MAX,
             cap_savings: true,
             share_credit: true,
+            watch_cap: false,
+            cap_diverged: false,
         };
         let rects = &opaque.rects;
         let (opaque, cover) = (opaque.rings.clone(), cover.rings.clone());
@@ -224,6 +237,7 @@ impl<'a> Fitter<'a> {
                     f.comps.push(Comp {
                         class,
                         rect,
+                        largest: rect,
                         rings: Vec::new(),
                         area2: 0,
                         version: 0,
@@ -333,9 +347,77 @@ impl<'a> Fitter<'a> {
     /// Runs the greedy edits until at most `budget` distinct vertices remain
     /// and no free improvement is left. Any `budget >= 4` is reached.
     pub fn fit(&mut self, budget: usize) {
+        self.fit_greedy(budget);
+        self.spend_rest(budget);
+    }
+
+    /// The greedy edits of [`Fitter::fit`] alone: at most `budget` distinct
+    /// vertices remain, and the budget they leave is not spent yet.
+    pub fn fit_greedy(&mut self, budget: usize) {
         assert!(budget >= 4, "a budget below 4 vertices cannot hold a quad");
         self.budget = budget;
         self.seed();
+        self.finish_greedy(budget);
+    }
+
+    /// [`Fitter::fit_greedy`] with both rankings of large edits (see
+    /// [`Fitter::set_cap_savings`]), sharing the edits they make alike:
+    /// the first ranking's fit, and the second's when it can differ (`None`
+    /// when every edit was weighed alike, so the two fits are the same).
+    /// The second ranking takes over from the state where the rankings
+    /// first weigh an edit differently, with its queue weighed anew.
+    /// Both fitters start from [`Fitter::new`]`(opaque, cover)` with
+    /// `share_credit` (see [`Fitter::set_share_credit`]).
+    pub fn fit_greedy_both(
+        opaque: &'a Prepared,
+        cover: &'a Prepared,
+        share_credit: bool,
+        budget: usize,
+    ) -> (Fitter<'a>, Option<Fitter<'a>>) {
+        assert!(budget >= 4, "a budget below 4 vertices cannot hold a quad");
+        let mut this = Fitter::new(opaque, cover);
+        this.share_credit = share_credit;
+        this.fit_greedy_pair(opaque, cover, budget)
+    }
+
+    fn fit_greedy_pair(
+        mut self,
+        opaque: &'a Prepared,
+        cover: &'a Prepared,
+        budget: usize,
+    ) -> (Fitter<'a>, Option<Fitter<'a>>) {
+        self.cap_savings = true;
+        self.budget = budget;
+        self.seed();
+        self.watch_cap = true;
+        self.cap_diverged = false;
+        self.run(budget);
+        self.watch_cap = false;
+        if self.cap_diverged {
+            let mut other = self.clone();
+            other.cap_savings = false;
+            other.seed();
+            other.finish_greedy(budget);
+            self.finish_greedy(budget);
+            return (self, Some(other));
+        }
+        if self.distinct <= budget {
+            // the first ranking's edits are done and none was weighed
+            // differently: the second ranking makes the same ones
+            self.finish_greedy(budget);
+            return (self, None);
+        }
+        // the fallbacks follow, where the rankings may differ: the second
+        // ranking starts afresh
+        let mut other = Fitter::new(opaque, cover);
+        other.share_credit = self.share_credit;
+        other.cap_savings = false;
+        other.fit_greedy(budget);
+        self.finish_greedy(budget);
+        (self, Some(other))
+    }
+
+    fn finish_greedy(&mut self, budget: usize) {
         self.run(budget);
         if self.distinct > budget {
             self.cover_with_bounding_box();
@@ -353,7 +435,19 @@ impl<'a> Fitter<'a> {
             }
         }
         self.heap.clear();
+    }
+
+    /// The second half of [`Fitter::fit`], after [`Fitter::fit_greedy`] at
+    /// the same budget: spends what is left of the budget and exchanges
+    /// vertices while that gains area.
+    pub fn spend_rest(&mut self, budget: usize) {
         self.refine(budget, 4 * budget);
+        // budget the insertions could not spend: opaque islands the greedy
+        // edits dropped whole come back as their largest rectangles while
+        // they fit, and the rest is spent again
+        if self.rebuild_dropped_islands(budget) {
+            self.refine(budget, 4 * budget);
+        }
         debug_assert!(self.distinct <= budget);
     }
 

@@ -15,6 +15,7 @@ pub(super) enum OpKind {
     MergeComp,
 }
 
+#[derive(Clone)]
 pub(super) struct Cand {
     pub(super) key: f64,
     pub(super) kind: OpKind,
@@ -87,6 +88,10 @@ impl Fitter<'_> {
             if saved <= 0.0 {
                 return;
             }
+            if self.watch_cap && saved > (self.distinct as i64 - self.budget as i64).max(1) as f64 {
+                // from here on the two rankings of large edits differ
+                self.cap_diverged = true;
+            }
             if self.cap_savings {
                 // vertices saved beyond what the budget needs are worth nothing
                 let need = (self.distinct as i64 - self.budget as i64).max(1) as f64;
@@ -142,7 +147,8 @@ impl Fitter<'_> {
     }
 
     pub(super) fn run(&mut self, budget: usize) {
-        while let Some(c) = self.heap.pop() {
+        while !(self.watch_cap && self.cap_diverged) {
+            let Some(c) = self.heap.pop() else { break };
             if c.key > 0.0 && self.distinct <= budget {
                 break;
             }

@@ -12,7 +12,15 @@
 //! keeps the triangle valid (doubling, then bisection: the triangles along
 //! one normal are nested), then moved on the lattice while the area grows
 //! and the triangle stays valid.
+//!
+//! When the insertions leave budget unused, opaque islands the greedy edits
+//! dropped whole come back as their largest rectangles (four vertices each,
+//! inside the safe region by construction) where they fit and touch no
+//! other opaque ring, and the rest is spent again. Holes given up whole are
+//! not rebuilt.
 
+use super::geom::segments_touch;
+use super::island_edits::rect_points;
 use super::*;
 use std::cmp::Reverse;
 
@@ -24,6 +32,12 @@ impl Fitter<'_> {
     /// then its gain in twice-area units (opaque area gained or covering
     /// area given up).
     fn insert_gain(&self, u: u32, p: Point) -> Option<i64> {
+        self.insert_gain_over(u, p, 0)
+    }
+
+    /// [`Self::insert_gain`] when it exceeds `floor` (>= 0); `None` also
+    /// when it does not, without the containment tests.
+    fn insert_gain_over(&self, u: u32, p: Point, floor: i64) -> Option<i64> {
         let vu = &self.verts[u as usize];
         let w = vu.next;
         let (pu, pw) = (vu.p, self.verts[w as usize].p);
@@ -32,7 +46,7 @@ impl Fitter<'_> {
         }
         let class = self.rings[vu.ring as usize].class;
         let gain = -Self::sign(class) * orient(pu, p, pw);
-        if gain <= 0 {
+        if gain <= floor {
             return None;
         }
         let tri = [pu, p, pw];
@@ -126,11 +140,10 @@ impl Fitter<'_> {
                     let mut moved = false;
                     for dir in [[step, 0], [-step, 0], [0, step], [0, -step]] {
                         let q = [p[0] + dir[0], p[1] + dir[1]];
-                        if let Some(gq) = self.insert_gain(u, q) {
-                            if gq > g {
-                                (g, p) = (gq, q);
-                                moved = true;
-                            }
+                        // only a larger gain is worth the containment tests
+                        if let Some(gq) = self.insert_gain_over(u, q, g) {
+                            (g, p) = (gq, q);
+                            moved = true;
                         }
                     }
                     if !moved {
@@ -362,6 +375,56 @@ impl Fitter<'_> {
                 break;
             }
         }
+    }
+
+    /// Brings back opaque islands dropped whole, each as its largest
+    /// rectangle (inside the safe region by construction), largest first,
+    /// while the rectangle's new positions fit in the budget and it touches
+    /// no other opaque ring. Whether any came back.
+    pub(super) fn rebuild_dropped_islands(&mut self, budget: usize) -> bool {
+        let mut dropped: Vec<(i64, u32)> = (0..self.comps.len() as u32)
+            .filter_map(|c| {
+                let comp = &self.comps[c as usize];
+                let r = comp.largest?;
+                let area = (r[2] - r[0]) * (r[3] - r[1]);
+                (!comp.alive && comp.class == Class::Opaque && area > 0).then_some((area, c))
+            })
+            .collect();
+        // largest first; the island's index breaks ties
+        dropped.sort_unstable_by_key(|&(a, c)| (Reverse(a), c));
+        let mut any = false;
+        for (_, c) in dropped {
+            let r = self.comps[c as usize].largest.expect("a rectangle");
+            let added = rect_points(r)
+                .iter()
+                .filter(|&&p| self.refs_at(p) == 0)
+                .count();
+            if self.distinct + added > budget || !self.rect_is_clear_of_opaque(r) {
+                continue;
+            }
+            self.comps[c as usize].alive = true;
+            self.replace_comp(c, r);
+            any = true;
+        }
+        self.heap.clear();
+        any
+    }
+
+    /// Whether the closed rectangle `r` meets no alive opaque ring.
+    fn rect_is_clear_of_opaque(&self, r: [i64; 4]) -> bool {
+        let (lo, hi) = ([r[0], r[1]], [r[2], r[3]]);
+        let grid = &self.grids[Class::Opaque as usize];
+        let inside = |p: Point| p[0] >= r[0] && p[0] <= r[2] && p[1] >= r[1] && p[1] <= r[3];
+        let corners = rect_points(r);
+        grid.vertices_in(lo, hi, |v| {
+            !self.verts[v as usize].alive || !inside(self.verts[v as usize].p)
+        }) && grid.edges_in(lo, hi, |a, b| {
+            let (va, vb) = (&self.verts[a as usize], &self.verts[b as usize]);
+            if !va.alive || !vb.alive || va.next != b {
+                return true;
+            }
+            (0..4).all(|k| !segments_touch(corners[k], corners[(k + 1) % 4], va.p, vb.p))
+        })
     }
 
     fn insert_and_exchange(&mut self, budget: usize, rounds: usize) {

@@ -33,23 +33,57 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
         Prepared::from_runs(runs, true)
     });
     // Where the outlines coincide (hard edges), the greedy edits also run
-    // without counting a position given up by one class as half saved.
-    let mut variants: Vec<(&Prepared, bool, bool)> = vec![
-        (&plain, true, true),
-        (&plain, false, true),
-        (&plain, true, false),
-    ];
-    if let Some(o) = &opened {
-        variants.push((o, true, true));
-        variants.push((o, false, true));
+    // without counting a position given up by one class as half saved;
+    // where the two regions' exact outlines share no position, that ranking
+    // is the same as the default one, so the variant is left out.
+    let shared = shares_a_position(&plain, cover);
+    // Each fit with its own share credit runs both rankings of large
+    // edits, sharing the edits they make alike (`Fitter::fit_greedy_both`);
+    // the share-less one with the first ranking only. The order of the
+    // variants (which wins a tie) is: plain capped, plain uncapped, plain
+    // without share credit, opened capped, opened uncapped.
+    let mut runs: Vec<(&Prepared, bool)> = vec![(&plain, true)];
+    if shared {
+        runs.push((&plain, false));
     }
-    let results: Vec<(i64, Fit)> = variants
+    if let Some(o) = &opened {
+        runs.push((o, true));
+    }
+    let greedy: Vec<Fitter> = runs
         .par_iter()
-        .map(|&(safe, cap, credit)| {
-            let mut fitter = Fitter::new(safe, cover);
-            fitter.set_cap_savings(cap);
-            fitter.set_share_credit(credit);
-            fitter.fit(budget);
+        .map(|&(safe, credit)| {
+            if credit {
+                let (capped, uncapped) = Fitter::fit_greedy_both(safe, cover, true, budget);
+                std::iter::once(capped).chain(uncapped).collect::<Vec<_>>()
+            } else {
+                let mut fitter = Fitter::new(safe, cover);
+                fitter.set_share_credit(false);
+                fitter.fit_greedy(budget);
+                vec![fitter]
+            }
+        })
+        .collect::<Vec<_>>()
+        .into_iter()
+        .flatten()
+        .collect();
+    // Variants whose greedy edits ended in the same outlines would spend
+    // the rest of the budget alike: only the first of them goes on.
+    let mut seen: Vec<Fit> = Vec::new();
+    let distinct: Vec<Fitter> = greedy
+        .into_iter()
+        .filter(|f| {
+            let fit = f.result();
+            let new = !seen.contains(&fit);
+            if new {
+                seen.push(fit);
+            }
+            new
+        })
+        .collect();
+    let results: Vec<(i64, Fit)> = distinct
+        .into_par_iter()
+        .map(|mut fitter| {
+            fitter.spend_rest(budget);
             (fitter.objective(), fitter.result())
         })
         .collect();
@@ -60,4 +94,18 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
         .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
         .map(|(_, (_, fit))| fit)
         .expect("at least one variant")
+}
+
+/// Whether a vertex of the safe region's exact outline lies on the
+/// must-cover region's exact outline (hard edges, or an image edge both
+/// regions reach).
+fn shares_a_position(safe: &Prepared, cover: &Prepared) -> bool {
+    let on_cover: std::collections::HashSet<_> = cover
+        .rings
+        .iter()
+        .flat_map(|r| r.points.iter().copied())
+        .collect();
+    safe.rings
+        .iter()
+        .any(|r| r.points.iter().any(|p| on_cover.contains(p)))
 }

@@ -69,40 +69,55 @@ pub struct Draw {
     pub indices: Vec<u32>,
 }
 
+/// A draw [`render`] cannot take: the layer, and what is wrong in words.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[error("layer {layer}: {problem}")]
+pub struct DrawError {
+    /// The draw's layer.
+    pub layer: String,
+    /// What is wrong and what to give instead.
+    pub problem: String,
+}
+
 impl Draw {
     /// Checks what [`render`] requires of a draw: an even number of finite
     /// coordinates, whole triangles, every index naming a vertex, and a
     /// depth in [0, 1]. The message names the layer and says what is wrong.
-    pub fn validate(&self) -> Result<(), String> {
-        let layer = &self.layer;
+    pub fn validate(&self) -> Result<(), DrawError> {
+        let bad = |problem: String| {
+            Err(DrawError {
+                layer: self.layer.clone(),
+                problem,
+            })
+        };
         if !(0.0..=1.0).contains(&self.depth) {
-            return Err(format!(
-                "layer {layer}: depth {} is outside [0, 1]; give a depth from 0 (nearest) to 1 (farthest)",
+            return bad(format!(
+                "depth {} is outside [0, 1]; give a depth from 0 (nearest) to 1 (farthest)",
                 self.depth
             ));
         }
         if !self.positions.len().is_multiple_of(2) {
-            return Err(format!(
-                "layer {layer}: {} position coordinates is an odd number; positions are x, y pairs",
+            return bad(format!(
+                "{} position coordinates is an odd number; positions are x, y pairs",
                 self.positions.len()
             ));
         }
         if let Some(i) = self.positions.iter().position(|v| !v.is_finite()) {
-            return Err(format!(
-                "layer {layer}: position coordinate {i} is {}; positions must be finite",
+            return bad(format!(
+                "position coordinate {i} is {}; positions must be finite",
                 self.positions[i]
             ));
         }
         if !self.indices.len().is_multiple_of(3) {
-            return Err(format!(
-                "layer {layer}: {} indices is not a whole number of triangles (a multiple of 3)",
+            return bad(format!(
+                "{} indices is not a whole number of triangles (a multiple of 3)",
                 self.indices.len()
             ));
         }
         let n = self.positions.len() / 2;
         if let Some(&i) = self.indices.iter().find(|&&i| i as usize >= n) {
-            return Err(format!(
-                "layer {layer}: index {i} names no vertex; the draw has {n} vertices"
+            return bad(format!(
+                "index {i} names no vertex; the draw has {n} vertices"
             ));
         }
         Ok(())
@@ -331,12 +346,12 @@ mod tests {
         for (spoil, word) in bad {
             let mut d = square();
             spoil(&mut d);
-            let e = d.validate().unwrap_err();
+            let e = d.validate().unwrap_err().to_string();
             assert!(e.contains("sky") && e.contains(word), "{e}");
         }
         let mut d = square();
         d.indices[4] = 4;
-        let e = d.validate().unwrap_err();
+        let e = d.validate().unwrap_err().to_string();
         assert!(e.contains("index 4") && e.contains("4 vertices"), "{e}");
     }
 

@@ -10,7 +10,7 @@
 
 use super::{astc, ktx2, ImageLimits};
 use crate::alpha::AlphaMap;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use std::path::Path;
 
 /// What a texture file holds, for the report and the `cut` line.
@@ -83,6 +83,13 @@ impl Texture {
             self.levels.len()
         )
     }
+
+    /// The note a cut from this texture carries (the `cut` line, a scene
+    /// layer's notes): the format, block size and levels the guarantee was
+    /// computed for.
+    pub fn guarantee_note(&self, highest: u32) -> String {
+        format!("guarantee computed for {}", self.describe(highest))
+    }
 }
 
 /// Whether `bytes` start like a texture file this module reads (KTX 2.0 or
@@ -132,7 +139,7 @@ pub fn decode_texture(
             return Err(FileError::new(
                 path,
                 format!("is {w} x {h} texels by its header, over the limits; it was refused before decoding"),
-                "split the layer into smaller tiles, or raise the limit with --max-pixels",
+                format!("split the layer into smaller tiles, or raise the limit with {}", Setting::MaxTexels),
             ));
         }
     }

@@ -238,14 +238,14 @@ pub fn write_report_page(
     opts: &SceneOptions,
 ) -> Result<(), FileError> {
     use crate::plot::{sweep_svg, Marks};
-    use crate::sweep::{knee, sweep_layer, BUDGETS};
+    use crate::sweep::{knee, sweep_sampled, BUDGETS};
     /// The knee's fraction, as `underdraw sweep`'s default.
     const KNEE: f64 = 0.8;
     let mut out = crate::scene::run::scene_folder(
         scene,
         dir,
         "report folder",
-        "choose a writable --report folder",
+        crate::error::Setting::Report,
     )?;
     let mut shown = Vec::new();
     for ((file, bytes), info) in heatmap_files.iter().zip(&report.heatmaps) {
@@ -298,7 +298,9 @@ pub fn write_report_page(
             let source = crate::scene::prepare::source_name(&layer.spec.image);
             let points: &Vec<_> = sweeps
                 .entry((layer.spec.image.clone(), settings))
-                .or_insert_with(|| sweep_layer(alpha, &source, &settings, &BUDGETS));
+                .or_insert_with(|| {
+                    sweep_sampled(alpha.sampled(&settings), &source, &settings, &BUDGETS)
+                });
             knee_budget = knee(points, KNEE);
             let svg = sweep_svg(
                 &format!("{name}: saving against vertices"),
@@ -376,8 +378,26 @@ pub fn write_report_page(
                     .into(),
             );
         }
+        // a shipped texture: what the guarantee was computed for, as a row
+        // (the same wording as `cut`'s note, which is then not repeated)
+        let mut shown_note = None;
+        if let (Some(t), Some(settings)) = (
+            layer.alpha.as_ref().and_then(|a| a.texture()),
+            layer.cut_settings(),
+        ) {
+            let mip = settings.filter.mip_levels;
+            card.numbers
+                .push(("guarantee computed for".into(), t.describe(mip)));
+            shown_note = Some(t.guarantee_note(mip));
+        }
         card.warnings.extend(n.warnings(knee_budget));
-        card.warnings.extend(layer.notes.iter().cloned());
+        card.warnings.extend(
+            layer
+                .notes
+                .iter()
+                .filter(|n| Some(*n) != shown_note.as_ref())
+                .cloned(),
+        );
         cards.push(card);
     }
     let settings = vec![

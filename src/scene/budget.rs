@@ -35,7 +35,7 @@ use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
 use super::prepare::{cut_all, Layer};
 use super::score::mean_fragments;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::{render, Draw};
 use crate::mesh::LayerMesh;
 use crate::sweep::BUDGETS;
@@ -247,7 +247,7 @@ fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
         format!(
             "a vertex total of {total} cannot hold the scene's smallest meshes ({need} vertices)"
         ),
-        format!("give --vertex-total {need} or more"),
+        format!("give {} or more", Setting::VertexTotal.given(need)),
     )
 }
 
@@ -420,6 +420,7 @@ mod tests {
     use crate::alpha::AlphaMap;
     use crate::cut::cut_layer;
     use crate::scene::file::LayerSpec;
+    use crate::scene::prepare::LayerAlpha;
     use crate::settings::CutSettings;
     use std::sync::Arc;
 
@@ -457,7 +458,7 @@ mod tests {
                 fill_width,
             },
             mesh,
-            alpha: Some(Arc::new(m)),
+            alpha: Some(Arc::new(LayerAlpha::Png(m))),
             notes: Vec::new(),
         }
     }
@@ -506,7 +507,7 @@ mod tests {
                         budget,
                         ..Default::default()
                     };
-                    cut_layer(layers[i].alpha.as_ref().unwrap(), "x", &s).mesh
+                    cut_layer(layers[i].alpha.as_ref().unwrap().level0(), "x", &s).mesh
                 })
                 .collect();
             let exact: Vec<f64> = cuts

@@ -23,9 +23,9 @@
 //! leaving only the quads the regions' own edges cut.
 
 use super::prepare::Layer;
-use crate::alpha::{must_cover, safe_opaque, AlphaMap};
+use crate::alpha::{must_cover_sampled, safe_opaque_sampled, AlphaMap, Sampled};
 use crate::error::FileError;
-use crate::io::{read_layer_file, ImageLimits};
+use crate::io::{read_layer_file, ImageLimits, LayerFile};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::settings::CutSettings;
@@ -163,28 +163,35 @@ fn push_rect(r: [u32; 4], positions: &mut Vec<f32>, indices: &mut Vec<u32>) {
 /// is ignored). The mesh's stats hold the regions' areas; its `budget` is
 /// `None`.
 pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> ExactLayer {
-    let (safe, _) = safe_opaque(map, settings);
-    let (cover, _) = must_cover(map, settings);
-    exact_runs(safe, cover, [map.width, map.height], source, settings)
+    exact_layer_sampled(Sampled::source(map), source, settings)
+}
+
+/// [`exact_layer`] on what the GPU samples ([`Sampled`]): a shipped
+/// texture's decoded levels, the regions those of [`crate::cut`]'s stage 1.
+pub fn exact_layer_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> ExactLayer {
+    let map = sampled.level0();
+    let size = [map.width, map.height];
+    let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
+    let (cover, cover_area) = must_cover_sampled(sampled, settings);
+    exact_runs(
+        (safe, safe_area),
+        (cover, cover_area),
+        size,
+        source,
+        settings,
+    )
 }
 
 /// The exact meshes of the regions `safe` and `cover` (half-texel cells of
-/// a layer of `size` texels), as [`exact_layer`]: two triangles a
-/// rectangle, four vertices a rectangle.
+/// a layer of `size` texels, each with its area in texels), as
+/// [`exact_layer`]: two triangles a rectangle, four vertices a rectangle.
 pub fn exact_runs(
-    safe: RowRuns,
-    cover: RowRuns,
+    (safe, safe_area): (RowRuns, f64),
+    (cover, cover_area): (RowRuns, f64),
     size: [u32; 2],
     source: &str,
     settings: &CutSettings,
 ) -> ExactLayer {
-    let cells = |r: &RowRuns| -> f64 {
-        (0..r.height)
-            .flat_map(|y| r.row(y).iter().map(|s| (s[1] - s[0]) as f64))
-            .sum::<f64>()
-            / 4.0
-    };
-    let (safe_area, cover_area) = (cells(&safe), cells(&cover));
     let rest = difference(&cover, &safe);
     let mut positions = Vec::new();
     let (mut opaque, mut blended) = (Vec::new(), Vec::new());
@@ -251,11 +258,30 @@ pub fn exact_layers(layers: &[Layer]) -> Result<Vec<ExactLayer>, FileError> {
                 return Ok(e);
             }
             match &l.alpha {
-                Some(map) => Ok(exact_layer(map, &source, &settings)),
-                None => {
-                    let map = read_layer_file(&l.spec.image, &ImageLimits::default())?;
-                    Ok(exact_layer(&map.into_layer().alpha, &source, &settings))
-                }
+                Some(alpha) => Ok(exact_layer_sampled(
+                    alpha.sampled(&settings),
+                    &source,
+                    &settings,
+                )),
+                None => match read_layer_file(&l.spec.image, &ImageLimits::default())? {
+                    // a mesh file over a shipped texture: the texture's
+                    // levels when it holds those the mesh was cut for
+                    LayerFile::Texture(t) => match t.levels_for(settings.filter.mip_levels) {
+                        Ok(levels) => {
+                            let sampled = Sampled {
+                                source: None,
+                                shipped: levels,
+                            };
+                            Ok(exact_layer_sampled(sampled, &source, &settings))
+                        }
+                        Err(_) => Ok(exact_layer(
+                            &LayerFile::Texture(t).into_layer().alpha,
+                            &source,
+                            &settings,
+                        )),
+                    },
+                    file => Ok(exact_layer(&file.into_layer().alpha, &source, &settings)),
+                },
             }
         })
         .collect()

@@ -30,7 +30,7 @@ use super::draws::layer_depth;
 use super::draws::Strategy; // named in the docs
 use super::file::Scene;
 use super::prepare::Layer;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::export::gltf::{gltf_files, relative_uri};
 use crate::io::NamedBytes;
 use crate::mesh::LayerMesh;
@@ -276,7 +276,10 @@ pub fn export_scene_with(
                     "has no path relative to the export folder {}",
                     dir.display()
                 ),
-                "put the --export folder on the same drive as the layers",
+                format!(
+                    "put the {} folder on the same drive as the layers",
+                    Setting::Export
+                ),
             )
         })?;
         let mesh_file = format!("{name}.mesh.json");
@@ -329,7 +332,10 @@ pub fn load_draw_list(path: &Path) -> Result<DrawList, FileError> {
         FileError::new(
             path,
             format!("is not a draw list: {e}"),
-            "give a draw-list.json written by `underdraw scene --export`",
+            format!(
+                "give a draw-list.json written by the scene command's {}",
+                Setting::Export
+            ),
         )
     })?;
     if list.format != DRAW_LIST_FORMAT || list.version != DRAW_LIST_VERSION {

@@ -31,7 +31,7 @@
 //! layer has either cut settings or a mesh file, not both.
 
 use crate::error::FileError;
-use crate::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+use crate::settings::{CutSettings, PartialSettings, SettingsError};
 use serde::Deserialize;
 use std::collections::HashSet;
 use std::io::Read;
@@ -69,7 +69,7 @@ struct LayerJson {
     name: String,
     image: PathBuf,
     #[serde(default)]
-    cut: Option<CutJson>,
+    cut: Option<PartialSettings>,
     #[serde(default)]
     mesh: Option<PathBuf>,
     #[serde(default)]
@@ -98,31 +98,18 @@ fn one() -> f64 {
     1.0
 }
 
-#[derive(Deserialize, Default)]
-#[serde(deny_unknown_fields)]
-struct CutJson {
-    budget: Option<usize>,
-    filter: Option<FilterMode>,
-    mip_levels: Option<u32>,
-    wrap: Option<Wrap>,
-    opaque_min: Option<u8>,
-    visible_min: Option<u8>,
-}
-
-impl CutJson {
-    fn settings(&self) -> CutSettings {
-        let d = CutSettings::default();
-        CutSettings {
-            budget: self.budget.unwrap_or(d.budget),
-            filter: Filter {
-                mode: self.filter.unwrap_or(d.filter.mode),
-                mip_levels: self.mip_levels.unwrap_or(d.filter.mip_levels),
-            },
-            alpha: AlphaThresholds {
-                opaque_min: self.opaque_min.unwrap_or(d.alpha.opaque_min),
-                visible_min: self.visible_min.unwrap_or(d.alpha.visible_min),
-            },
-            wrap: self.wrap.unwrap_or(d.wrap),
+/// What a scene-file author changes for a settings error: the key in the
+/// layer's `"cut"` block (never a command-line flag).
+fn cut_hint(e: SettingsError) -> String {
+    match e {
+        SettingsError::Budget(_) => {
+            "give the layer's \"cut\" a \"budget\" of 4 or more".to_string()
+        }
+        SettingsError::Alpha { .. } => {
+            "lower \"visible_min\" or raise \"opaque_min\" in the layer's \"cut\"".to_string()
+        }
+        SettingsError::MipLevels(_) => {
+            "give the layer's \"cut\" a \"mip_levels\" of 15 or less".to_string()
         }
     }
 }
@@ -383,9 +370,9 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                     "give \"regions\": FILE, or put <image stem>.regions.json beside the image (`underdraw cut IMAGE --find-regions` writes one)",
                 );
             }
-            let settings = l.cut.unwrap_or_default().settings();
+            let settings = CutSettings::default().with(&l.cut.unwrap_or_default());
             if let Err(e) = settings.validate() {
-                return bad(format!("{at}.cut: {e}"), "fix the layer's \"cut\" settings");
+                return bad(format!("{at}.cut: {e}"), &cut_hint(e));
             }
             if l.size.is_some_and(|[w, h]| {
                 w == 0 || h == 0 || w > MAX_VIEWPORT * 4 || h > MAX_VIEWPORT * 4
@@ -438,12 +425,9 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                 MeshSource::File(m)
             }
             (cut, None) => {
-                let settings = cut.unwrap_or_default().settings();
+                let settings = CutSettings::default().with(&cut.unwrap_or_default());
                 if let Err(e) = settings.validate() {
-                    return bad(
-                        format!("{at}.cut: {e}"),
-                        "fix the layer's \"cut\" settings",
-                    );
+                    return bad(format!("{at}.cut: {e}"), &cut_hint(e));
                 }
                 MeshSource::Cut(settings)
             }
@@ -512,6 +496,7 @@ fn json_error(path: &Path, e: &serde_json::Error) -> FileError {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::settings::{FilterMode, Wrap};
 
     fn scene_with(layers: &str) -> String {
         format!(
@@ -534,6 +519,36 @@ mod tests {
         assert_eq!(l.mesh, MeshSource::Cut(CutSettings::default()));
         // 4 samples evenly spaced over [0, 30], both ends included
         assert_eq!(s.camera_positions(), vec![0.0, 10.0, 20.0, 30.0]);
+    }
+
+    #[test]
+    fn a_bad_cut_setting_names_the_scene_key_not_a_flag() {
+        for (cut, says, hint) in [
+            (
+                r#"{"budget": 3}"#,
+                "budget 3: a mesh needs at least 4 vertices",
+                "\"budget\" of 4 or more",
+            ),
+            (
+                r#"{"mip_levels": 16}"#,
+                "mip_levels 16",
+                "\"mip_levels\" of 15 or less",
+            ),
+            (
+                r#"{"opaque_min": 10, "visible_min": 20}"#,
+                "visible_min 20 is above opaque_min 10",
+                "lower \"visible_min\"",
+            ),
+        ] {
+            let layer = format!(r#"{{"name": "a", "image": "sky.png", "cut": {cut}}}"#);
+            let e = parse_scene(&here(), &scene_with(&layer)).unwrap_err();
+            assert!(e.problem.contains(says), "{cut}: {e}");
+            assert!(e.hint.contains(hint), "{cut}: {e}");
+            assert!(
+                !e.to_string().contains("--"),
+                "a scene author typed no flag: {e}"
+            );
+        }
     }
 
     #[test]

@@ -5,12 +5,17 @@
 //! positions are finite, whole triangles, and its `size` is the image's.
 //! An image used by several layers is decoded once, and a cut shared by
 //! several layers (same image, same settings) is made once.
+//!
+//! A layer whose image is a shipped texture (KTX 2.0, `.astc`) is cut on
+//! the decoded texels of the levels its settings name (levels 0 to
+//! `mip_levels` of the file, [`Texture::levels_for`]); a layer asking for
+//! levels the file does not hold is refused, naming the layer and the file.
 
 use super::file::{LayerSpec, MeshSource, Scene};
-use crate::alpha::AlphaMap;
-use crate::cut::cut_layer;
+use crate::alpha::{AlphaMap, Sampled};
+use crate::cut::cut_sampled;
 use crate::error::FileError;
-use crate::io::{image_size, load_mesh, read_layer_file, ImageLimits, LayerFile};
+use crate::io::{image_size, load_mesh, read_layer_file, ImageLimits, LayerFile, Texture};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use rayon::prelude::*;
@@ -25,9 +30,9 @@ pub struct Layer {
     pub spec: LayerSpec,
     /// The layer's mesh: cut on the fly, or read from its mesh file.
     pub mesh: LayerMesh,
-    /// The alpha map of a layer cut on the fly (to cut it again at other
+    /// What a layer cut on the fly is cut from (to cut it again at other
     /// budgets); `None` for a layer read from a mesh file.
-    pub alpha: Option<Arc<AlphaMap>>,
+    pub alpha: Option<Arc<LayerAlpha>>,
     /// The cut's remarks.
     pub notes: Vec<String>,
 }
@@ -43,6 +48,58 @@ impl Layer {
     }
 }
 
+/// What a layer is cut from: a PNG's alpha, or a shipped texture's decoded
+/// levels.
+///
+/// Invariant: a texture holds at least one level, and every layer cut from
+/// it through [`prepare_layers`] asks for levels the texture holds whole
+/// ([`Texture::levels_for`]).
+#[derive(Clone, Debug)]
+pub enum LayerAlpha {
+    /// A PNG's alpha: the regions come from it and, for mip levels, from the
+    /// levels built from it by block averaging.
+    Png(AlphaMap),
+    /// A shipped texture: the regions come from its decoded levels 0 to the
+    /// settings' `mip_levels`.
+    Texture(Texture),
+}
+
+impl LayerAlpha {
+    /// Level 0's alpha (the layer's size and texel classes).
+    pub fn level0(&self) -> &AlphaMap {
+        match self {
+            LayerAlpha::Png(map) => map,
+            LayerAlpha::Texture(t) => &t.levels[0],
+        }
+    }
+
+    /// The shipped texture, if the layer's image is one.
+    pub fn texture(&self) -> Option<&Texture> {
+        match self {
+            LayerAlpha::Png(_) => None,
+            LayerAlpha::Texture(t) => Some(t),
+        }
+    }
+
+    /// What the GPU samples under `settings`: the PNG's alpha, or the
+    /// texture's decoded levels 0 to `settings.filter.mip_levels`.
+    ///
+    /// Panics when the texture cannot give those levels
+    /// ([`Texture::levels_for`]); [`prepare_layers`] refuses such a layer
+    /// before anything is cut.
+    pub fn sampled(&self, settings: &CutSettings) -> Sampled<'_> {
+        match self {
+            LayerAlpha::Png(map) => Sampled::source(map),
+            LayerAlpha::Texture(t) => Sampled {
+                source: None,
+                shipped: t
+                    .levels_for(settings.filter.mip_levels)
+                    .expect("the layer's levels were checked when the scene was read"),
+            },
+        }
+    }
+}
+
 /// The image's file name, recorded as the mesh's `source`.
 pub fn source_name(image: &Path) -> String {
     image
@@ -53,17 +110,18 @@ pub fn source_name(image: &Path) -> String {
 
 /// Decodes the images of the layers cut on the fly, each once, in parallel,
 /// with the default [`ImageLimits`].
-pub fn decode_images(scene: &Scene) -> Result<HashMap<PathBuf, Arc<AlphaMap>>, FileError> {
+pub fn decode_images(scene: &Scene) -> Result<HashMap<PathBuf, Arc<LayerAlpha>>, FileError> {
     decode_images_with(scene, &ImageLimits::default())
         .map(|m| m.into_iter().map(|(p, (a, _))| (p, a)).collect())
 }
 
 /// Decodes the images of the layers cut on the fly, each once, in parallel,
-/// within `limits`; each with the warnings about its file.
+/// within `limits`; each with the warnings about its file. A shipped
+/// texture must hold the levels each layer cut from it asks for.
 pub fn decode_images_with(
     scene: &Scene,
     limits: &ImageLimits,
-) -> Result<HashMap<PathBuf, (Arc<AlphaMap>, Vec<String>)>, FileError> {
+) -> Result<HashMap<PathBuf, (Arc<LayerAlpha>, Vec<String>)>, FileError> {
     let mut paths: Vec<&PathBuf> = scene
         .layers
         .iter()
@@ -75,31 +133,37 @@ pub fn decode_images_with(
     let maps: Vec<Result<_, FileError>> = paths
         .par_iter()
         .map(|p| {
-            let file = read_layer_file(p, limits)?;
-            if let LayerFile::Texture(_) = &file {
-                refuse_texture_mips(scene, p)?;
-            }
-            let l = file.into_layer();
-            Ok(((*p).clone(), (Arc::new(l.alpha), l.warnings)))
+            let alpha = match read_layer_file(p, limits)? {
+                LayerFile::Png(l) => (LayerAlpha::Png(l.alpha), l.warnings),
+                LayerFile::Texture(t) => {
+                    check_texture_levels(scene, p, &t)?;
+                    (LayerAlpha::Texture(t), Vec::new())
+                }
+            };
+            Ok(((*p).clone(), (Arc::new(alpha.0), alpha.1)))
         })
         .collect();
     maps.into_iter().collect()
 }
 
-/// A shipped texture (KTX 2.0, `.astc`) is cut from its level 0: the
-/// guarantee then holds for level 0, so a layer asking for mip levels
-/// (whose shipped levels the scene does not analyze yet) is refused.
-fn refuse_texture_mips(scene: &Scene, image: &Path) -> Result<(), FileError> {
+/// Each layer cut from the shipped texture at `image` asks for levels the
+/// texture holds whole ([`Texture::levels_for`]), or the scene is refused
+/// naming the layer and the file.
+fn check_texture_levels(scene: &Scene, image: &Path, texture: &Texture) -> Result<(), FileError> {
     for l in scene.layers.iter().filter(|l| l.image == image) {
         if let MeshSource::Cut(s) = l.mesh {
-            if s.filter.mip_levels > 0 {
+            if let Err(why) = texture.levels_for(s.filter.mip_levels) {
                 return Err(FileError::new(
                     image,
                     format!(
-                        "is a compressed texture, cut for layer {} from its level 0, but the layer asks for mip levels 0 to {}",
+                        "{why} (layer {} is cut with mip levels 0 to {})",
                         l.name, s.filter.mip_levels
                     ),
-                    "set the layer's mip_levels to 0, or give its PNG and cut the texture with `underdraw cut --texture`",
+                    format!(
+                        "set layer {}'s mip_levels to the levels the file holds (at most {}), or export the texture with a full mip chain of sizes W / 2^l",
+                        l.name,
+                        texture.levels.len() - 1
+                    ),
                 ));
             }
         }
@@ -107,17 +171,34 @@ fn refuse_texture_mips(scene: &Scene, image: &Path) -> Result<(), FileError> {
     Ok(())
 }
 
+/// The notes of a layer cut from a shipped texture: the format, block size
+/// and levels its guarantee was computed for (the same note `cut` prints,
+/// [`Texture::guarantee_note`]), and the levels the file holds beyond those.
+fn texture_notes(texture: &Texture, settings: &CutSettings) -> Vec<String> {
+    let mip = settings.filter.mip_levels;
+    let mut notes = vec![texture.guarantee_note(mip)];
+    let held = texture.levels.len() as u32;
+    if held > mip + 1 {
+        notes.push(format!(
+            "the texture holds {held} mip levels; the meshes are safe for levels 0 to {mip} only (set the layer's mip_levels to {} if the GPU samples them all)",
+            held - 1
+        ));
+    }
+    notes
+}
+
 /// Cuts each distinct (image, settings) pair once, in parallel.
 pub fn cut_all(
     jobs: &[(PathBuf, CutSettings)],
-    maps: &HashMap<PathBuf, Arc<AlphaMap>>,
+    maps: &HashMap<PathBuf, Arc<LayerAlpha>>,
 ) -> HashMap<(PathBuf, CutSettings), (LayerMesh, Vec<String>)> {
     let unique: HashSet<&(PathBuf, CutSettings)> = jobs.iter().collect();
     let unique: Vec<_> = unique.into_iter().collect();
     unique
         .par_iter()
         .map(|(path, settings)| {
-            let out = cut_layer(&maps[path], &source_name(path), settings);
+            let alpha = &maps[path];
+            let out = cut_sampled(alpha.sampled(settings), &source_name(path), settings);
             ((path.clone(), *settings), (out.mesh, out.notes))
         })
         .collect()
@@ -134,7 +215,7 @@ pub fn prepare_layers(scene: &Scene) -> Result<Vec<Layer>, FileError> {
 /// image file (an animated PNG, say) becomes a note of each layer using it.
 pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<Layer>, FileError> {
     let decoded = decode_images_with(scene, limits)?;
-    let maps: HashMap<PathBuf, Arc<AlphaMap>> = decoded
+    let maps: HashMap<PathBuf, Arc<LayerAlpha>> = decoded
         .iter()
         .map(|(p, (a, _))| (p.clone(), a.clone()))
         .collect();
@@ -154,6 +235,9 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
             MeshSource::Cut(s) => {
                 let (mesh, mut notes) = cuts[&(spec.image.clone(), *s)].clone();
                 notes.splice(0..0, decoded[&spec.image].1.iter().cloned());
+                if let Some(t) = maps[&spec.image].texture() {
+                    notes.splice(0..0, texture_notes(t, s));
+                }
                 Ok(Layer {
                     spec: spec.clone(),
                     mesh,
@@ -164,7 +248,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
             MeshSource::Region(r) => {
                 // cut the way it ships: from the sheet's texels, whole-sheet regions
                 let (mesh, mut notes) =
-                    super::region::cut_region_layer(&spec.image, &maps[&spec.image], r)?;
+                    super::region::cut_region_layer(&spec.image, maps[&spec.image].level0(), r)?;
                 notes.splice(0..0, decoded[&spec.image].1.iter().cloned());
                 Ok(Layer {
                     spec: spec.clone(),

@@ -161,9 +161,16 @@ pub fn exact_region(layer: &Layer) -> Result<Option<ExactLayer>, FileError> {
         clip(&analysis.safe, region.rect),
         clip(&analysis.cover, region.rect),
     );
+    let cells = |r: &crate::mask::RowRuns| -> f64 {
+        (0..r.height)
+            .flat_map(|y| r.row(y).iter().map(|s| (s[1] - s[0]) as f64))
+            .sum::<f64>()
+            / 4.0
+    };
+    let (safe_area, cover_area) = (cells(&safe), cells(&cover));
     let mut exact = exact_runs(
-        safe,
-        cover,
+        (safe, safe_area),
+        (cover, cover_area),
         [region.rect.w, region.rect.h],
         &source_name(image),
         &r.settings,

@@ -11,7 +11,7 @@ use super::report::{HeatmapInfo, SceneReport};
 use super::score::{
     render_frame, saving_share, score_exact_frames_with, score_frames_with, summarize,
 };
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::frame::Draw;
 use crate::heatmap::heatmap;
 use crate::io::OutputFolder;
@@ -92,12 +92,14 @@ pub(crate) fn scene_folder(
     scene: &Scene,
     dir: &Path,
     what: &str,
-    hint: &str,
+    setting: Setting,
 ) -> Result<OutputFolder, FileError> {
+    let writable = format!("choose a writable {setting} folder");
+    let another = format!("choose another {setting} folder");
     Ok(
-        OutputFolder::create(dir, scene.inputs(), what, hint)?.with_refusal(
+        OutputFolder::create(dir, scene.inputs(), what, &writable)?.with_refusal(
             "is one of the scene's inputs and would be overwritten",
-            "choose another --out folder",
+            &another,
         ),
     )
 }
@@ -127,7 +129,8 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             return Err(FileError::new(
                 &opts.scene,
                 format!(
-                    "--dump-frame {k} names no camera sample: the scene has {} (0 to {})",
+                    "{} names no camera sample: the scene has {} (0 to {})",
+                    Setting::DumpFrame.given(k),
                     scene.samples,
                     scene.samples - 1
                 ),
@@ -135,12 +138,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             ));
         }
     }
-    let mut out = scene_folder(
-        &scene,
-        &opts.out,
-        "output folder",
-        "choose a writable --out folder",
-    )?;
+    let mut out = scene_folder(&scene, &opts.out, "output folder", Setting::Out)?;
     let layers = prepare_layers_with(&scene, &opts.limits)?;
     let specs: Vec<_> = layers.iter().map(|l| l.spec.clone()).collect();
     let meshes: Vec<&LayerMesh> = layers.iter().map(|l| &l.mesh).collect();
@@ -255,12 +253,7 @@ pub fn run_scene(opts: &SceneOptions) -> Result<SceneReport, FileError> {
             Some(m) => m.iter().collect(),
             None => meshes.clone(),
         };
-        let mut to = scene_folder(
-            &scene,
-            dir,
-            "export folder",
-            "choose a writable --export folder",
-        )?;
+        let mut to = scene_folder(&scene, dir, "export folder", Setting::Export)?;
         let (_, files) =
             super::export::export_scene_with(dir, &scene, &layers, &exported, opts.vertex_format)?;
         to.write_all(&files)?;
@@ -328,7 +321,10 @@ pub fn load_frame_dump(path: &Path) -> Result<FrameDump, FileError> {
         FileError::new(
             path,
             format!("is not a frame dump: {e}"),
-            "give a frame-K.json written by `underdraw scene --dump-frame K`",
+            format!(
+                "give a frame-K.json written by the scene command's {}",
+                Setting::DumpFrame.given("K")
+            ),
         )
     })
 }

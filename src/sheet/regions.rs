@@ -15,7 +15,7 @@
 //! usable as file names; frames are of one size; slices leave a centre of
 //! at least one texel each way.
 
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use serde::{Deserialize, Serialize};
 use std::path::Path;
 
@@ -159,7 +159,10 @@ pub fn load_regions(path: &Path, sheet_size: (u32, u32)) -> Result<Vec<SheetRegi
         FileError::new(
             path,
             "is not UTF-8 text",
-            "give a JSON regions file (see `underdraw cut --help`, --regions)",
+            format!(
+                "give a JSON regions file (the format is in the README, section Sprite sheets; {})",
+                Setting::Regions
+            ),
         )
     })?;
     parse_regions(path, &text, sheet_size)
@@ -175,13 +178,16 @@ pub fn parse_regions(
     let file: RegionsFile = serde_json::from_str(text).map_err(|e| {
         bad(
             format!("is not a valid regions file: {e}"),
-            "write {\"format\": \"underdraw.regions\", \"version\": 1, \"regions\": [{\"name\": ..., \"rect\": [x, y, w, h]}, ...]}, or make one with --find-regions",
+            &format!("write {{\"format\": \"underdraw.regions\", \"version\": 1, \"regions\": [{{\"name\": ..., \"rect\": [x, y, w, h]}}, ...]}}, or make one with {}", Setting::FindRegions),
         )
     })?;
     if file.format != REGIONS_FORMAT {
         return Err(bad(
             format!("has format {:?}, not {REGIONS_FORMAT:?}", file.format),
-            "give a regions file written for underdraw (or made by --find-regions)",
+            &format!(
+                "give a regions file written for underdraw (or made by {})",
+                Setting::FindRegions
+            ),
         ));
     }
     if file.version != REGIONS_VERSION {
@@ -190,13 +196,16 @@ pub fn parse_regions(
                 "is regions file version {}, but this underdraw reads version {REGIONS_VERSION}",
                 file.version
             ),
-            "set \"version\": 1 and check the keys against `underdraw cut --help`",
+            "set \"version\": 1 and check the keys against the README's Sprite sheets section",
         ));
     }
     if file.regions.is_empty() {
         return Err(bad(
             "lists no region".into(),
-            "add {\"name\": ..., \"rect\": [x, y, w, h]} entries, or make them with --find-regions",
+            &format!(
+                "add {{\"name\": ..., \"rect\": [x, y, w, h]}} entries, or make them with {}",
+                Setting::FindRegions
+            ),
         ));
     }
     let mut out: Vec<SheetRegion> = Vec::with_capacity(file.regions.len());

@@ -10,13 +10,14 @@
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
 use super::{cut_region, RegionCut, SheetAnalysis};
-use crate::batch::settings_file::{SettingsFile, Values};
+use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
-use crate::error::FileError;
+use crate::error::{FileError, Setting};
 use crate::export::gltf::{glb_file, gltf_files, relative_uri};
 use crate::io::{load_layer, ImageLimits, NamedBytes, OutputFolder};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
+use crate::settings::PartialSettings;
 use rayon::prelude::*;
 use std::path::{Path, PathBuf};
 
@@ -52,7 +53,7 @@ pub struct SheetRequest {
     /// The settings before the file.
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
-    pub overrides: Values,
+    pub overrides: PartialSettings,
     /// What to write per region (`preview` is not written for regions).
     pub outputs: Outputs,
     /// Also cut and write each frame of an animation alone.
@@ -128,7 +129,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
     )?
     .with_refusal(
         "is an input of this run: a sheet's output would be written over it",
-        "give another --out folder",
+        &format!("give another {} folder", Setting::Out),
     );
     let mut regions_written = None;
     let regions: Vec<SheetRegion> = match &req.regions {
@@ -139,7 +140,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &req.sheet,
                     "has no visible texel: no region was found",
-                    "check the sheet (or --visible-min)",
+                    format!("check the sheet (or {})", Setting::VisibleMin),
                 ));
             }
             let names = region_names(&stem, found.len());
@@ -155,7 +156,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 return Err(FileError::new(
                     &dest,
                     "already exists with other regions (perhaps edited by hand): finding the regions again would replace it",
-                    "cut with --regions FILE to use it, or add --force to replace it with the regions found",
+                    format!("cut with {} to use it, or add {} to replace it with the regions found", Setting::Regions.given("FILE"), Setting::Force),
                 ));
             }
             out.write(&name, text.as_bytes())?;
@@ -217,7 +218,10 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 "regions {:?} and {:?} would both write {}.mesh.json",
                 w[0].1, w[1].1, w[0].0
             ),
-            "rename one of them (a frame k of an animation is written as <name>.<k> with --per-frame)",
+            format!(
+                "rename one of them (a frame k of an animation is written as <name>.<k> with {})",
+                Setting::PerFrame
+            ),
         ));
     }
     // refused before anything of a region is written

@@ -1,11 +1,13 @@
 //! `underdraw check`: re-verify a mesh file against its layer, and/or
 //! against the compressed texture that ships.
 
-use crate::{error, Print};
+use crate::{Print, Result};
+use anyhow::anyhow;
 use std::path::Path;
 use std::process::ExitCode;
-use underdraw::check::{check_mesh_per_level, check_mesh_sampled, ContractReport};
+use underdraw::check::{check_mesh_per_level, check_mesh_sampled};
 use underdraw::io::{is_texture, load_layer, load_mesh, load_texture, ImageLimits};
+use underdraw::present::results::{to_json, CheckResult};
 
 pub(crate) fn check(
     mesh_path: &Path,
@@ -14,15 +16,8 @@ pub(crate) fn check(
     region: Option<(&str, &Path)>,
     print: Print,
     limits: ImageLimits,
-) -> ExitCode {
-    let fail = |e: &dyn std::fmt::Display| {
-        error(e);
-        ExitCode::from(2)
-    };
-    let mesh = match load_mesh(mesh_path) {
-        Ok(m) => m,
-        Err(e) => return fail(&e),
-    };
+) -> Result<ExitCode> {
+    let mesh = load_mesh(mesh_path)?;
     if mesh.region.is_some() || region.is_some() {
         let paths = (mesh_path, image_path, texture_path);
         return crate::sheet::check_region(&mesh, paths, region, print, limits);
@@ -32,27 +27,22 @@ pub(crate) fn check(
         (Some(i), None) if std::fs::read(i).is_ok_and(|b| is_texture(&b)) => (None, Some(i)),
         other => other,
     };
-    let map = match image_path.map(|p| load_layer(p, &limits)) {
-        Some(Ok(l)) => Some(l.alpha),
-        Some(Err(e)) => return fail(&e),
+    let map = match image_path {
+        Some(p) => Some(load_layer(p, &limits)?.alpha),
         None => None,
     };
-    let texture = match texture_path.map(|p| load_texture(p, &limits)) {
-        Some(Ok(t)) => Some(t),
-        Some(Err(e)) => return fail(&e),
+    let texture = match texture_path {
+        Some(p) => Some(load_texture(p, &limits)?),
         None => None,
     };
     let mip = mesh.filter.mip_levels;
     let levels = match (&texture, texture_path) {
-        (Some(t), Some(p)) => match t.levels_for(mip) {
-            Ok(l) => l,
-            Err(why) => {
-                return fail(&format!(
-                    "{}: {why} (the mesh was cut for mip levels 0 to {mip})\n  hint: check against a texture with those levels, or cut the mesh again for fewer",
-                    p.display()
-                ))
-            }
-        },
+        (Some(t), Some(p)) => t.levels_for(mip).map_err(|why| {
+            anyhow!(
+                "{}: {why} (the mesh was cut for mip levels 0 to {mip})\n  hint: check against a texture with those levels, or cut the mesh again for fewer",
+                p.display()
+            )
+        })?,
         _ => &[][..],
     };
     let whole = check_mesh_sampled(&mesh, map.as_ref(), levels);
@@ -63,74 +53,16 @@ pub(crate) fn check(
     };
     let (report, per_level) = match (whole, per_level) {
         (Ok(r), Ok(p)) => (r, p),
-        (Err(e), _) | (_, Err(e)) => {
-            return fail(&format!("{}: {e}", mesh_path.display()));
-        }
+        (Err(e), _) | (_, Err(e)) => return Err(anyhow!("{}: {e}", mesh_path.display())),
     };
     let described = texture.as_ref().map(|t| t.describe(mip));
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
+    let result = CheckResult::new(&report, described, &per_level);
     if print.json {
-        let violations: Vec<String> = report.violations().iter().map(|v| v.to_string()).collect();
-        let mut v = serde_json::json!({
-            "holds": report.holds(),
-            "opaque_area": report.opaque_area,
-            "safe_area": report.safe_area,
-            "covered_area": report.covered_area,
-            "must_cover_area": report.must_cover_area,
-            "must_cover_covered": report.must_cover_covered(),
-            "beyond_must_cover": report.beyond_must_cover(),
-            "violations": violations,
-        });
-        if let Some(d) = &described {
-            v["texture"] = d.clone().into();
-            v["levels"] = per_level
-                .iter()
-                .enumerate()
-                .map(|(l, r)| level_json(l, r))
-                .collect();
-        }
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&v).expect("plain values serialize")
-        );
-        return code;
+        println!("{}", to_json(&result));
+    } else if !(print.quiet && report.holds()) {
+        // --quiet prints a violation only
+        print!("{}", result.text(!print.quiet));
     }
-    if print.quiet && report.holds() {
-        return code;
-    }
-    if let (Some(d), false) = (&described, print.quiet) {
-        println!("texture: {d}");
-        for (l, r) in per_level.iter().enumerate() {
-            let v = r.violations();
-            if v.is_empty() {
-                println!("  level {l}: holds");
-            } else {
-                println!("  level {l}: {}", v.join("; "));
-            }
-        }
-    }
-    if report.holds() {
-        println!(
-            "contract holds: {}; no overlap",
-            underdraw::quality::check_summary(&report)
-        );
-    } else {
-        println!("contract violated:");
-        for v in report.violations() {
-            println!("  {v}");
-        }
-    }
-    code
-}
-
-fn level_json(level: usize, r: &ContractReport) -> serde_json::Value {
-    serde_json::json!({
-        "level": level,
-        "holds": r.holds(),
-        "opaque_outside_safe": r.opaque_outside_safe,
-        "uncovered": r.uncovered,
-        "safe_area": r.safe_area,
-        "must_cover_area": r.must_cover_area,
-        "violations": r.violations(),
-    })
+    Ok(code)
 }

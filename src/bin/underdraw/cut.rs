@@ -1,16 +1,15 @@
 //! `underdraw cut`: layers and folders in, mesh files and glTF assets out
 //! (the work is `underdraw::batch`; this parses, calls it and prints).
 
-use crate::{bar, error, CutOptions, FilterArg, Print, VertexFormatArg, WrapArg};
+use crate::{bar, CutOptions, Failures, Line, Print, Result};
 use clap::parser::ValueSource;
 use clap::{ArgMatches, Args, ValueEnum};
 use std::path::PathBuf;
 use std::process::ExitCode;
-use underdraw::batch::{self, settings_file::Values, LayerReport, Outputs, Status};
+use underdraw::batch::{self, LayerReport, Outputs, Status};
 use underdraw::io::ImageLimits;
-use underdraw::quality::CutNumbers;
-use underdraw::settings::{FilterMode, Wrap};
-use underdraw::table;
+use underdraw::mesh::VertexFormat;
+use underdraw::present::results::{to_json, CutResult};
 
 #[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
 enum FormatArg {
@@ -81,7 +80,7 @@ pub(crate) struct CutArgs {
     /// How the glTF assets store their vertices. Needs `--format gltf` or
     /// `all`.
     #[arg(long, value_enum, default_value = "f32")]
-    vertex_format: VertexFormatArg,
+    vertex_format: VertexFormat,
     /// Also write `<OUT>/<stem>.preview.png`: the layer over a checkerboard
     /// with the opaque mesh tinted blue and the blended one orange (lightly,
     /// so the art shows), their edges on top, the regions' outlines dotted,
@@ -125,45 +124,21 @@ pub(crate) struct CutArgs {
     options: CutOptions,
 }
 
-impl CutArgs {
-    /// The options given explicitly on the command line, which override a
-    /// settings file.
-    fn overrides(&self, m: &ArgMatches) -> Values {
-        let given = |id: &str| m.value_source(id) == Some(ValueSource::CommandLine);
-        let o = &self.options;
-        Values {
-            budget: given("budget").then_some(self.budget as usize),
-            filter: given("filter").then_some(match o.filter {
-                FilterArg::Nearest => FilterMode::Nearest,
-                FilterArg::Bilinear => FilterMode::Bilinear,
-            }),
-            mip_levels: given("mip_levels").then_some(o.mip_levels),
-            wrap: given("wrap").then_some(match o.wrap {
-                WrapArg::None => Wrap::None,
-                WrapArg::X => Wrap::X,
-                WrapArg::Y => Wrap::Y,
-                WrapArg::Xy => Wrap::Xy,
-            }),
-            opaque_min: given("opaque_min").then_some(o.opaque_min),
-            visible_min: given("visible_min").then_some(o.visible_min),
-        }
-    }
-}
-
-pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLimits) -> ExitCode {
-    let defaults = args.options.settings(args.budget as usize);
-    if let Err(e) = defaults.validate() {
-        error(&e);
-        return ExitCode::from(2);
-    }
+pub(crate) fn cut(
+    args: &CutArgs,
+    m: &ArgMatches,
+    print: Print,
+    limits: ImageLimits,
+) -> Result<ExitCode> {
+    let defaults = args.options.settings(args.budget as usize)?;
     if args.glb && args.format == FormatArg::Json {
-        error("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
-        return ExitCode::from(2);
+        anyhow::bail!("--glb chooses how the glTF asset is written, but --format json writes none\n  hint: add --format gltf (the .glb alone) or --format all (the mesh file and the .glb)");
     }
-    if args.vertex_format != VertexFormatArg::F32 && args.format == FormatArg::Json {
-        error("--vertex-format chooses how the glTF asset stores its vertices, but --format json writes none\n  hint: add --format gltf or --format all");
-        return ExitCode::from(2);
+    if args.vertex_format != VertexFormat::F32 && args.format == FormatArg::Json {
+        anyhow::bail!("--vertex-format chooses how the glTF asset stores its vertices, but --format json writes none\n  hint: add --format gltf or --format all");
     }
+    // the options typed on the command line override a settings file
+    let typed = |id: &str| m.value_source(id) == Some(ValueSource::CommandLine);
     let gltf = args.format != FormatArg::Json;
     if args.regions.is_some() || args.find_regions || args.per_frame {
         let outputs = Outputs {
@@ -171,7 +146,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
             gltf: gltf && !args.glb,
             glb: gltf && args.glb,
             preview: args.preview,
-            vertex_format: args.vertex_format.format(),
+            vertex_format: args.vertex_format,
         };
         let unsupported = [
             ("--texture", args.texture.is_some()),
@@ -189,7 +164,7 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
                 force: args.force,
                 settings: args.settings.as_deref(),
                 base: defaults,
-                overrides: args.overrides(m),
+                overrides: args.options.partial(args.budget as usize, typed),
                 outputs,
                 unsupported: unsupported.iter().filter(|u| u.1).map(|u| u.0).collect(),
             },
@@ -204,32 +179,28 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         exclude: args.exclude.clone(),
         settings_file: args.settings.clone(),
         base: defaults,
-        overrides: args.overrides(m),
+        overrides: args.options.partial(args.budget as usize, typed),
         outputs: Outputs {
             json: args.format != FormatArg::Gltf,
             gltf: gltf && !args.glb,
             glb: gltf && args.glb,
             preview: args.preview,
-            vertex_format: args.vertex_format.format(),
+            vertex_format: args.vertex_format,
         },
         texture: args.texture.clone(),
     };
-    let mut plan = match batch::plan(&request) {
-        Ok(p) => p,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
-        }
-    };
+    let mut plan = batch::plan(&request)?;
     // PNGs with a `<stem>.regions.json` beside them are cut as sheets
     let sheets = underdraw::sheet::batch::take_sheets(&mut plan, &request, false, limits);
     if plan.jobs.is_empty() && sheets.is_empty() {
         // nothing to cut: a typo in a path or a pattern must not pass silently
-        for e in &plan.empty {
-            error(e);
-        }
-        error("no layer found: nothing was cut\n  hint: give PNG files or folders that hold them; see `underdraw cut --help` for --include and --exclude");
-        return ExitCode::from(2);
+        let mut lines: Vec<Line> = plan
+            .empty
+            .iter()
+            .map(|e| Line::Error(e.to_string()))
+            .collect();
+        lines.push(Line::Error("no layer found: nothing was cut\n  hint: give PNG files or folders that hold them; see `underdraw cut --help` for --include and --exclude".into()));
+        return Err(Failures(lines).into());
     }
     let options = batch::RunOptions {
         jobs: args.jobs.map(|n| n as usize),
@@ -253,162 +224,57 @@ pub(crate) fn cut(args: &CutArgs, m: &ArgMatches, print: Print, limits: ImageLim
         batch::run(&plan, &options, &|_| progress.inc(1))
     };
     progress.finish_and_clear();
-    let (sheet_reports, sheets_failed) = crate::sheet::run_found(&sheets);
-    let report = match report {
-        Ok(r) => r,
-        Err(e) => {
-            error(&e);
-            return ExitCode::from(2);
-        }
-    };
+    let (sheet_reports, sheet_errors) = crate::sheet::run_found(&sheets);
+    let report = report?;
+    let result = CutResult::new(&report, &plan.empty);
+    let (region_rows, regions_total) = crate::sheet::region_rows(&sheet_reports);
     if print.json {
-        let mut objects: Vec<serde_json::Value> = report.layers.iter().map(json_line).collect();
-        objects.extend(crate::sheet::found_json(&sheet_reports));
-        objects.extend(plan.empty.iter().map(|e| {
-            serde_json::json!({
-                "layer": e.path.display().to_string(),
-                "status": Status::Failed,
-                "outputs": [],
-                "error": e.to_string(),
-            })
-        }));
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&objects).expect("plain values serialize")
-        );
-    } else if print.text() {
-        for n in &report.notes {
-            println!("note: {n}");
+        let mut objects = serde_json::to_value(&result).expect("plain values serialize");
+        if let Some(list) = objects.as_array_mut() {
+            list.extend(crate::sheet::found_json(&sheet_reports));
         }
-        let (region_rows, regions_cut, region_vertices) = crate::sheet::region_rows(&sheet_reports);
-        print_table(&report.layers, region_rows);
-        let count = |s| report.count(s);
-        let vertices: usize = report
-            .layers
-            .iter()
-            .filter_map(|l| l.result.as_ref())
-            .map(|r| r.vertices)
-            .sum();
-        let regions = if sheet_reports.is_empty() {
-            String::new()
-        } else {
-            format!(
-                "; {regions_cut} regions of {} sheet(s) cut ({} failed), {region_vertices} vertices",
-                sheet_reports.len(),
-                sheet_reports.iter().map(|r| r.failed()).sum::<usize>()
-            )
-        };
-        println!(
-            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices{regions}",
-            report.layers.len(),
-            count(Status::Cut),
-            count(Status::Unchanged),
-            count(Status::Failed),
+        println!("{}", to_json(&objects));
+    } else if print.text() {
+        let cwd = std::env::current_dir().unwrap_or_default();
+        print!(
+            "{}",
+            result.text_with(&cwd, &region_rows, regions_total.as_deref())
         );
     }
-    crate::sheet::print_region_errors(&sheet_reports);
     let failed: Vec<&LayerReport> = report
         .layers
         .iter()
         .filter(|l| l.status == Status::Failed)
         .collect();
+    let mut lines = Vec::new();
     if let Some(e) = &report.manifest_error {
-        error(e);
+        lines.push(Line::Error(e.to_string()));
     }
     if !plan.empty.is_empty() {
-        eprintln!(
+        lines.push(Line::Heading(format!(
             "{} of {} inputs gave no layer:",
             plan.empty.len(),
             args.images.len()
+        )));
+        lines.extend(plan.empty.iter().map(|e| Line::Error(e.to_string())));
+    }
+    if !failed.is_empty() {
+        lines.push(Line::Heading(format!(
+            "{} of {} layers failed:",
+            failed.len(),
+            report.layers.len()
+        )));
+        lines.extend(
+            failed
+                .iter()
+                .filter_map(|l| l.error.as_ref())
+                .map(|e| Line::Error(e.to_string())),
         );
-        for e in &plan.empty {
-            error(e);
-        }
     }
-    if failed.is_empty() {
-        return if report.manifest_error.is_some() || !plan.empty.is_empty() || sheets_failed > 0 {
-            ExitCode::from(2)
-        } else {
-            ExitCode::SUCCESS
-        };
+    lines.extend(sheet_errors);
+    if lines.is_empty() {
+        Ok(ExitCode::SUCCESS)
+    } else {
+        Err(Failures(lines).into())
     }
-    eprintln!("{} of {} layers failed:", failed.len(), report.layers.len());
-    for l in failed {
-        if let Some(e) = &l.error {
-            error(e);
-        }
-    }
-    ExitCode::from(2)
-}
-
-fn print_table(layers: &[LayerReport], regions: Vec<table::CutRow>) {
-    let shown: Vec<&LayerReport> = layers.iter().filter(|l| l.result.is_some()).collect();
-    let cwd = std::env::current_dir().unwrap_or_default();
-    let paths: Vec<PathBuf> = shown.iter().map(|l| l.input.clone()).collect();
-    let names = table::display_paths(&paths, &cwd);
-    let rows: Vec<table::CutRow> = shown
-        .iter()
-        .zip(names)
-        .map(|(l, layer)| {
-            let r = l.result.as_ref().expect("filtered above");
-            let numbers = CutNumbers::of_result(r);
-            table::CutRow {
-                layer,
-                status: status_word(l.status).into(),
-                numbers,
-                warnings: r
-                    .warnings
-                    .iter()
-                    .cloned()
-                    .chain(numbers.warnings(None))
-                    .collect(),
-                notes: r.notes.clone(),
-            }
-        })
-        .chain(regions)
-        .collect();
-    print!("{}", table::cut_table(&rows));
-}
-
-fn status_word(s: Status) -> &'static str {
-    match s {
-        Status::Cut => "cut",
-        Status::Unchanged => "unchanged",
-        Status::Failed => "failed",
-    }
-}
-
-fn json_line(l: &LayerReport) -> serde_json::Value {
-    let mut o = serde_json::json!({
-        "layer": l.input.display().to_string(),
-        "status": l.status,
-        "outputs": l.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
-    });
-    if let Some(r) = &l.result {
-        let n = CutNumbers::of_result(r);
-        o["vertices"] = r.vertices.into();
-        // the vertex array's bytes (position + texture coordinate) per format
-        o["vertex_bytes"] = underdraw::mesh::VertexFormat::ALL
-            .iter()
-            .map(|f| {
-                (
-                    f.name().to_string(),
-                    serde_json::Value::from(r.vertices as u64 * f.bytes_per_vertex()),
-                )
-            })
-            .collect::<serde_json::Map<_, _>>()
-            .into();
-        // null where the safe-opaque region is empty
-        o["opaque_capture"] = n.capture().into();
-        o["excess"] = r.excess.into();
-        o["excess_share"] = n.excess_share().into();
-        o["must_cover_area"] = r.must_cover_area.into();
-        o["notes"] = serde_json::json!(r.notes);
-        let warnings: Vec<String> = r.warnings.iter().cloned().chain(n.warnings(None)).collect();
-        o["warnings"] = serde_json::json!(warnings);
-    }
-    if let Some(e) = &l.error {
-        o["error"] = e.to_string().into();
-    }
-    o
 }

@@ -9,11 +9,12 @@ mod scene;
 mod sheet;
 mod sweep;
 
-use clap::{Args, CommandFactory, FromArgMatches, Parser, Subcommand, ValueEnum};
+use clap::{Args, CommandFactory, FromArgMatches, Parser, Subcommand};
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use underdraw::settings::{AlphaThresholds, CutSettings, Filter, FilterMode, Wrap};
+use underdraw::error::Setting;
+use underdraw::settings::{CutSettings, FilterMode, PartialSettings, SettingsError, Wrap};
 
 use cut::CutArgs;
 use scene::SceneArgs;
@@ -136,51 +137,16 @@ enum Command {
 }
 
 // Every value enum documents each of its values, so `--help` lists every
-// option's values the same way (one line a value, with its meaning).
-#[derive(Clone, Copy, ValueEnum)]
-pub(crate) enum FilterArg {
-    /// The opaque mesh stays inside opaque texels.
-    Nearest,
-    /// The opaque mesh also stays half a texel (2^(l-1) at mip level l) from any texel that is not opaque.
-    Bilinear,
-}
-
-#[derive(Clone, Copy, ValueEnum)]
-pub(crate) enum WrapArg {
-    /// Both axes clamp to the edge texel.
-    None,
-    /// The texture repeats horizontally (a strip tiled side by side).
-    X,
-    /// The texture repeats vertically.
-    Y,
-    /// The texture repeats on both axes.
-    Xy,
-}
-
-#[derive(Clone, Copy, PartialEq, Eq, ValueEnum)]
-pub(crate) enum VertexFormatArg {
-    /// 32-bit floats: position and texture coordinate, 16 bytes a vertex.
-    F32,
-    /// 16-bit: positions in half texels, texture coordinates normalized, 8 bytes a vertex (glTF's KHR_mesh_quantization; layers up to 32767 texels a side).
-    U16,
-}
-
-impl VertexFormatArg {
-    /// The library's vertex format.
-    pub(crate) fn format(self) -> underdraw::mesh::VertexFormat {
-        match self {
-            VertexFormatArg::F32 => underdraw::mesh::VertexFormat::F32,
-            VertexFormatArg::U16 => underdraw::mesh::VertexFormat::U16,
-        }
-    }
-}
+// option's values the same way (one line a value, with its meaning). The
+// settings' value enums are the library's own (`FilterMode`, `Wrap`,
+// `VertexFormat`: clap's `ValueEnum` derived under the `cli` feature).
 
 /// The cut settings other than the budget.
 #[derive(Args)]
 pub(crate) struct CutOptions {
     /// Texture filter the layer is drawn with.
     #[arg(long, value_enum, default_value = "bilinear")]
-    filter: FilterArg,
+    filter: FilterMode,
     /// Highest mip level the layer may be sampled from (0: no mipmaps). The
     /// meshes are made safe for every level up to this one; for a texture
     /// (.ktx2), levels 0 to this one of the file, each its own texels.
@@ -189,7 +155,7 @@ pub(crate) struct CutOptions {
     /// Axes on which the layer's texture repeats (tiling strips); the other
     /// axes clamp to the edge texel.
     #[arg(long, value_enum, default_value = "none")]
-    wrap: WrapArg,
+    wrap: Wrap,
     /// Alpha (0-255) from which a texel counts as opaque.
     #[arg(long, value_name = "A", default_value_t = 255)]
     opaque_min: u8,
@@ -199,28 +165,88 @@ pub(crate) struct CutOptions {
 }
 
 impl CutOptions {
-    pub(crate) fn settings(&self, budget: usize) -> CutSettings {
-        CutSettings {
-            budget,
-            filter: Filter {
-                mode: match self.filter {
-                    FilterArg::Nearest => FilterMode::Nearest,
-                    FilterArg::Bilinear => FilterMode::Bilinear,
-                },
-                mip_levels: self.mip_levels,
-            },
-            alpha: AlphaThresholds {
-                opaque_min: self.opaque_min,
-                visible_min: self.visible_min,
-            },
-            wrap: match self.wrap {
-                WrapArg::None => Wrap::None,
-                WrapArg::X => Wrap::X,
-                WrapArg::Y => Wrap::Y,
-                WrapArg::Xy => Wrap::Xy,
-            },
+    /// These options (and `budget`) as settings: the ones `given` says were
+    /// typed (by argument id), so a settings file keeps the others.
+    pub(crate) fn partial(&self, budget: usize, given: impl Fn(&str) -> bool) -> PartialSettings {
+        PartialSettings {
+            budget: given("budget").then_some(budget),
+            filter: given("filter").then_some(self.filter),
+            mip_levels: given("mip_levels").then_some(self.mip_levels),
+            wrap: given("wrap").then_some(self.wrap),
+            opaque_min: given("opaque_min").then_some(self.opaque_min),
+            visible_min: given("visible_min").then_some(self.visible_min),
         }
     }
+
+    /// The whole settings: every option's value (typed or default) over the
+    /// library's defaults, checked; an error says which flag to change.
+    pub(crate) fn settings(&self, budget: usize) -> Result<CutSettings> {
+        let s = CutSettings::default().with(&self.partial(budget, |_| true));
+        s.validate().map_err(settings_error)?;
+        Ok(s)
+    }
+}
+
+/// A settings error from the command line, said with the flags to change
+/// (the library's message names the setting).
+fn settings_error(e: SettingsError) -> anyhow::Error {
+    let hint = match e {
+        SettingsError::Budget(_) => format!("use --budget {} or more", SettingsError::MIN_BUDGET),
+        SettingsError::Alpha { .. } => "lower --visible-min or raise --opaque-min".to_string(),
+        SettingsError::MipLevels(_) => {
+            format!("use --mip-levels {} or less", SettingsError::MAX_MIP_LEVELS)
+        }
+    };
+    anyhow::anyhow!("{e}\n  hint: {hint}")
+}
+
+/// What a command ends with when it fails: one error, or (a batch) lines
+/// on stderr, some of them errors. [`main`] prints it, in one place.
+pub(crate) type Result<T> = std::result::Result<T, anyhow::Error>;
+
+/// A failure reported as several lines (a batch's failed layers and inputs
+/// that gave no layer): headings as they are, errors as [`error`] prints
+/// them; exit status 2.
+#[derive(Debug, Default)]
+pub(crate) struct Failures(pub(crate) Vec<Line>);
+
+/// A line of [`Failures`].
+#[derive(Debug)]
+pub(crate) enum Line {
+    /// A plain line ("2 of 7 layers failed:").
+    Heading(String),
+    /// An error, printed with "error:".
+    Error(String),
+}
+
+impl std::fmt::Display for Failures {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        for l in &self.0 {
+            match l {
+                Line::Heading(h) | Line::Error(h) => writeln!(f, "{h}")?,
+            }
+        }
+        Ok(())
+    }
+}
+
+impl std::error::Error for Failures {}
+
+/// The one place an error is printed and mapped to the exit status (2: bad
+/// usage, bad input, or an internal error reported as one).
+fn report(e: &anyhow::Error) -> ExitCode {
+    match e.downcast_ref::<Failures>() {
+        Some(Failures(lines)) => {
+            for l in lines {
+                match l {
+                    Line::Heading(h) => eprintln!("{h}"),
+                    Line::Error(m) => error(m),
+                }
+            }
+        }
+        None => error(e),
+    }
+    ExitCode::from(2)
 }
 
 /// The last panic's message and place, recorded by the hook [`main`]
@@ -246,28 +272,53 @@ fn main() -> ExitCode {
     // A panic inside one layer of a `cut` batch is that layer's failure
     // (see underdraw::batch); anywhere else it ends the command here, as an
     // internal error with exit status 2, never as a Rust backtrace.
-    match std::panic::catch_unwind(run) {
-        Ok(code) => code,
-        Err(_) => {
-            let what = LAST_PANIC
-                .lock()
-                .ok()
-                .and_then(|mut l| l.take())
-                .unwrap_or_else(|| "unknown panic".into());
-            error(format!(
-                "internal error: {what}\n  hint: this is a bug in underdraw, not in your files; please report it with the command line and the input files"
-            ));
-            ExitCode::from(2)
-        }
+    let result = std::panic::catch_unwind(run).unwrap_or_else(|_| {
+        let what = LAST_PANIC
+            .lock()
+            .ok()
+            .and_then(|mut l| l.take())
+            .unwrap_or_else(|| "unknown panic".into());
+        Err(anyhow::anyhow!(
+            "internal error: {what}\n  hint: this is a bug in underdraw, not in your files; please report it with the command line and the input files"
+        ))
+    });
+    result.unwrap_or_else(|e| report(&e))
+}
+
+/// The command line's spelling of the settings the library's messages name
+/// (the one table of flag names outside clap's own).
+fn flag(s: Setting) -> &'static str {
+    match s {
+        Setting::Out => "--out",
+        Setting::Texture => "--texture",
+        Setting::Preview => "--preview",
+        Setting::Format => "--format",
+        Setting::MipLevels => "--mip-levels",
+        Setting::VertexFormat => "--vertex-format",
+        Setting::Jobs => "--jobs",
+        Setting::LockWait => "--lock-wait",
+        Setting::Include => "--include",
+        Setting::Exclude => "--exclude",
+        Setting::MaxTexels => "--max-texels",
+        Setting::VertexTotal => "--vertex-total",
+        Setting::Export => "--export",
+        Setting::Report => "--report",
+        Setting::DumpFrame => "--dump-frame",
+        Setting::Regions => "--regions",
+        Setting::FindRegions => "--find-regions",
+        Setting::Force => "--force",
+        Setting::PerFrame => "--per-frame",
+        Setting::Region => "--region",
+        Setting::VisibleMin => "--visible-min",
     }
 }
 
-fn run() -> ExitCode {
+fn run() -> Result<ExitCode> {
+    underdraw::error::spell_settings(flag);
     let matches = Cli::command().get_matches();
     let cli = Cli::from_arg_matches(&matches).unwrap_or_else(|e| e.exit());
     if cli.max_pixels.is_some() {
-        error("--max-pixels is now called --max-texels\n  hint: give --max-texels N (the most texels, width x height, of a layer)");
-        return ExitCode::from(2);
+        anyhow::bail!("--max-pixels is now called --max-texels\n  hint: give --max-texels N (the most texels, width x height, of a layer)");
     }
     let limits = underdraw::io::ImageLimits {
         max_pixels: cli.max_texels,

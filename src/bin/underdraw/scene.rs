@@ -1,6 +1,6 @@
 //! `underdraw scene`: score a parallax scene on the simulated GPU.
 
-use crate::{bar, error, Print, VertexFormatArg};
+use crate::{bar, Print, Result};
 use clap::Args;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -40,7 +40,7 @@ pub(crate) struct SceneArgs {
     export: Option<PathBuf>,
     /// How the exported glTF assets store their vertices.
     #[arg(long, value_enum, default_value = "f32")]
-    vertex_format: VertexFormatArg,
+    vertex_format: underdraw::mesh::VertexFormat,
 }
 
 /// `run_scene`'s steps shown as one bar per step.
@@ -76,7 +76,7 @@ pub(crate) fn scene(
     args: &SceneArgs,
     print: Print,
     limits: underdraw::io::ImageLimits,
-) -> ExitCode {
+) -> Result<ExitCode> {
     let out = args.out.clone().unwrap_or_else(|| {
         let stem = args
             .scene
@@ -93,7 +93,7 @@ pub(crate) fn scene(
         vertex_total: args.vertex_total,
         report: args.report.clone(),
         export: args.export.clone(),
-        vertex_format: args.vertex_format.format(),
+        vertex_format: args.vertex_format,
         limits,
         progress: None,
     };
@@ -107,24 +107,17 @@ pub(crate) fn scene(
     };
     let result = run_scene(&opts);
     progress.clear();
-    match result {
-        Ok(report) => {
-            if print.json {
-                println!(
-                    "{}",
-                    serde_json::to_string_pretty(&report).expect("the report serializes")
-                );
-            } else if print.text() {
-                print!("{}", report.table());
-                if let Some(dir) = &args.report {
-                    println!("report: {}", dir.join("index.html").display());
-                }
-            }
-            ExitCode::SUCCESS
-        }
-        Err(e) => {
-            error(&e);
-            ExitCode::from(2)
+    let report = result?;
+    if print.json {
+        println!(
+            "{}",
+            serde_json::to_string_pretty(&report).expect("the report serializes")
+        );
+    } else if print.text() {
+        print!("{}", report.table());
+        if let Some(dir) = &args.report {
+            println!("report: {}", dir.join("index.html").display());
         }
     }
+    Ok(ExitCode::SUCCESS)
 }

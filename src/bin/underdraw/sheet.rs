@@ -2,16 +2,17 @@
 //! sheet's regions, each cut as its own layer (the work is
 //! `underdraw::sheet::run`; this checks the flags, calls it and prints).
 
-use crate::{error, Print};
+use crate::{Failures, Line, Print};
+use anyhow::{bail, Result};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
-use underdraw::batch::settings_file::Values;
 use underdraw::batch::Outputs;
 use underdraw::io::ImageLimits;
+use underdraw::present::tables as table;
 use underdraw::quality::CutNumbers;
 use underdraw::settings::CutSettings;
+use underdraw::settings::PartialSettings;
 use underdraw::sheet::run::{run_sheet, RegionSource, SheetReport, SheetRequest};
-use underdraw::table;
 
 /// The `cut` options a sheet run uses.
 pub(crate) struct SheetArgs<'a> {
@@ -23,31 +24,27 @@ pub(crate) struct SheetArgs<'a> {
     pub(crate) force: bool,
     pub(crate) settings: Option<&'a Path>,
     pub(crate) base: CutSettings,
-    pub(crate) overrides: Values,
+    pub(crate) overrides: PartialSettings,
     pub(crate) outputs: Outputs,
     /// Flags given that a sheet run does not take.
     pub(crate) unsupported: Vec<&'static str>,
 }
 
-pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) -> ExitCode {
+pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) -> Result<ExitCode> {
     if args.regions.is_none() && !args.find {
-        error("--per-frame cuts each frame of an animation region alone, but no regions were given\n  hint: add --regions FILE (a regions file with \"frames\")");
-        return ExitCode::from(2);
+        bail!("--per-frame cuts each frame of an animation region alone, but no regions were given\n  hint: add --regions FILE (a regions file with \"frames\")");
     }
     if let Some(flag) = args.unsupported.first() {
-        error(format!("{flag} is not taken with --regions or --find-regions\n  hint: cut the sheet's regions without it, or cut the layer without regions"));
-        return ExitCode::from(2);
+        bail!("{flag} is not taken with --regions or --find-regions\n  hint: cut the sheet's regions without it, or cut the layer without regions");
     }
     if args.regions.is_some() && args.images.len() != 1 {
-        error(format!("--regions gives the regions of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its regions file, or use --find-regions for several", args.images.len()));
-        return ExitCode::from(2);
+        bail!("--regions gives the regions of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its regions file, or use --find-regions for several", args.images.len());
     }
     if let Some(dir) = args.images.iter().find(|p| p.is_dir()) {
-        error(format!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display()));
-        return ExitCode::from(2);
+        bail!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display());
     }
     let mut reports = Vec::new();
-    let mut failed_sheets = 0;
+    let mut errors = Vec::new();
     for sheet in args.images {
         let req = SheetRequest {
             sheet: sheet.clone(),
@@ -68,10 +65,7 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
         };
         match run_sheet(&req) {
             Ok(r) => reports.push(r),
-            Err(e) => {
-                error(&e);
-                failed_sheets += 1;
-            }
+            Err(e) => errors.push(Line::Error(e.to_string())),
         }
     }
     if print.json {
@@ -96,52 +90,66 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
         }
         print_table(&reports);
     }
-    let mut failed = 0;
     for r in &reports {
         for g in &r.regions {
             if let Err(e) = &g.cut {
-                error(format!(
+                errors.push(Line::Error(format!(
                     "{}: region {:?}: {e}",
                     r.sheet.display(),
                     g.region.name
-                ));
-                failed += 1;
+                )));
             }
         }
     }
-    if failed + failed_sheets > 0 {
-        ExitCode::from(2)
+    if errors.is_empty() {
+        Ok(ExitCode::SUCCESS)
     } else {
-        ExitCode::SUCCESS
+        Err(Failures(errors).into())
     }
 }
 
 fn print_table(reports: &[SheetReport]) {
-    let (rows, count, vertices) = region_rows(reports);
+    let (rows, _) = region_rows(reports);
     print!("{}", table::cut_table(&rows));
-    let failed: usize = reports.iter().map(|r| r.failed()).sum();
+    let (count, failed, vertices) = region_counts(reports);
     println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
 }
 
+/// Regions cut, failed, and the vertices of those cut.
+fn region_counts(reports: &[SheetReport]) -> (usize, usize, usize) {
+    let cut = reports
+        .iter()
+        .flat_map(|r| &r.regions)
+        .filter_map(|g| g.cut.as_ref().ok());
+    let vertices = cut.clone().map(|c| c.mesh.vertex_count()).sum();
+    let failed = reports.iter().map(|r| r.failed()).sum();
+    (cut.count(), failed, vertices)
+}
+
 /// The sheets a `cut` batch found (PNGs with a `<stem>.regions.json`
-/// beside them), each run: the reports, and how many sheets and regions
-/// failed (a sheet's own error is printed here).
-pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, usize) {
+/// beside them), each run: the reports, and the errors of the sheets and
+/// regions that failed.
+pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Line>) {
     let mut reports = Vec::new();
-    let mut failed = 0;
+    let mut errors = Vec::new();
     for req in requests {
         match run_sheet(req) {
-            Ok(r) => {
-                failed += r.failed();
-                reports.push(r);
-            }
-            Err(e) => {
-                error(&e);
-                failed += 1;
+            Ok(r) => reports.push(r),
+            Err(e) => errors.push(Line::Error(e.to_string())),
+        }
+    }
+    for r in &reports {
+        for g in &r.regions {
+            if let Err(e) = &g.cut {
+                errors.push(Line::Error(format!(
+                    "{}: region {:?}: {e}",
+                    r.sheet.display(),
+                    g.region.name
+                )));
             }
         }
     }
-    (reports, failed)
+    (reports, errors)
 }
 
 /// The `--json` objects of the regions of sheets a batch found.
@@ -149,34 +157,15 @@ pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<serde_json::Value> {
     reports.iter().flat_map(json_lines).collect()
 }
 
-/// Errors of the regions that failed, printed.
-pub(crate) fn print_region_errors(reports: &[SheetReport]) {
-    for r in reports {
-        for g in &r.regions {
-            if let Err(e) = &g.cut {
-                error(format!(
-                    "{}: region {:?}: {e}",
-                    r.sheet.display(),
-                    g.region.name
-                ));
-            }
-        }
-    }
-}
-
-/// One table row per region cut (`<stem>/<name>`), the regions cut and
-/// their vertices.
-pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, usize, usize) {
+/// One table row per region cut (`<stem>/<name>`), and the total line's
+/// words for them (none without sheets).
+pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, Option<String>) {
     let mut rows = Vec::new();
-    let mut vertices = 0;
-    let mut count = 0;
     for r in reports {
         for g in &r.regions {
             let Ok(c) = &g.cut else { continue };
             let s = &c.mesh.stats;
             let numbers = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
-            vertices += c.mesh.vertex_count();
-            count += 1;
             rows.push(table::CutRow {
                 layer: format!("{}/{}", r.stem, g.region.name),
                 status: "cut".into(),
@@ -191,7 +180,14 @@ pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, usize
             });
         }
     }
-    (rows, count, vertices)
+    let (count, failed, vertices) = region_counts(reports);
+    let total = (!reports.is_empty()).then(|| {
+        format!(
+            "{count} regions of {} sheet(s) cut ({failed} failed), {vertices} vertices",
+            reports.len()
+        )
+    });
+    (rows, total)
 }
 
 fn json_lines(r: &SheetReport) -> Vec<serde_json::Value> {
@@ -237,36 +233,26 @@ pub(crate) fn check_region(
     named: Option<(&str, &Path)>,
     print: Print,
     limits: ImageLimits,
-) -> ExitCode {
-    let fail = |e: &dyn std::fmt::Display| {
-        error(e);
-        ExitCode::from(2)
-    };
+) -> Result<ExitCode> {
     if texture_path.is_some() {
-        return fail(&"--texture is not taken for a region of a sheet\n  hint: check the region mesh against the sheet's PNG");
+        bail!("--texture is not taken for a region of a sheet\n  hint: check the region mesh against the sheet's PNG");
     }
     let Some(image_path) = image_path else {
-        return fail(&"a region mesh is checked against its sheet, but no IMAGE was given\n  hint: give the sheet's PNG after the mesh file");
+        bail!("a region mesh is checked against its sheet, but no IMAGE was given\n  hint: give the sheet's PNG after the mesh file");
     };
-    let sheet = match underdraw::io::load_layer(image_path, &limits) {
-        Ok(l) => l.alpha,
-        Err(e) => return fail(&e),
-    };
+    let sheet = underdraw::io::load_layer(image_path, &limits)?.alpha;
     let region = match named {
         None => mesh.region.clone().expect("a region key"),
         Some((name, file)) => {
             let size = (sheet.width, sheet.height);
-            let regions = match underdraw::sheet::regions::load_regions(file, size) {
-                Ok(r) => r,
-                Err(e) => return fail(&e),
-            };
+            let regions = underdraw::sheet::regions::load_regions(file, size)?;
             let Some(r) = regions.iter().find(|r| r.name == name) else {
                 let names: Vec<&str> = regions.iter().map(|r| r.name.as_str()).collect();
-                return fail(&format!(
+                bail!(
                     "{}: has no region named {name:?}\n  hint: give one of its regions: {}",
                     file.display(),
                     names.join(", ")
-                ));
+                );
             };
             let from_mesh = mesh.region.clone();
             let (slices, frames) = match &r.kind {
@@ -291,10 +277,8 @@ pub(crate) fn check_region(
             }
         }
     };
-    let report = match underdraw::check::check_region_mesh(mesh, &sheet, Some(&region)) {
-        Ok(r) => r,
-        Err(e) => return fail(&format!("{}: {e}", mesh_path.display())),
-    };
+    let report = underdraw::check::check_region_mesh(mesh, &sheet, Some(&region))
+        .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
     let c = &report.contract;
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
     if print.json {
@@ -313,10 +297,10 @@ pub(crate) fn check_region(
             "{}",
             serde_json::to_string_pretty(&v).expect("plain values serialize")
         );
-        return code;
+        return Ok(code);
     }
     if print.quiet && report.holds() {
-        return code;
+        return Ok(code);
     }
     let [x, y, w, h] = region.rect;
     let what = match (&region.frames, &region.slices) {
@@ -339,5 +323,5 @@ pub(crate) fn check_region(
             println!("  {v}");
         }
     }
-    code
+    Ok(code)
 }
