@@ -435,7 +435,7 @@ pub fn write_if_changed(dest: &Path, bytes: &[u8]) -> Result<bool, FileError> {
 
 /// Whether the file at `path` exists and holds exactly `bytes` (read only
 /// when its length matches).
-fn same_bytes(path: &Path, bytes: &[u8]) -> bool {
+pub(crate) fn same_bytes(path: &Path, bytes: &[u8]) -> bool {
     match fs::metadata(path) {
         Ok(m) if m.is_file() && m.len() == bytes.len() as u64 => {
             fs::read(path).is_ok_and(|b| b == bytes)

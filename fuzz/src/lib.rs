@@ -148,6 +148,16 @@ pub fn scene_json(data: &[u8]) {
                 }
             }
             MeshSource::File(m) => assert!(m.is_file(), "layer {:?}: missing mesh file", l.name),
+            MeshSource::Region(r) => {
+                assert!(
+                    r.regions.is_file(),
+                    "layer {:?}: missing regions file",
+                    l.name
+                );
+                if let Err(e) = r.settings.validate() {
+                    panic!("layer {:?}: invalid cut settings accepted: {e}", l.name)
+                }
+            }
         }
     }
     let cams = scene.camera_positions();

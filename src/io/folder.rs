@@ -194,6 +194,30 @@ impl OutputFolder {
         self.written.extend(dests.into_iter().map(|(d, _)| d));
         Ok(())
     }
+
+    /// [`OutputFolder::commit`] of the files of `files` whose bytes differ
+    /// from what is there; a file already holding its bytes is left
+    /// untouched (its time too), and every file of `files` is listed as
+    /// written, in order. For outputs that are rewritten on every run (no
+    /// manifest), so an unchanged one makes an engine reimport nothing.
+    pub fn commit_changed(&mut self, files: &[NamedBytes]) -> Result<(), FileError> {
+        for (name, _) in files {
+            self.refuse_inputs(name)?;
+        }
+        let changed: Vec<NamedBytes> = files
+            .iter()
+            .filter(|(n, b)| !super::same_bytes(&self.path(n), b))
+            .cloned()
+            .collect();
+        let dests: Vec<(PathBuf, &[u8])> = changed
+            .iter()
+            .map(|(n, b)| (self.path(n), b.as_slice()))
+            .collect();
+        commit_files(&dests)?;
+        self.written
+            .extend(files.iter().map(|(n, _)| self.dir.join(n)));
+        Ok(())
+    }
 }
 
 /// The temporary file a new output is written to before it is renamed.
@@ -348,6 +372,36 @@ mod tests {
         assert_eq!(fs::read(d.join("b.bin")).unwrap(), b"new b");
         assert_eq!(names(&d), ["a.json", "b.bin"]);
         assert_eq!(out.written(), [d.join("a.json"), d.join("b.bin")]);
+        fs::remove_dir_all(&d).unwrap();
+    }
+
+    #[test]
+    fn commit_changed_leaves_equal_files_untouched_and_lists_all() {
+        let d = folder("changed");
+        fs::write(d.join("same.json"), b"same").unwrap();
+        fs::write(d.join("old.bin"), b"old").unwrap();
+        let t0 = fs::metadata(d.join("same.json"))
+            .unwrap()
+            .modified()
+            .unwrap();
+        std::thread::sleep(std::time::Duration::from_millis(20));
+        let mut out = OutputFolder::open(&d, vec![d.join("in.png")]);
+        out.commit_changed(&named(&[("same.json", b"same"), ("old.bin", b"new")]))
+            .unwrap();
+        let t1 = fs::metadata(d.join("same.json"))
+            .unwrap()
+            .modified()
+            .unwrap();
+        assert_eq!(t0, t1, "an equal file is not rewritten");
+        assert_eq!(fs::read(d.join("old.bin")).unwrap(), b"new");
+        assert_eq!(out.written(), [d.join("same.json"), d.join("old.bin")]);
+        fs::write(d.join("in.png"), b"art").unwrap();
+        let e = out
+            .commit_changed(&named(&[("in.png", b"art")]))
+            .unwrap_err()
+            .to_string();
+        assert!(e.contains("in.png"), "{e}");
+        assert_eq!(names(&d), ["in.png", "old.bin", "same.json"]);
         fs::remove_dir_all(&d).unwrap();
     }
 

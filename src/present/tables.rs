@@ -136,6 +136,13 @@ impl CutResult {
     /// The `cut` command's text: the batch's notes, the table of the layers
     /// cut or unchanged (paths shown relative to `cwd`), and the total line.
     pub fn text(&self, cwd: &Path) -> String {
+        self.text_with(cwd, &[], None)
+    }
+
+    /// [`CutResult::text`] with `regions`' rows (sprite sheets' regions)
+    /// after the layers', and `regions_total` after the total line's
+    /// layers.
+    pub fn text_with(&self, cwd: &Path, regions: &[CutRow], regions_total: Option<&str>) -> String {
         let mut s = String::new();
         for n in &self.notes {
             s += &format!("note: {n}\n");
@@ -160,6 +167,7 @@ impl CutResult {
                     notes: n.notes.clone(),
                 }
             })
+            .chain(regions.iter().cloned())
             .collect();
         s += &cut_table(&rows);
         let count = |st| self.layers.iter().filter(|l| l.status == st).count();
@@ -169,8 +177,9 @@ impl CutResult {
             .filter_map(|l| l.numbers.as_ref())
             .map(|n| n.vertices)
             .sum();
+        let regions = regions_total.map(|t| format!("; {t}")).unwrap_or_default();
         s += &format!(
-            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices\n",
+            "total: {} layers ({} cut, {} unchanged, {} failed), {vertices} vertices{regions}\n",
             self.layers.len(),
             count(Status::Cut),
             count(Status::Unchanged),

@@ -296,7 +296,9 @@ pub fn allocate_scene(
             layers[i].spec.image.clone(),
             crate::settings::CutSettings { budget, ..s },
         ),
-        MeshSource::File(_) => unreachable!("free layers are cut on the fly"),
+        MeshSource::File(_) | MeshSource::Region(_) => {
+            unreachable!("free layers are cut on the fly")
+        }
     };
     let jobs: Vec<(PathBuf, crate::settings::CutSettings)> = free
         .iter()

@@ -170,8 +170,28 @@ pub fn exact_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> Exac
 /// texture's decoded levels, the regions those of [`crate::cut`]'s stage 1.
 pub fn exact_layer_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> ExactLayer {
     let map = sampled.level0();
+    let size = [map.width, map.height];
     let (safe, safe_area) = safe_opaque_sampled(sampled, settings);
     let (cover, cover_area) = must_cover_sampled(sampled, settings);
+    exact_runs(
+        (safe, safe_area),
+        (cover, cover_area),
+        size,
+        source,
+        settings,
+    )
+}
+
+/// The exact meshes of the regions `safe` and `cover` (half-texel cells of
+/// a layer of `size` texels, each with its area in texels), as
+/// [`exact_layer`]: two triangles a rectangle, four vertices a rectangle.
+pub fn exact_runs(
+    (safe, safe_area): (RowRuns, f64),
+    (cover, cover_area): (RowRuns, f64),
+    size: [u32; 2],
+    source: &str,
+    settings: &CutSettings,
+) -> ExactLayer {
     let rest = difference(&cover, &safe);
     let mut positions = Vec::new();
     let (mut opaque, mut blended) = (Vec::new(), Vec::new());
@@ -181,7 +201,7 @@ pub fn exact_layer_sampled(sampled: Sampled, source: &str, settings: &CutSetting
     for r in rectangles(&rest) {
         push_rect(r, &mut positions, &mut blended);
     }
-    let (w, h) = (map.width as f32, map.height as f32);
+    let (w, h) = (size[0] as f32, size[1] as f32);
     let uvs = positions
         .chunks_exact(2)
         .flat_map(|p| [p[0] / w, p[1] / h])
@@ -190,7 +210,7 @@ pub fn exact_layer_sampled(sampled: Sampled, source: &str, settings: &CutSetting
         format: FORMAT.to_string(),
         version: VERSION,
         source: source.to_string(),
-        size: [map.width, map.height],
+        size,
         filter: settings.filter,
         alpha: settings.alpha,
         wrap: settings.wrap,
@@ -234,6 +254,9 @@ pub fn exact_layers(layers: &[Layer]) -> Result<Vec<ExactLayer>, FileError> {
                 wrap: l.mesh.wrap,
             });
             let source = super::prepare::source_name(&l.spec.image);
+            if let Some(e) = super::region::exact_region(l)? {
+                return Ok(e);
+            }
             match &l.alpha {
                 Some(alpha) => Ok(exact_layer_sampled(
                     alpha.sampled(&settings),

@@ -11,6 +11,11 @@
 //!     "parallax": 0.1, "fill_width": true}]}
 //! ```
 //!
+//! A layer may be a region of a sprite sheet: `"region": NAME` (its
+//! regions file `"regions": FILE`, default `<image stem>.regions.json`
+//! beside the image), and a nine-slice region `"size": [w, h]`, the size it
+//! is drawn stretched to ([`MeshSource::Region`], see [`super::region`]).
+//!
 //! A texel (tx, ty) of a layer lands on screen at
 //! `(position.x + scale * tx - camera_x * parallax, position.y + scale * ty)`.
 //!
@@ -75,6 +80,15 @@ struct LayerJson {
     parallax: f64,
     #[serde(default)]
     fill_width: bool,
+    /// A region of the image (a sprite sheet) as the layer.
+    #[serde(default)]
+    region: Option<String>,
+    /// The regions file (default: `<image stem>.regions.json` beside it).
+    #[serde(default)]
+    regions: Option<PathBuf>,
+    /// The size a nine-slice region is drawn stretched to, texels.
+    #[serde(default)]
+    size: Option<[u32; 2]>,
     /// The old name of `fill_width`, refused with a message naming the new one.
     #[serde(default)]
     repeat_x: Option<serde::de::IgnoredAny>,
@@ -107,6 +121,23 @@ pub enum MeshSource {
     Cut(CutSettings),
     /// Read from a mesh file (resolved path).
     File(PathBuf),
+    /// Cut from a region of the image, a sprite sheet, with these settings
+    /// (the way it ships: on the whole sheet, uvs into the sheet).
+    Region(RegionLayer),
+}
+
+/// A layer that is a region of a sprite sheet.
+#[derive(Clone, Debug, PartialEq)]
+pub struct RegionLayer {
+    /// The cut settings.
+    pub settings: CutSettings,
+    /// The region's name in the regions file.
+    pub name: String,
+    /// The regions file (resolved path; it exists).
+    pub regions: PathBuf,
+    /// For a nine-slice region: the size it is drawn stretched to, texels
+    /// (each side at least the slices' insets).
+    pub size: Option<[u32; 2]>,
 }
 
 /// One layer of a scene, paths resolved against the scene file's folder.
@@ -164,8 +195,10 @@ impl Scene {
         let mut v = vec![self.path.clone()];
         for l in &self.layers {
             v.push(l.image.clone());
-            if let MeshSource::File(m) = &l.mesh {
-                v.push(m.clone());
+            match &l.mesh {
+                MeshSource::File(m) => v.push(m.clone()),
+                MeshSource::Region(r) => v.push(r.regions.clone()),
+                MeshSource::Cut(_) => {}
             }
         }
         v
@@ -315,6 +348,63 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
             return bad(
                 format!("{at}: image {} does not exist", image.display()),
                 "check the path; image and mesh paths are relative to the scene file's folder",
+            );
+        }
+        if l.region.is_none() && (l.regions.is_some() || l.size.is_some()) {
+            return bad(
+                format!("{at}: \"regions\" and \"size\" are for a region of a sprite sheet, but no \"region\" is given"),
+                "add \"region\": NAME (a region of the image's regions file), or remove them",
+            );
+        }
+        if let (Some(name), None) = (&l.region, &l.mesh) {
+            let regions = match &l.regions {
+                Some(r) => dir.join(r),
+                None => {
+                    let stem = image.file_stem().unwrap_or_default().to_string_lossy();
+                    image.with_file_name(format!("{stem}.regions.json"))
+                }
+            };
+            if !regions.is_file() {
+                return bad(
+                    format!("{at}: regions file {} does not exist", regions.display()),
+                    "give \"regions\": FILE, or put <image stem>.regions.json beside the image (`underdraw cut IMAGE --find-regions` writes one)",
+                );
+            }
+            let settings = CutSettings::default().with(&l.cut.unwrap_or_default());
+            if let Err(e) = settings.validate() {
+                return bad(format!("{at}.cut: {e}"), &cut_hint(e));
+            }
+            if l.size.is_some_and(|[w, h]| {
+                w == 0 || h == 0 || w > MAX_VIEWPORT * 4 || h > MAX_VIEWPORT * 4
+            }) {
+                return bad(
+                    format!(
+                        "{at}: size {:?} is not a usable panel size",
+                        l.size.unwrap_or_default()
+                    ),
+                    "give \"size\": [width, height] in texels, at least the panel's slice insets",
+                );
+            }
+            layers.push(LayerSpec {
+                name: l.name,
+                image,
+                mesh: MeshSource::Region(RegionLayer {
+                    settings,
+                    name: name.clone(),
+                    regions,
+                    size: l.size,
+                }),
+                position: l.position,
+                scale: l.scale,
+                parallax: l.parallax,
+                fill_width: l.fill_width,
+            });
+            continue;
+        }
+        if l.region.is_some() {
+            return bad(
+                format!("{at}: has both a \"region\" and a \"mesh\" file"),
+                "keep one: a region is cut from the sheet when the scene is loaded",
             );
         }
         let mesh = match (l.cut, l.mesh) {

@@ -3,6 +3,8 @@
 //!
 //! * [`file`](mod@file): the scene file and its validation ([`file::load_scene`]).
 //! * [`prepare`]: each layer's mesh, cut on the fly or read from a file.
+//! * [`region`]: layers that are regions of a sprite sheet (a nine-slice
+//!   panel drawn stretched), cut and floored on the whole sheet.
 //! * [`draws`]: the draws of a frame per [`draws::Strategy`] and camera position.
 //! * [`exact`]: the floor, every layer drawn as exactly its regions.
 //! * [`score`]: every strategy at every camera sample measured with
@@ -20,6 +22,7 @@ pub mod exact;
 pub mod export;
 pub mod file;
 pub mod prepare;
+pub mod region;
 pub mod report;
 pub mod run;
 pub mod score;

@@ -42,6 +42,7 @@ impl Layer {
     pub fn cut_settings(&self) -> Option<CutSettings> {
         match self.spec.mesh {
             MeshSource::Cut(s) => Some(s),
+            MeshSource::Region(ref r) => Some(r.settings),
             MeshSource::File(_) => None,
         }
     }
@@ -124,7 +125,7 @@ pub fn decode_images_with(
     let mut paths: Vec<&PathBuf> = scene
         .layers
         .iter()
-        .filter(|l| matches!(l.mesh, MeshSource::Cut(_)))
+        .filter(|l| matches!(l.mesh, MeshSource::Cut(_) | MeshSource::Region(_)))
         .map(|l| &l.image)
         .collect();
     paths.sort();
@@ -223,7 +224,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
         .iter()
         .filter_map(|l| match l.mesh {
             MeshSource::Cut(s) => Some((l.image.clone(), s)),
-            MeshSource::File(_) => None,
+            MeshSource::File(_) | MeshSource::Region(_) => None,
         })
         .collect();
     let cuts = cut_all(&jobs, &maps);
@@ -241,6 +242,18 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
                     spec: spec.clone(),
                     mesh,
                     alpha: Some(maps[&spec.image].clone()),
+                    notes,
+                })
+            }
+            MeshSource::Region(r) => {
+                // cut the way it ships: from the sheet's texels, whole-sheet regions
+                let (mesh, mut notes) =
+                    super::region::cut_region_layer(&spec.image, maps[&spec.image].level0(), r)?;
+                notes.splice(0..0, decoded[&spec.image].1.iter().cloned());
+                Ok(Layer {
+                    spec: spec.clone(),
+                    mesh,
+                    alpha: None,
                     notes,
                 })
             }

@@ -1,6 +1,8 @@
 //! Sprite sheets: many images in one texture, each named region cut as its
 //! own layer that an engine draws from the sheet.
 //!
+//! * [`batch`]: sheets found in a `cut` batch (a PNG with a sibling
+//!   `<stem>.regions.json`).
 //! * [`regions`]: the regions file (`underdraw.regions`, version 1).
 //! * [`find`]: regions found from the sheet's alpha (groups of visible
 //!   texels separated by transparent ones), in reading order.
@@ -18,6 +20,7 @@
 //! Every region mesh is verified by the independent
 //! [`crate::check::check_region_mesh`] before it is returned.
 
+pub mod batch;
 pub mod find;
 pub mod frames;
 pub mod padding;

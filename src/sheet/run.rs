@@ -1,8 +1,11 @@
 //! A sheet's whole run: read the sheet and its regions (from a file, or
 //! found and written to `OUT/<stem>.regions.json`), cut every region with
 //! its settings, write `OUT/<stem>/<name>.mesh.json` (and glTF) per region.
-//! Every file is written atomically, and left untouched when it already
-//! holds the same bytes; no input is ever written over.
+//! Every file goes out through one [`OutputFolder`]: a region's files (its
+//! mesh, its glTF asset, its frames' meshes with `--per-frame`) are
+//! committed together, the found regions file is written through it too,
+//! no input is ever written over, a file already holding its bytes is left
+//! untouched, and every file is recorded ([`SheetReport::written`]).
 
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
@@ -10,8 +13,8 @@ use super::{cut_region, RegionCut, SheetAnalysis};
 use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
 use crate::error::{FileError, Setting};
-use crate::export::gltf::{relative_uri, write_glb_with, write_gltf_with};
-use crate::io::{load_layer, write_if_changed, ImageLimits};
+use crate::export::gltf::{glb_file, gltf_files, relative_uri};
+use crate::io::{load_layer, ImageLimits, NamedBytes, OutputFolder};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use crate::settings::PartialSettings;
@@ -40,8 +43,13 @@ pub struct SheetRequest {
     pub regions: RegionSource,
     /// The output folder.
     pub out: PathBuf,
-    /// A settings file, its patterns matched against `<stem>/<name>`.
+    /// A settings file, its patterns matched against
+    /// `<match_prefix><stem>/<name>`.
     pub settings_file: Option<PathBuf>,
+    /// What comes before `<stem>/<name>` when the settings file's patterns
+    /// are matched: the sheet's folder relative to the batch's input folder
+    /// with a trailing `/` (empty for a sheet given directly).
+    pub match_prefix: String,
     /// The settings before the file.
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
@@ -80,6 +88,8 @@ pub struct SheetReport {
     pub warnings: Vec<String>,
     /// Per region, in the file's order.
     pub regions: Vec<RegionResult>,
+    /// Every file written through the run's output folder, in order.
+    pub written: Vec<PathBuf>,
 }
 
 impl SheetReport {
@@ -107,18 +117,20 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         .map(|s| s.to_string_lossy().into_owned())
         .unwrap_or_default();
     let size = (sheet.width, sheet.height);
-    std::fs::create_dir_all(&req.out).map_err(|e| {
-        FileError::new(
-            &req.out,
-            format!("cannot be created ({e})"),
-            "give an output folder you can write to",
-        )
-    })?;
-    let inputs: Vec<&Path> = match &req.regions {
-        RegionSource::File(p) => vec![req.sheet.as_path(), p.as_path()],
-        RegionSource::Find { .. } => vec![req.sheet.as_path()],
-    };
-    let would_replace_input = |dest: &Path| inputs.iter().any(|i| same_file(i, dest));
+    let inputs: Vec<PathBuf> = std::iter::once(req.sheet.clone())
+        .chain(req.regions_path().map(Path::to_path_buf))
+        .chain(req.settings_file.clone())
+        .collect();
+    let mut out = OutputFolder::create(
+        &req.out,
+        inputs,
+        "output folder",
+        "give an output folder you can write to",
+    )?
+    .with_refusal(
+        "is an input of this run: a sheet's output would be written over it",
+        &format!("give another {} folder", Setting::Out),
+    );
     let mut regions_written = None;
     let regions: Vec<SheetRegion> = match &req.regions {
         RegionSource::File(p) => load_regions(p, size)?,
@@ -134,14 +146,9 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
             let names = region_names(&stem, found.len());
             let file = RegionsFile::plain(&names.into_iter().zip(found).collect::<Vec<_>>());
             let text = file.to_text();
-            let dest = req.out.join(format!("{stem}.regions.json"));
-            if would_replace_input(&dest) {
-                return Err(FileError::new(
-                    &dest,
-                    "is an input of this run: the found regions would be written over it",
-                    format!("give another {} folder", Setting::Out),
-                ));
-            }
+            let name = format!("{stem}.regions.json");
+            let dest = out.path(&name);
+            out.refuse_inputs(&name)?;
             if !replace
                 && dest.exists()
                 && std::fs::read(&dest).ok().as_deref() != Some(text.as_bytes())
@@ -152,7 +159,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                     format!("cut with {} to use it, or add {} to replace it with the regions found", Setting::Regions.given("FILE"), Setting::Force),
                 ));
             }
-            write_if_changed(&dest, text.as_bytes())?;
+            out.write(&name, text.as_bytes())?;
             regions_written = Some(dest.clone());
             parse_regions(&dest, &text, size)?
         }
@@ -175,7 +182,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
     for r in &regions {
         let mut s = req.base;
         if let Some(f) = &settings_file {
-            f.apply(&format!("{stem}/{}", r.name), &mut s);
+            f.apply(&format!("{}{stem}/{}", req.match_prefix, r.name), &mut s);
         }
         req.overrides.apply(&mut s);
         s.validate().map_err(|e| {
@@ -217,20 +224,15 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
             ),
         ));
     }
-    for r in &regions {
+    // refused before anything of a region is written
+    for (name, _) in &stems {
         for p in [".mesh.json", ".gltf", ".bin", ".glb"] {
-            let dest = dir.join(format!("{}{p}", r.name));
-            if would_replace_input(&dest) {
-                return Err(FileError::new(
-                    &dest,
-                    "is an input of this run: a region's output would be written over it",
-                    format!("give another {} folder", Setting::Out),
-                ));
-            }
+            out.refuse_inputs(&format!("{stem}/{name}{p}"))?;
         }
     }
     let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
-    let results: Vec<RegionResult> = regions
+    // cut in parallel, each region's files as named bytes
+    let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), String>> = regions
         .par_iter()
         .zip(&settings)
         .map(|(r, s)| {
@@ -238,37 +240,37 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
                 .iter()
                 .find(|a| a.serves(s))
                 .expect("analyzed above");
-            let cut = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame);
-            let mut outputs = Vec::new();
-            let cut = cut.and_then(|c| {
-                write_mesh(
-                    &dir,
-                    &r.name,
-                    &c.mesh,
-                    &req.outputs,
-                    &image_uri,
-                    &mut outputs,
-                )?;
-                for (k, m) in &c.per_frame {
-                    let name = format!("{}.{k}", r.name);
-                    write_mesh(&dir, &name, m, &req.outputs, &image_uri, &mut outputs)?;
-                }
-                Ok(c)
-            });
-            RegionResult {
-                region: r.clone(),
-                settings: *s,
-                cut,
-                outputs,
+            let c = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame)?;
+            let mut files = mesh_files(&dir, &stem, &r.name, &c.mesh, &req.outputs, &image_uri)?;
+            for (k, m) in &c.per_frame {
+                let name = format!("{}.{k}", r.name);
+                files.extend(mesh_files(&dir, &stem, &name, m, &req.outputs, &image_uri)?);
             }
+            Ok((c, files))
         })
         .collect();
+    // then each region's group committed, in the file's order
+    let mut results = Vec::with_capacity(regions.len());
+    for ((r, s), cut) in regions.iter().zip(&settings).zip(cuts) {
+        let before = out.written().len();
+        let cut = cut.and_then(|(c, files)| {
+            out.commit_changed(&files).map_err(|e| e.to_string())?;
+            Ok(c)
+        });
+        results.push(RegionResult {
+            region: r.clone(),
+            settings: *s,
+            cut,
+            outputs: out.written()[before..].to_vec(),
+        });
+    }
     Ok(SheetReport {
         sheet: req.sheet.clone(),
         stem,
         regions_written,
         warnings: layer.warnings,
         regions: results,
+        written: out.written().to_vec(),
     })
 }
 
@@ -290,40 +292,30 @@ impl SheetRequest {
     }
 }
 
-/// Writes one mesh's outputs into `dir` as `<name>.*`.
-fn write_mesh(
+/// One mesh's files, named `<stem>/<name>.*` in the output folder: the
+/// mesh file, then its glTF asset (`.bin` before `.gltf`) or GLB, as
+/// `outputs` asks. `dir` is `OUT/<stem>` (named by the glTF refusals).
+fn mesh_files(
     dir: &Path,
+    stem: &str,
     name: &str,
     mesh: &LayerMesh,
     outputs: &Outputs,
     image_uri: &str,
-    written: &mut Vec<PathBuf>,
-) -> Result<(), String> {
+) -> Result<Vec<NamedBytes>, String> {
+    let mut files = Vec::new();
     if outputs.json {
-        let dest = dir.join(format!("{name}.mesh.json"));
         let json = serde_json::to_vec_pretty(mesh).expect("a mesh serializes");
-        write_if_changed(&dest, &json).map_err(|e| e.to_string())?;
-        written.push(dest);
+        files.push((format!("{stem}/{name}.mesh.json"), json));
     }
+    let format = outputs.vertex_format;
     if outputs.gltf {
-        written.extend(
-            write_gltf_with(mesh, image_uri, dir, name, outputs.vertex_format)
-                .map_err(|e| e.to_string())?,
-        );
+        let assets = gltf_files(mesh, image_uri, dir, name, format).map_err(|e| e.to_string())?;
+        files.extend(assets.into_iter().map(|(n, b)| (format!("{stem}/{n}"), b)));
     }
     if outputs.glb {
-        written.extend(
-            write_glb_with(mesh, image_uri, dir, name, outputs.vertex_format)
-                .map_err(|e| e.to_string())?,
-        );
+        let (n, b) = glb_file(mesh, image_uri, dir, name, format).map_err(|e| e.to_string())?;
+        files.push((format!("{stem}/{n}"), b));
     }
-    Ok(())
-}
-
-/// Whether two paths name the same existing file.
-fn same_file(a: &Path, b: &Path) -> bool {
-    match (a.canonicalize(), b.canonicalize()) {
-        (Ok(a), Ok(b)) => a == b,
-        _ => false,
-    }
+    Ok(files)
 }

@@ -189,8 +189,10 @@ pub(crate) fn cut(
         },
         texture: args.texture.clone(),
     };
-    let plan = batch::plan(&request)?;
-    if plan.jobs.is_empty() {
+    let mut plan = batch::plan(&request)?;
+    // PNGs with a `<stem>.regions.json` beside them are cut as sheets
+    let sheets = underdraw::sheet::batch::take_sheets(&mut plan, &request, false, limits);
+    if plan.jobs.is_empty() && sheets.is_empty() {
         // nothing to cut: a typo in a path or a pattern must not pass silently
         let mut lines: Vec<Line> = plan
             .empty
@@ -212,15 +214,32 @@ pub(crate) fn cut(
     } else {
         indicatif::ProgressBar::hidden()
     };
-    let report = batch::run(&plan, &options, &|_| progress.inc(1));
+    let report = if plan.jobs.is_empty() {
+        Ok(batch::BatchReport {
+            layers: Vec::new(),
+            notes: Vec::new(),
+            manifest_error: None,
+        })
+    } else {
+        batch::run(&plan, &options, &|_| progress.inc(1))
+    };
     progress.finish_and_clear();
+    let (sheet_reports, sheet_errors) = crate::sheet::run_found(&sheets);
     let report = report?;
     let result = CutResult::new(&report, &plan.empty);
+    let (region_rows, regions_total) = crate::sheet::region_rows(&sheet_reports);
     if print.json {
-        println!("{}", to_json(&result));
+        let mut objects = serde_json::to_value(&result).expect("plain values serialize");
+        if let Some(list) = objects.as_array_mut() {
+            list.extend(crate::sheet::found_json(&sheet_reports));
+        }
+        println!("{}", to_json(&objects));
     } else if print.text() {
         let cwd = std::env::current_dir().unwrap_or_default();
-        print!("{}", result.text(&cwd));
+        print!(
+            "{}",
+            result.text_with(&cwd, &region_rows, regions_total.as_deref())
+        );
     }
     let failed: Vec<&LayerReport> = report
         .layers
@@ -252,6 +271,7 @@ pub(crate) fn cut(
                 .map(|e| Line::Error(e.to_string())),
         );
     }
+    lines.extend(sheet_errors);
     if lines.is_empty() {
         Ok(ExitCode::SUCCESS)
     } else {

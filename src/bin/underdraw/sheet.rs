@@ -56,6 +56,7 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             },
             out: args.out.to_path_buf(),
             settings_file: args.settings.map(Path::to_path_buf),
+            match_prefix: String::new(),
             base: args.base,
             overrides: args.overrides,
             outputs: args.outputs,
@@ -108,16 +109,63 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
 }
 
 fn print_table(reports: &[SheetReport]) {
+    let (rows, _) = region_rows(reports);
+    print!("{}", table::cut_table(&rows));
+    let (count, failed, vertices) = region_counts(reports);
+    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+}
+
+/// Regions cut, failed, and the vertices of those cut.
+fn region_counts(reports: &[SheetReport]) -> (usize, usize, usize) {
+    let cut = reports
+        .iter()
+        .flat_map(|r| &r.regions)
+        .filter_map(|g| g.cut.as_ref().ok());
+    let vertices = cut.clone().map(|c| c.mesh.vertex_count()).sum();
+    let failed = reports.iter().map(|r| r.failed()).sum();
+    (cut.count(), failed, vertices)
+}
+
+/// The sheets a `cut` batch found (PNGs with a `<stem>.regions.json`
+/// beside them), each run: the reports, and the errors of the sheets and
+/// regions that failed.
+pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Line>) {
+    let mut reports = Vec::new();
+    let mut errors = Vec::new();
+    for req in requests {
+        match run_sheet(req) {
+            Ok(r) => reports.push(r),
+            Err(e) => errors.push(Line::Error(e.to_string())),
+        }
+    }
+    for r in &reports {
+        for g in &r.regions {
+            if let Err(e) = &g.cut {
+                errors.push(Line::Error(format!(
+                    "{}: region {:?}: {e}",
+                    r.sheet.display(),
+                    g.region.name
+                )));
+            }
+        }
+    }
+    (reports, errors)
+}
+
+/// The `--json` objects of the regions of sheets a batch found.
+pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<serde_json::Value> {
+    reports.iter().flat_map(json_lines).collect()
+}
+
+/// One table row per region cut (`<stem>/<name>`), and the total line's
+/// words for them (none without sheets).
+pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, Option<String>) {
     let mut rows = Vec::new();
-    let mut vertices = 0;
-    let mut count = 0;
     for r in reports {
         for g in &r.regions {
             let Ok(c) = &g.cut else { continue };
             let s = &c.mesh.stats;
             let numbers = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
-            vertices += c.mesh.vertex_count();
-            count += 1;
             rows.push(table::CutRow {
                 layer: format!("{}/{}", r.stem, g.region.name),
                 status: "cut".into(),
@@ -132,9 +180,14 @@ fn print_table(reports: &[SheetReport]) {
             });
         }
     }
-    print!("{}", table::cut_table(&rows));
-    let failed: usize = reports.iter().map(|r| r.failed()).sum();
-    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+    let (count, failed, vertices) = region_counts(reports);
+    let total = (!reports.is_empty()).then(|| {
+        format!(
+            "{count} regions of {} sheet(s) cut ({failed} failed), {vertices} vertices",
+            reports.len()
+        )
+    });
+    (rows, total)
 }
 
 fn json_lines(r: &SheetReport) -> Vec<serde_json::Value> {

@@ -1,0 +1,175 @@
+//! Scene layers that are regions of a sprite sheet (the demo UI sheet): a
+//! button region and the nine-slice panel stretched to three sizes score,
+//! the button's exported mesh passes `check` as a region of the sheet, and
+//! each stretched panel's fragments equal those of its mesh's triangles
+//! placed by their slice anchors (the engine's rule, written here) and
+//! rasterized here with the top-left rule at pixel centres (Direct3D 11
+//! rasterization rules, from memory), vertices snapped to 1/256 pixel.
+
+mod common;
+mod sheet_support;
+use common::TempDir;
+use sheet_support::{load, run, status, text};
+use std::path::Path;
+use underdraw::mesh::LayerMesh;
+
+const PANELS: [([u32; 2], [u32; 2]); 3] = [
+    ([96, 64], [20, 20]),
+    ([300, 100], [140, 20]),
+    ([60, 200], [20, 120]),
+];
+
+fn root() -> &'static Path {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+}
+
+/// Positions of a panel mesh drawn `size` texels: column 0 at dx, 1 at
+/// left + dx * (W' - left - right) / (w - left - right), 2 at W' - right +
+/// dx; rows alike (the README's rule for engines).
+fn stretched(m: &LayerMesh, size: [u32; 2]) -> Vec<[f64; 2]> {
+    let r = m.region.as_ref().unwrap();
+    let [l, t, rr, b] = r.slices.unwrap().map(|v| v as f64);
+    let (w, h) = (m.size[0] as f64, m.size[1] as f64);
+    let (tw, th) = (size[0] as f64, size[1] as f64);
+    let place = |k: f32, d: f32, lo: f64, hi: f64, n: f64, to: f64| match k as u32 {
+        0 => d as f64,
+        1 => lo + d as f64 * (to - lo - hi) / (n - lo - hi),
+        _ => to - hi + d as f64,
+    };
+    r.slice_positions
+        .as_ref()
+        .unwrap()
+        .iter()
+        .map(|a| {
+            [
+                place(a[0], a[2], l, rr, w, tw),
+                place(a[1], a[3], t, b, h, th),
+            ]
+        })
+        .collect()
+}
+
+/// Pixel centres covered by triangle `p` (pixels), top-left rule, vertices
+/// snapped to 1/256 pixel; exact in integers.
+fn covered(p: [[f64; 2]; 3]) -> u64 {
+    let s = p.map(|v| v.map(|c| (c * 256.0).round() as i64));
+    let area =
+        (s[1][0] - s[0][0]) * (s[2][1] - s[0][1]) - (s[1][1] - s[0][1]) * (s[2][0] - s[0][0]);
+    if area == 0 {
+        return 0;
+    }
+    // counter-clockwise in a y-down frame after this: the interior is where
+    // every edge function is positive
+    let s = if area > 0 { s } else { [s[0], s[2], s[1]] };
+    let min = |k: usize| s.iter().map(|v| v[k]).min().unwrap() / 256 - 1;
+    let max = |k: usize| s.iter().map(|v| v[k]).max().unwrap() / 256 + 1;
+    let mut n = 0;
+    for py in min(1)..=max(1) {
+        for px in min(0)..=max(0) {
+            let c = [px * 256 + 128, py * 256 + 128];
+            let inside = (0..3).all(|i| {
+                let (a, b) = (s[i], s[(i + 1) % 3]);
+                let e = (b[0] - a[0]) * (c[1] - a[1]) - (b[1] - a[1]) * (c[0] - a[0]);
+                // y down, interior on the positive side: a top edge runs
+                // left to right (dy == 0, dx > 0), a left edge upward... on
+                // screen with y down, "left" edges have dy < 0
+                let (dx, dy) = (b[0] - a[0], b[1] - a[1]);
+                let top_left = (dy == 0 && dx > 0) || dy < 0;
+                e > 0 || (e == 0 && top_left)
+            });
+            n += inside as u64;
+        }
+    }
+    n
+}
+
+#[test]
+fn region_layers_and_stretched_panels_score_as_shipped() {
+    let dir = TempDir::new("scene-region");
+    for f in ["ui-sheet.png", "ui-sheet.regions.json"] {
+        std::fs::copy(root().join("demo-sheets").join(f), dir.path(f)).unwrap();
+    }
+    let mut layers = vec![serde_json::json!({
+        "name": "play", "image": "ui-sheet.png", "region": "button-play",
+        "cut": {"budget": 24}, "position": [400, 250], "parallax": 0.0})];
+    for (k, (size, at)) in PANELS.iter().enumerate() {
+        layers.push(serde_json::json!({
+            "name": format!("panel-{k}"), "image": "ui-sheet.png", "region": "panel",
+            "size": size, "cut": {"budget": 24}, "position": at, "parallax": 0.0}));
+    }
+    let scene = serde_json::json!({"viewport": [640, 360],
+        "camera": {"travel": 0, "samples": 1}, "layers": layers});
+    let path = dir.path("ui.scene.json");
+    std::fs::write(&path, serde_json::to_vec_pretty(&scene).unwrap()).unwrap();
+    let (out, export) = (dir.path("out"), dir.path("export"));
+    let o = run(&[
+        "--json",
+        "scene",
+        path.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+        "--export",
+        export.to_str().unwrap(),
+        "--dump-frame",
+        "0",
+    ]);
+    status(&o, 0, "scene with region layers");
+    let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert!(
+        report.to_string().contains("panel-2"),
+        "{}",
+        text(&o.stdout)
+    );
+    // the button's mesh is a region of the sheet: check holds on the sheet
+    let sheet = dir.path("ui-sheet.png");
+    let play = export.join("play.mesh.json");
+    assert!(load(&play).region.is_some());
+    let c = run(&["check", play.to_str().unwrap(), sheet.to_str().unwrap()]);
+    status(&c, 0, "check the button region");
+    // the panel as `cut --regions` cuts it, at the scene's budget
+    let cut_dir = dir.path("cut");
+    let c = run(&[
+        "cut",
+        sheet.to_str().unwrap(),
+        "--regions",
+        dir.path("ui-sheet.regions.json").to_str().unwrap(),
+        "--out",
+        cut_dir.to_str().unwrap(),
+        "--budget",
+        "24",
+    ]);
+    status(&c, 0, "cut the sheet");
+    let panel = load(&cut_dir.join("ui-sheet/panel.mesh.json"));
+    let c = run(&[
+        "check",
+        cut_dir.join("ui-sheet/panel.mesh.json").to_str().unwrap(),
+        sheet.to_str().unwrap(),
+    ]);
+    status(&c, 0, "check the panel region");
+    // the outline strategy's counts (every triangle blended, no depth): the
+    // UI layers do not overlap, so a panel's screen box holds its fragments
+    let counts = image::open(out.join("counts-0-outline.png"))
+        .unwrap()
+        .into_luma16();
+    for (size, at) in PANELS {
+        let pos = stretched(&panel, size);
+        let mut want = 0;
+        for list in [&panel.opaque.indices, &panel.blended.indices] {
+            for t in list.chunks_exact(3) {
+                let p = [0, 1, 2].map(|i| {
+                    let v = pos[t[i] as usize];
+                    [v[0] + at[0] as f64, v[1] + at[1] as f64]
+                });
+                want += covered(p);
+            }
+        }
+        let mut got = 0u64;
+        for y in at[1]..at[1] + size[1] {
+            for x in at[0]..at[0] + size[0] {
+                got += counts.get_pixel(x, y).0[0] as u64;
+            }
+        }
+        assert!(want > (size[0] * size[1]) as u64 / 2, "{size:?}: {want}");
+        assert_eq!(got, want, "panel drawn {size:?}: scored vs rasterized here");
+    }
+}
