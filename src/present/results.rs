@@ -250,3 +250,86 @@ pub struct SweepResult {
     /// The files written (the CSV).
     pub outputs: Vec<String>,
 }
+
+/// One region of a sprite sheet in `cut --json` (with `--regions`,
+/// `--find-regions`, or a sheet a batch found): the sheet, the region, its
+/// rectangle, the files written and its numbers, or why it failed.
+#[derive(Clone, Debug, Serialize)]
+pub struct SheetRegionLine {
+    /// The sheet's path.
+    pub sheet: String,
+    /// The region's name.
+    pub region: String,
+    /// The region's rectangle in the sheet: x, y, width, height.
+    pub rect: [u32; 4],
+    /// The files written for it.
+    pub outputs: Vec<String>,
+    /// `cut` or `failed`.
+    pub status: Status,
+    /// Its numbers, when it was cut.
+    #[serde(flatten)]
+    pub numbers: Option<SheetRegionNumbers>,
+    /// Why it failed.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub error: Option<String>,
+}
+
+/// A cut region's numbers in `cut --json`.
+#[derive(Clone, Debug, Serialize)]
+pub struct SheetRegionNumbers {
+    /// Vertices of both meshes together.
+    pub vertices: usize,
+    /// Opaque capture; null where the safe-opaque region is empty.
+    pub opaque_capture: Option<f64>,
+    /// Area covered beyond the must-cover region, texels.
+    pub excess: f64,
+    /// The excess as a share of the covered area.
+    pub excess_share: f64,
+    /// The must-cover region's area, texels.
+    pub must_cover_area: f64,
+    /// The cutter's notes.
+    pub notes: Vec<String>,
+    /// Warnings (padding, quality), each with what to try.
+    pub warnings: Vec<String>,
+}
+
+impl SheetRegionLine {
+    /// The lines of a sheet's run, one per region, in the regions' order.
+    pub fn of_sheet(r: &crate::sheet::run::SheetReport) -> Vec<SheetRegionLine> {
+        r.regions
+            .iter()
+            .map(|g| {
+                let (numbers, error) = match &g.cut {
+                    Ok(c) => {
+                        let s = &c.mesh.stats;
+                        let n = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
+                        let numbers = SheetRegionNumbers {
+                            vertices: c.mesh.vertex_count(),
+                            opaque_capture: n.capture(),
+                            excess: s.excess(),
+                            excess_share: n.excess_share(),
+                            must_cover_area: s.must_cover_area,
+                            notes: c.notes.clone(),
+                            warnings: c.warnings.iter().cloned().chain(n.warnings(None)).collect(),
+                        };
+                        (Some(numbers), None)
+                    }
+                    Err(e) => (None, Some(e.to_string())),
+                };
+                SheetRegionLine {
+                    sheet: r.sheet.display().to_string(),
+                    region: g.region.name.clone(),
+                    rect: g.region.rect.to_array(),
+                    outputs: g.outputs.iter().map(|p| p.display().to_string()).collect(),
+                    status: if numbers.is_some() {
+                        Status::Cut
+                    } else {
+                        Status::Failed
+                    },
+                    numbers,
+                    error,
+                }
+            })
+            .collect()
+    }
+}

@@ -21,7 +21,7 @@ pub fn cut_frames(
     place: &Placement,
     frames: &[Rect],
     per_frame: bool,
-) -> Result<FramesCut, String> {
+) -> Result<FramesCut, super::RegionError> {
     let budget = place.settings.budget;
     let shared = place.cut(frames, budget)?;
     let mut notes = shared.notes;

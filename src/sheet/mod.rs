@@ -80,6 +80,36 @@ pub struct RegionCut {
     pub per_frame: Vec<(usize, LayerMesh)>,
 }
 
+/// Why a region of a sheet has no mesh.
+#[derive(Debug, Clone, thiserror::Error)]
+pub enum RegionError {
+    /// A nine-slice panel's pieces need more vertices than the budget.
+    #[error("the nine-slice panel's {pieces} pieces are cut one by one (no triangle may cross a slice line) and need {needed} vertices together at {per_piece} a piece, over the budget of {budget}\n  hint: raise the budget to at least {needed}")]
+    SlicesOverBudget {
+        /// Non-empty pieces of the panel.
+        pieces: usize,
+        /// Vertices the pieces need together at their least.
+        needed: usize,
+        /// The least vertices a piece is cut with.
+        per_piece: usize,
+        /// The region's budget.
+        budget: usize,
+    },
+    /// The mesh made fails the independent check: a bug in underdraw.
+    #[error(
+        "internal error: the {what} fails the check ({why}); please report it with this sheet"
+    )]
+    FailsCheck {
+        /// Which mesh ("region's mesh", "joined nine-slice mesh").
+        what: &'static str,
+        /// The check's violations or error.
+        why: String,
+    },
+    /// An output of the region cannot be made or written.
+    #[error("{0}")]
+    Output(#[from] crate::error::FileError),
+}
+
 /// Cuts one region of `sheet` (file name `sheet_name`) with `settings`,
 /// using the whole sheet's `analysis` (which must
 /// [serve](SheetAnalysis::serves) them). `per_frame` also cuts each frame
@@ -91,7 +121,7 @@ pub fn cut_region(
     region: &SheetRegion,
     settings: &CutSettings,
     per_frame: bool,
-) -> Result<RegionCut, String> {
+) -> Result<RegionCut, RegionError> {
     let place = Placement {
         sheet,
         sheet_name,
@@ -178,7 +208,7 @@ impl Placement<'_> {
     /// Cuts the rectangle `frames[0]` at `budget`: safe where every frame's
     /// clipped safe region is, covering what any frame's must-cover
     /// region holds; checked by the independent checker.
-    pub fn cut(&self, frames: &[Rect], budget: usize) -> Result<CutOutcome, String> {
+    pub fn cut(&self, frames: &[Rect], budget: usize) -> Result<CutOutcome, RegionError> {
         let first = frames[0];
         let mut safe = clip(&self.analysis.safe, first);
         let mut cover = clip(&self.analysis.cover, first);
@@ -215,8 +245,10 @@ impl Placement<'_> {
             &check,
         );
         // the fallback is checked too: a mesh that fails is never returned
-        check(&out.mesh)
-            .map_err(|why| format!("internal error: the region's mesh fails the check ({why}); please report it with this sheet"))?;
+        check(&out.mesh).map_err(|why| RegionError::FailsCheck {
+            what: "region's mesh",
+            why,
+        })?;
         self.locate(&mut out.mesh, key);
         Ok(out)
     }

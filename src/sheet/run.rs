@@ -9,7 +9,7 @@
 
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
-use super::{cut_region, RegionCut, SheetAnalysis};
+use super::{cut_region, RegionCut, RegionError, SheetAnalysis};
 use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
 use crate::error::{FileError, Setting};
@@ -70,7 +70,7 @@ pub struct RegionResult {
     /// Its settings.
     pub settings: CutSettings,
     /// The cut, or why it failed.
-    pub cut: Result<RegionCut, String>,
+    pub cut: Result<RegionCut, RegionError>,
     /// Files written (or already holding these bytes).
     pub outputs: Vec<PathBuf>,
 }
@@ -232,7 +232,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
     }
     let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
     // cut in parallel, each region's files as named bytes
-    let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), String>> = regions
+    let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), RegionError>> = regions
         .par_iter()
         .zip(&settings)
         .map(|(r, s)| {
@@ -254,7 +254,7 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
     for ((r, s), cut) in regions.iter().zip(&settings).zip(cuts) {
         let before = out.written().len();
         let cut = cut.and_then(|(c, files)| {
-            out.commit_changed(&files).map_err(|e| e.to_string())?;
+            out.commit_changed(&files)?;
             Ok(c)
         });
         results.push(RegionResult {
@@ -302,7 +302,7 @@ fn mesh_files(
     mesh: &LayerMesh,
     outputs: &Outputs,
     image_uri: &str,
-) -> Result<Vec<NamedBytes>, String> {
+) -> Result<Vec<NamedBytes>, RegionError> {
     let mut files = Vec::new();
     if outputs.json {
         let json = serde_json::to_vec_pretty(mesh).expect("a mesh serializes");
@@ -310,11 +310,11 @@ fn mesh_files(
     }
     let format = outputs.vertex_format;
     if outputs.gltf {
-        let assets = gltf_files(mesh, image_uri, dir, name, format).map_err(|e| e.to_string())?;
+        let assets = gltf_files(mesh, image_uri, dir, name, format)?;
         files.extend(assets.into_iter().map(|(n, b)| (format!("{stem}/{n}"), b)));
     }
     if outputs.glb {
-        let (n, b) = glb_file(mesh, image_uri, dir, name, format).map_err(|e| e.to_string())?;
+        let (n, b) = glb_file(mesh, image_uri, dir, name, format)?;
         files.push((format!("{stem}/{n}"), b));
     }
     Ok(files)

@@ -14,6 +14,7 @@
 
 use super::regions::Rect;
 use super::Placement;
+use super::RegionError;
 use crate::check::check_region_mesh;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList};
 use crate::outline::Point;
@@ -43,7 +44,7 @@ pub fn cut_sliced(
     place: &Placement,
     rect: Rect,
     [l, t, r, b]: [u32; 4],
-) -> Result<(LayerMesh, Vec<String>), String> {
+) -> Result<(LayerMesh, Vec<String>), RegionError> {
     let cols = slice_lines(rect.w, l, r);
     let rows = slice_lines(rect.h, t, b);
     let mut pieces = Vec::new();
@@ -67,7 +68,7 @@ pub fn cut_sliced(
     // gains most (opaque area minus covered area, the fitter's own measure)
     // per vertex it adds to the joined mesh, while the joined mesh fits.
     let mut cache: HashMap<(usize, usize), (LayerMesh, Vec<String>)> = HashMap::new();
-    let mut cut_at = |k: usize, b: usize| -> Result<(LayerMesh, Vec<String>), String> {
+    let mut cut_at = |k: usize, b: usize| -> Result<(LayerMesh, Vec<String>), RegionError> {
         if let Some(c) = cache.get(&(k, b)) {
             return Ok(c.clone());
         }
@@ -83,21 +84,21 @@ pub fn cut_sliced(
     let mut budgets = vec![budget; pieces.len()];
     let mut cuts = (0..pieces.len())
         .map(|k| cut_at(k, budget))
-        .collect::<Result<Vec<_>, String>>()?;
+        .collect::<Result<Vec<_>, RegionError>>()?;
     let mut mesh = assemble(&cuts);
     if mesh.vertex_count() > budget {
         budgets = vec![PIECE_MIN; pieces.len()];
         cuts = (0..pieces.len())
             .map(|k| cut_at(k, PIECE_MIN))
-            .collect::<Result<Vec<_>, String>>()?;
+            .collect::<Result<Vec<_>, RegionError>>()?;
         mesh = assemble(&cuts);
         if mesh.vertex_count() > budget {
-            return Err(format!(
-                "the nine-slice panel's {} pieces are cut one by one (no triangle may cross a slice line) and need {} vertices together at {PIECE_MIN} a piece, over the budget of {budget}\n  hint: raise the budget to at least {}",
-                pieces.len(),
-                mesh.vertex_count(),
-                mesh.vertex_count()
-            ));
+            return Err(RegionError::SlicesOverBudget {
+                pieces: pieces.len(),
+                needed: mesh.vertex_count(),
+                per_piece: PIECE_MIN,
+                budget,
+            });
         }
         loop {
             let mut best: Option<(f64, usize, usize, LayerMesh)> = None;
@@ -145,12 +146,16 @@ pub fn cut_sliced(
         .flat_map(|c| c.1.clone())
         .filter(|n| !n.starts_with("fully transparent"))
         .collect();
-    let report = check_region_mesh(&mesh, place.sheet, None).map_err(|e| e.to_string())?;
+    let report =
+        check_region_mesh(&mesh, place.sheet, None).map_err(|e| RegionError::FailsCheck {
+            what: "joined nine-slice mesh",
+            why: e.to_string(),
+        })?;
     if !report.holds() {
-        return Err(format!(
-            "internal error: the joined nine-slice mesh fails the check ({}); please report it with this sheet",
-            report.violations().join("; ")
-        ));
+        return Err(RegionError::FailsCheck {
+            what: "joined nine-slice mesh",
+            why: report.violations().join("; "),
+        });
     }
     Ok((mesh, notes))
 }

@@ -231,7 +231,11 @@ pub(crate) fn cut(
     if print.json {
         let mut objects = serde_json::to_value(&result).expect("plain values serialize");
         if let Some(list) = objects.as_array_mut() {
-            list.extend(crate::sheet::found_json(&sheet_reports));
+            list.extend(
+                crate::sheet::found_json(&sheet_reports)
+                    .iter()
+                    .map(|l| serde_json::to_value(l).expect("plain values serialize")),
+            );
         }
         println!("{}", to_json(&objects));
     } else if print.text() {

@@ -8,6 +8,7 @@ use std::path::{Path, PathBuf};
 use std::process::ExitCode;
 use underdraw::batch::Outputs;
 use underdraw::io::ImageLimits;
+use underdraw::present::results::{to_json, SheetRegionLine};
 use underdraw::present::tables as table;
 use underdraw::quality::CutNumbers;
 use underdraw::settings::CutSettings;
@@ -69,11 +70,9 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
         }
     }
     if print.json {
-        let objects: Vec<serde_json::Value> = reports.iter().flat_map(json_lines).collect();
-        println!(
-            "{}",
-            serde_json::to_string_pretty(&objects).expect("plain values serialize")
-        );
+        let lines: Vec<SheetRegionLine> =
+            reports.iter().flat_map(SheetRegionLine::of_sheet).collect();
+        println!("{}", to_json(&lines));
     } else if print.text() {
         for r in &reports {
             for w in &r.warnings {
@@ -153,8 +152,8 @@ pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Lin
 }
 
 /// The `--json` objects of the regions of sheets a batch found.
-pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<serde_json::Value> {
-    reports.iter().flat_map(json_lines).collect()
+pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<SheetRegionLine> {
+    reports.iter().flat_map(SheetRegionLine::of_sheet).collect()
 }
 
 /// One table row per region cut (`<stem>/<name>`), and the total line's
@@ -188,41 +187,6 @@ pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, Optio
         )
     });
     (rows, total)
-}
-
-fn json_lines(r: &SheetReport) -> Vec<serde_json::Value> {
-    r.regions
-        .iter()
-        .map(|g| {
-            let mut o = serde_json::json!({
-                "sheet": r.sheet.display().to_string(),
-                "region": g.region.name,
-                "rect": g.region.rect.to_array(),
-                "outputs": g.outputs.iter().map(|p| p.display().to_string()).collect::<Vec<_>>(),
-            });
-            match &g.cut {
-                Ok(c) => {
-                    let s = &c.mesh.stats;
-                    let n = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
-                    o["status"] = "cut".into();
-                    o["vertices"] = c.mesh.vertex_count().into();
-                    o["opaque_capture"] = n.capture().into();
-                    o["excess"] = s.excess().into();
-                    o["excess_share"] = n.excess_share().into();
-                    o["must_cover_area"] = s.must_cover_area.into();
-                    o["notes"] = serde_json::json!(c.notes);
-                    let warnings: Vec<String> =
-                        c.warnings.iter().cloned().chain(n.warnings(None)).collect();
-                    o["warnings"] = serde_json::json!(warnings);
-                }
-                Err(e) => {
-                    o["status"] = "failed".into();
-                    o["error"] = e.clone().into();
-                }
-            }
-            o
-        })
-        .collect()
 }
 
 /// `check MESH SHEET` for a region mesh (a `region` key, or `--region NAME
