@@ -80,13 +80,20 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
             new
         })
         .collect();
-    let results: Vec<(i64, Fit)> = distinct
-        .into_par_iter()
-        .map(|mut fitter| {
-            fitter.spend_rest(budget);
-            (fitter.objective(), fitter.result())
-        })
-        .collect();
+    let (mut results, constructed) = rayon::join(
+        || -> Vec<(i64, Fit)> {
+            distinct
+                .into_par_iter()
+                .map(|mut fitter| {
+                    fitter.spend_rest(budget);
+                    (fitter.objective(), fitter.result())
+                })
+                .collect()
+        },
+        || constructed_fit(&plain, opened.as_ref(), cover, budget),
+    );
+    // the constructed rings come last, so they win only when strictly better
+    results.extend(constructed);
     // the first of the best, so the choice does not depend on scheduling
     results
         .into_iter()
@@ -94,6 +101,33 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
         .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
         .map(|(_, (_, fit))| fit)
         .expect("at least one variant")
+}
+
+/// Budgets up to which the per-ring dynamic program also runs (its cost
+/// grows with the budget; above this the greedy edits are near the best).
+pub const CONSTRUCTED_MAX_BUDGET: usize = 64;
+
+/// The per-ring dynamic program's rings ([`super::ring_dp`]) on the safe
+/// region (its holes opened when it has some), refined by the fitter's
+/// insertions, exchanges and lattice moves; `None` when it does not apply.
+fn constructed_fit(
+    plain: &Prepared,
+    opened: Option<&Prepared>,
+    cover: &Prepared,
+    budget: usize,
+) -> Option<(i64, Fit)> {
+    if budget > CONSTRUCTED_MAX_BUDGET {
+        return None;
+    }
+    let safe = opened.unwrap_or(plain);
+    let (opaque, covering) = super::ring_dp::fit_rings(safe, cover, budget)?;
+    let mut fitter = Fitter::from_rings(safe, cover, opaque, covering);
+    if fitter.vertices() > budget {
+        return None;
+    }
+    fitter.budget = budget;
+    fitter.spend_rest(budget);
+    Some((fitter.objective(), fitter.result()))
 }
 
 /// Whether a vertex of the safe region's exact outline lies on the
