@@ -64,6 +64,8 @@ impl CellRows {
             height: h,
         }
     }
+    /// (The cut does not use it yet: see the module docs.)
+    #[allow(dead_code)]
     /// The complement of the region, with a frame of free cells around the
     /// image (the must-cover region: chords must not enter its interior;
     /// staying inside the image is tested on the end points).
@@ -349,72 +351,48 @@ pub fn ring_curve(
     curve
 }
 
-/// One ring to fit: its area curve and whether it may be left out.
-struct Item {
+/// One opaque ring to fit: its area curve.
+pub struct Item {
     curve: Vec<Option<(i64, Vec<Point>)>>,
-    /// +1 for opaque (area counts for), -1 for covering (against).
-    sign: i64,
-    optional: bool,
-    ring: Ring,
+    component: u32,
 }
 
-/// The rings of both classes fitted by the per-ring dynamic program and
-/// split by an exact knapsack over `budget` (vertices counted per ring, so
-/// shared positions are left to the fitter's refinement to spend), or
-/// `None` when this layer is not one it handles (an opaque island with a
-/// hole, or no split within the budget). The rings keep their component
-/// ids.
-pub fn fit_rings(
-    safe: &Prepared,
-    cover: &Prepared,
-    budget: usize,
-) -> Option<(Vec<Ring>, Vec<Ring>)> {
+/// The area curves of the safe region's rings up to `kmax` vertices each,
+/// or `None` when an island has a hole (the Jordan argument above needs
+/// islands without holes).
+pub fn opaque_curves(safe: &Prepared, kmax: usize) -> Option<Vec<Item>> {
     if safe.rings.iter().any(|r| r.hole) {
         return None;
     }
     let inside = CellRows::inside(&safe.runs);
-    let outside = CellRows::outside(&cover.runs);
-    let mut items: Vec<Item> = Vec::new();
-    for r in &safe.rings {
-        items.push(Item {
-            curve: ring_curve(&r.points, &inside, true, budget),
-            sign: 1,
-            optional: true,
-            ring: r.clone(),
-        });
-    }
-    for r in cover.rings.iter().filter(|r| !r.hole) {
-        items.push(Item {
-            curve: ring_curve(&r.points, &outside, false, budget),
-            sign: -1,
-            optional: false,
-            ring: r.clone(),
-        });
-    }
-    // knapsack: value[b] best total with b vertices used so far
-    const NONE: i64 = i64::MIN;
-    let mut value = vec![NONE; budget + 1];
-    value[0] = 0;
+    Some(
+        safe.rings
+            .iter()
+            .map(|r| Item {
+                curve: ring_curve(&r.points, &inside, true, kmax),
+                component: r.component,
+            })
+            .collect(),
+    )
+}
+
+/// The opaque rings of largest total area with at most `budget` vertices
+/// counted per ring (an exact knapsack over the rings' curves; an island
+/// may be left out), with twice their area; the rings keep their
+/// components and are pairwise apart (checked; `None` if not).
+pub fn split_opaque(items: &[Item], budget: usize) -> Option<(i64, Vec<Ring>)> {
+    // value[b]: best total with b vertices used so far
+    let mut value = vec![0i64; budget + 1];
     let mut choice: Vec<Vec<usize>> = Vec::new();
-    for it in &items {
-        let mut next = vec![NONE; budget + 1];
+    for it in items {
+        let mut next = value.clone();
         let mut pick = vec![0usize; budget + 1];
         for b in 0..=budget {
-            if value[b] == NONE {
-                continue;
-            }
-            if it.optional && value[b] > next[b] {
-                next[b] = value[b];
-                pick[b] = 0;
-            }
             for (k, c) in it.curve.iter().enumerate() {
                 if let Some((a2, _)) = c {
-                    if b + k <= budget {
-                        let val = value[b] + it.sign * a2;
-                        if next[b + k] == NONE || val > next[b + k] {
-                            next[b + k] = val;
-                            pick[b + k] = k;
-                        }
+                    if b + k <= budget && value[b] + a2 > next[b + k] {
+                        next[b + k] = value[b] + a2;
+                        pick[b + k] = k;
                     }
                 }
             }
@@ -422,53 +400,23 @@ pub fn fit_rings(
         value = next;
         choice.push(pick);
     }
-    let mut b = (0..=budget)
-        .filter(|&b| value[b] != NONE)
-        .max_by_key(|&b| (value[b], std::cmp::Reverse(b)))?;
-    let mut ks = vec![0usize; items.len()];
-    for i in (0..items.len()).rev() {
-        ks[i] = choice[i][b];
-        b -= ks[i];
-    }
-    let (mut opaque, mut covering) = (Vec::new(), Vec::new());
-    for (it, &k) in items.iter().zip(&ks) {
-        if k == 0 {
-            continue;
-        }
-        let (_, pts) = it.curve[k].clone().expect("chosen k has a polygon");
-        let ring = Ring {
-            points: pts,
-            hole: false,
-            component: it.ring.component,
-        };
-        if it.sign > 0 {
-            opaque.push(ring);
-        } else {
-            // one point of the island's interior (the middle of the cell
-            // right of its first edge, which the ring has on its right)
-            if !encloses_region_of(&ring.points, &it.ring.points) {
-                return None;
-            }
-            covering.push(ring);
+    let mut b = (0..=budget).max_by_key(|&b| (value[b], std::cmp::Reverse(b)))?;
+    let total = value[b];
+    let mut rings = Vec::new();
+    for (i, it) in items.iter().enumerate().rev() {
+        let k = choice[i][b];
+        b -= k;
+        if k > 0 {
+            let (_, pts) = it.curve[k].clone().expect("chosen k has a polygon");
+            rings.push(Ring {
+                points: pts,
+                hole: false,
+                component: it.component,
+            });
         }
     }
-    if !apart(&opaque) || !apart(&covering) {
-        return None;
-    }
-    Some((opaque, covering))
-}
-
-/// Whether the polygon `poly` strictly encloses the middle of the cell on
-/// the right of the traced ring's first edge (a cell of its region).
-fn encloses_region_of(poly: &[Point], traced: &[Point]) -> bool {
-    let (a, b) = (traced[0], traced[1]);
-    // unit direction of the axis-aligned edge, doubled coordinates
-    let d = [(b[0] - a[0]).signum(), (b[1] - a[1]).signum()];
-    // right of the direction on screen (y down): (-dy, dx)
-    let r = [-d[1], d[0]];
-    let m = [2 * a[0] + d[0] + r[0], 2 * a[1] + d[1] + r[1]];
-    let doubled: Vec<Point> = poly.iter().map(|p| [2 * p[0], 2 * p[1]]).collect();
-    super::geom::in_closed_polygon(m, &doubled)
+    rings.reverse();
+    apart(&rings).then_some((total, rings))
 }
 
 /// Whether the rings are pairwise apart: no edges touch and none lies
