@@ -114,7 +114,7 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
 
 /// Budgets up to which the per-ring dynamic program also runs (its cost
 /// grows with the budget; above this the greedy edits are near the best).
-pub const CONSTRUCTED_MAX_BUDGET: usize = 64;
+pub const CONSTRUCTED_MAX_BUDGET: usize = 32;
 
 /// Covering rings to pair with the dynamic program's opaque rings, with
 /// the distinct positions they use.
