@@ -4,31 +4,39 @@
 //! dynamic programming over the valid shortcuts between candidate vertices
 //! (polygonal approximation as paths over valid shortcuts: Imai & Iri 1986;
 //! optimal approximation by dynamic programming: Perez & Vidal 1994; both
-//! cited from memory). The budget is then split across rings by an exact
-//! knapsack over their area curves, and the result is one more candidate of
-//! [`super::fit_outlines`] (the best objective wins).
+//! cited from memory). Twice a polygon's area is the sum of its edges'
+//! cross products (shoelace), so it is additive over the chords of a path.
+//!
+//! The cut uses the opaque class only ([`opaque_curves`], split across the
+//! islands by an exact knapsack in [`split_opaque`]; the covering rings
+//! come from the greedy edits, see `variants`): with candidates on the
+//! traced outline, a covering polygon must keep every corner of the
+//! outline's convex hull, which a rugged outline has more of than a small
+//! budget. The covering chord test ([`CellRows::outside`]) and the
+//! minimising program are kept and tested for a candidate set off the
+//! outline, which is not built yet.
 //!
 //! Candidates and what their pruning gives up: the candidates of a ring are
-//! its own traced corners, thinned to at most [`MAX_CANDIDATES`] by
-//! repeatedly dropping the corner whose triangle with its neighbours has
-//! the smallest area (Visvalingam-style). A polygon can only use those
-//! points: lattice points off the traced ring (which the best inner polygon
-//! of a staircase often wants, e.g. a point a half texel inside a corner)
-//! and corners thinned away are not reachable by the dynamic program; the
-//! fitter's lattice moves in `refine` (run afterwards) recover part of it.
-//! Only a handful of start vertices are tried (the extreme points and a few
-//! spread around the ring), so the cycle found is best among polygons
-//! through one of those starts, not over all polygons.
+//! its own traced corners without collinear ones, thinned to at most
+//! [`MAX_CANDIDATES`] by repeatedly dropping the corner whose triangle with
+//! its neighbours has the smallest area (Visvalingam-style). A polygon can
+//! only use those points: lattice points off the traced ring (which the best
+//! inner polygon of a staircase sometimes wants) and corners thinned away
+//! are not reachable by the dynamic program; the fitter's lattice moves in
+//! `refine` (run afterwards) recover part of it. Rings of more than
+//! 24 candidates try only a few start vertices (the four extreme points
+//! and four spread around the ring), so the cycle found is the best through
+//! one of those starts, not over all cycles; and of each start's best
+//! closings only the first three are tried for simplicity.
 //!
 //! The guarantee does not rest on the dynamic program: every chord is
-//! tested exactly against the region's row runs, and the assembled rings
-//! are checked again (each simple, the rings of one class pairwise apart,
-//! and for a covering ring a point of its region inside) before they are
-//! handed to the fitter. A ring whose chords all lie in the closed safe
-//! region, with that island free of holes, and which is simple, lies inside
-//! that island (Jordan curve theorem); a simple covering ring whose chords
-//! avoid the must-cover island's interior and which encloses one interior
-//! point of that (connected) island encloses all of it.
+//! tested exactly against the region's row runs, each polygon kept is
+//! checked to be simple, and the rings of one class to be pairwise apart.
+//! A simple polygon whose edges lie in the closed safe region, on an island
+//! without holes, lies inside that island (Jordan curve theorem; an edge
+//! cannot jump between islands, which do not touch once pinches are
+//! removed); islands with holes are not handled (the caller passes the
+//! region with its holes opened).
 
 use super::geom::{orient, segments_touch};
 use super::Prepared;
