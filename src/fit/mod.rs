@@ -32,6 +32,7 @@ mod island_edits;
 mod queue;
 mod rects;
 mod refine;
+mod ring_dp;
 mod variants;
 mod vertex_edits;
 
@@ -200,6 +201,19 @@ impl<'a> Fitter<'a> {
     /// Starts from exact rings of the safe region (`opaque`) and of the
     /// must-cover region (`cover`), with the masks they were traced from.
     pub fn new(opaque: &'a Prepared, cover: &'a Prepared) -> Fitter<'a> {
+        Fitter::from_rings(opaque, cover, opaque.rings.clone(), cover.rings.clone())
+    }
+
+    /// Starts from given rings (`opaque_rings` inside the safe region of
+    /// `opaque`, `cover_rings` around the must-cover region of `cover`, with
+    /// every invariant of the module docs already true), grouped into
+    /// islands by their `component`.
+    pub(crate) fn from_rings(
+        opaque: &'a Prepared,
+        cover: &'a Prepared,
+        opaque_rings: Vec<Ring>,
+        cover_rings: Vec<Ring>,
+    ) -> Fitter<'a> {
         let size = opaque.size;
         let mut f = Fitter {
             verts: Vec::new(),
@@ -222,8 +236,7 @@ impl<'a> Fitter<'a> {
             cap_diverged: false,
         };
         let rects = &opaque.rects;
-        let (opaque, cover) = (opaque.rings.clone(), cover.rings.clone());
-        for (class, rings) in [(Class::Opaque, opaque), (Class::Cover, cover)] {
+        for (class, rings) in [(Class::Opaque, opaque_rings), (Class::Cover, cover_rings)] {
             let mut comp_of: HashMap<u32, u32> = HashMap::new();
             for r in rings {
                 let next_id = f.comps.len() as u32;

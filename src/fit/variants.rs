@@ -5,8 +5,9 @@
 //! has at most `budget` distinct vertex positions; the choice among
 //! variants does not depend on thread scheduling.
 
-use super::{open_holes_in_runs, Fit, Fitter, Prepared};
+use super::{geom, open_holes_in_runs, Fit, Fitter, Prepared};
 use crate::mask::RowRuns;
+use crate::outline::Ring;
 use rayon::prelude::*;
 
 /// The must-cover region's runs (consumed: its pinches are filled in
@@ -80,13 +81,28 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
             new
         })
         .collect();
-    let results: Vec<(i64, Fit)> = distinct
-        .into_par_iter()
-        .map(|mut fitter| {
-            fitter.spend_rest(budget);
-            (fitter.objective(), fitter.result())
-        })
-        .collect();
+    let dp_safe = opened.as_ref().unwrap_or(&plain);
+    let (mut results, parts) = rayon::join(
+        || -> Vec<(i64, Fit)> {
+            distinct
+                .into_par_iter()
+                .map(|mut fitter| {
+                    fitter.spend_rest(budget);
+                    (fitter.objective(), fitter.result())
+                })
+                .collect()
+        },
+        || constructed_parts(dp_safe, cover, budget),
+    );
+    // the constructed rings, paired also with the best greedy fit's
+    // covering rings; they come last, so they win only when strictly
+    // better
+    let constructed = parts.and_then(|(items, mut options)| {
+        let greedy_best = results.iter().max_by_key(|r| r.0)?;
+        options.push(covering_rings(&greedy_best.1));
+        constructed_fit(dp_safe, cover, &items, options, budget)
+    });
+    results.extend(constructed);
     // the first of the best, so the choice does not depend on scheduling
     results
         .into_iter()
@@ -94,6 +110,102 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
         .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
         .map(|(_, (_, fit))| fit)
         .expect("at least one variant")
+}
+
+/// Budgets up to which the per-ring dynamic program also runs (its cost
+/// grows with the budget; above this the greedy edits are near the best).
+pub const CONSTRUCTED_MAX_BUDGET: usize = 32;
+
+/// Covering rings to pair with the dynamic program's opaque rings, with
+/// the distinct positions they use.
+type CoverOption = (Vec<Ring>, usize);
+
+/// A fit's covering rings, one component per island.
+fn covering_rings(fit: &Fit) -> CoverOption {
+    let rings: Vec<Ring> = fit
+        .cover
+        .iter()
+        .enumerate()
+        .flat_map(|(c, poly)| {
+            std::iter::once((poly.outer.clone(), false))
+                .chain(poly.holes.iter().map(|h| (h.clone(), true)))
+                .map(move |(points, hole)| Ring {
+                    points,
+                    hole,
+                    component: c as u32,
+                })
+        })
+        .collect();
+    let mut pos: Vec<_> = rings
+        .iter()
+        .flat_map(|r| r.points.iter().copied())
+        .collect();
+    pos.sort_unstable();
+    pos.dedup();
+    let n = pos.len();
+    (rings, n)
+}
+
+/// The per-ring dynamic program's opaque curves ([`super::ring_dp`]) on
+/// `safe`, and covering rings from the greedy edits run on the covering
+/// outline alone at a few shares of the budget. `None` when it does not
+/// apply.
+fn constructed_parts(
+    safe: &Prepared,
+    cover: &Prepared,
+    budget: usize,
+) -> Option<(Vec<super::ring_dp::Item>, Vec<CoverOption>)> {
+    if budget > CONSTRUCTED_MAX_BUDGET {
+        return None;
+    }
+    let items = super::ring_dp::opaque_curves(safe, budget)?;
+    // largest share first (each continues from the last)
+    let mut shares: Vec<usize> = [2, 3, 4, 5, 6]
+        .iter()
+        .map(|eighths| (budget * eighths / 8).clamp(4, budget.saturating_sub(3).max(4)))
+        .collect();
+    shares.sort_unstable_by(|a, b| b.cmp(a));
+    shares.dedup();
+    let mut alone = Fitter::from_rings(safe, cover, Vec::new(), cover.rings.clone());
+    let mut options = Vec::new();
+    for share in shares {
+        alone.fit_greedy(share);
+        options.push(covering_rings(&alone.result()));
+    }
+    Some((items, options))
+}
+
+/// The dynamic program's opaque rings with the best of the covering
+/// options (by objective: opaque area minus covering area), refined by the
+/// fitter's insertions, exchanges and lattice moves.
+fn constructed_fit(
+    safe: &Prepared,
+    cover: &Prepared,
+    items: &[super::ring_dp::Item],
+    options: Vec<CoverOption>,
+    budget: usize,
+) -> Option<(i64, Fit)> {
+    let mut best: Option<(i64, Vec<Ring>, Vec<Ring>)> = None;
+    for (covering, used) in options {
+        let cover_area2: i64 = covering.iter().map(|r| geom::twice_area(&r.points)).sum();
+        let Some((opaque_area2, opaque)) =
+            super::ring_dp::split_opaque(items, budget.saturating_sub(used))
+        else {
+            continue;
+        };
+        let objective = opaque_area2 - cover_area2;
+        if best.as_ref().is_none_or(|b| objective > b.0) {
+            best = Some((objective, opaque, covering));
+        }
+    }
+    let (_, opaque, covering) = best?;
+    let mut fitter = Fitter::from_rings(safe, cover, opaque, covering);
+    if fitter.vertices() > budget {
+        return None;
+    }
+    fitter.budget = budget;
+    fitter.spend_rest(budget);
+    Some((fitter.objective(), fitter.result()))
 }
 
 /// Whether a vertex of the safe region's exact outline lies on the
