@@ -87,7 +87,9 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
                 );
             }
         }
-        print_table(&reports);
+        if !reports.is_empty() {
+            print_table(&reports);
+        }
     }
     for r in &reports {
         for g in &r.regions {
