@@ -140,10 +140,7 @@ fn rect_fragments_are_the_clipped_rectangle_areas() {
     for k in 0..samples {
         let cam = travel * k as f64 / (samples - 1) as f64;
         for l in scene["layers"].as_array().unwrap() {
-            let img = root()
-                .join("demo-layers")
-                .join(l["image"].as_str().unwrap());
-            let (w, h) = image::image_dimensions(&img).unwrap();
+            let (w, h) = layer_rect_size(l);
             let s = l["scale"].as_f64().unwrap_or(1.0);
             let (w, h) = (w as f64 * s, h as f64 * s);
             let x =
@@ -170,6 +167,41 @@ fn rect_fragments_are_the_clipped_rectangle_areas() {
         (got - expected).abs() <= slack,
         "rect {got} vs areas {expected} +- {slack}"
     );
+}
+
+/// The rectangle a layer's rect strategy draws, in texels before scale:
+/// the PNG header's size, or for a region of a sheet its `"size"` when
+/// stretched, else the region's rectangle read from the regions file
+/// (`"regions"`, default `<sheet stem>.regions.json` beside the sheet).
+fn layer_rect_size(l: &Value) -> (u32, u32) {
+    let img = root()
+        .join("demo-layers")
+        .join(l["image"].as_str().unwrap());
+    let Some(name) = l["region"].as_str() else {
+        return image::image_dimensions(&img).unwrap();
+    };
+    if let Some(size) = l["size"].as_array() {
+        return (
+            size[0].as_u64().unwrap() as u32,
+            size[1].as_u64().unwrap() as u32,
+        );
+    }
+    let file = match l["regions"].as_str() {
+        Some(f) => root().join("demo-layers").join(f),
+        None => img.with_extension("regions.json"),
+    };
+    let regions: Value = serde_json::from_str(&fs::read_to_string(&file).unwrap()).unwrap();
+    let r = regions["regions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["name"] == name)
+        .unwrap();
+    let rect = r["rect"].as_array().or(r["frames"][0].as_array()).unwrap();
+    (
+        rect[2].as_u64().unwrap() as u32,
+        rect[3].as_u64().unwrap() as u32,
+    )
 }
 
 /// The chosen budgets beat the same total spread evenly (both scored by
