@@ -295,36 +295,18 @@ pub fn clip(runs: &RowRuns, rect: Rect) -> RowRuns {
     out
 }
 
-/// Row by row intersection (`and`) or union of two regions of one size.
+/// Row by row intersection (`and`) or union of two regions of one size
+/// (the analysis's run operations, [`crate::alpha::runs`]).
 pub fn rowwise(a: &RowRuns, b: &RowRuns, and: bool) -> RowRuns {
+    let op = if and {
+        crate::alpha::runs::intersect
+    } else {
+        crate::alpha::runs::unite
+    };
     let mut out = RowRuns::new(a.width);
-    let mut row: Vec<[u32; 2]> = Vec::new();
+    let mut row = Vec::new();
     for y in 0..a.height {
-        row.clear();
-        let (ra, rb) = (a.row(y), b.row(y));
-        if and {
-            let (mut i, mut j) = (0, 0);
-            while i < ra.len() && j < rb.len() {
-                let (s, e) = (ra[i][0].max(rb[j][0]), ra[i][1].min(rb[j][1]));
-                if s < e {
-                    row.push([s, e]);
-                }
-                if ra[i][1] < rb[j][1] {
-                    i += 1;
-                } else {
-                    j += 1;
-                }
-            }
-        } else {
-            let mut all: Vec<[u32; 2]> = ra.iter().chain(rb).copied().collect();
-            all.sort_unstable();
-            for r in all {
-                match row.last_mut() {
-                    Some(last) if r[0] <= last[1] => last[1] = last[1].max(r[1]),
-                    _ => row.push(r),
-                }
-            }
-        }
+        op(a.row(y), b.row(y), &mut row);
         out.push_row(&row);
     }
     out
