@@ -44,10 +44,10 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
     if let Some(dir) = args.images.iter().find(|p| p.is_dir()) {
         bail!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display());
     }
-    let mut reports = Vec::new();
-    let mut errors = Vec::new();
-    for sheet in args.images {
-        let req = SheetRequest {
+    let requests: Vec<SheetRequest> = args
+        .images
+        .iter()
+        .map(|sheet| SheetRequest {
             sheet: sheet.clone(),
             regions: match args.regions {
                 Some(p) => RegionSource::File(p.to_path_buf()),
@@ -63,12 +63,9 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             outputs: args.outputs,
             per_frame: args.per_frame,
             limits,
-        };
-        match run_sheet(&req) {
-            Ok(r) => reports.push(r),
-            Err(e) => errors.push(Line::Error(e.to_string())),
-        }
-    }
+        })
+        .collect();
+    let (reports, errors) = run_found(&requests);
     if print.json {
         let lines: Vec<SheetRegionLine> =
             reports.iter().flat_map(SheetRegionLine::of_sheet).collect();
@@ -89,17 +86,6 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
         }
         if !reports.is_empty() {
             print_table(&reports);
-        }
-    }
-    for r in &reports {
-        for g in &r.regions {
-            if let Err(e) = &g.cut {
-                errors.push(Line::Error(format!(
-                    "{}: region {:?}: {e}",
-                    r.sheet.display(),
-                    g.region.name
-                )));
-            }
         }
     }
     if errors.is_empty() {
@@ -127,9 +113,9 @@ fn region_counts(reports: &[SheetReport]) -> (usize, usize, usize) {
     (cut.count(), failed, vertices)
 }
 
-/// The sheets a `cut` batch found (PNGs with a `<stem>.regions.json`
-/// beside them), each run: the reports, and the errors of the sheets and
-/// regions that failed.
+/// Runs sheets (given with `--regions` / `--find-regions`, or found by a
+/// `cut` batch as PNGs with a `<stem>.regions.json` beside them): the
+/// reports, and the errors of the sheets and regions that failed.
 pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Line>) {
     let mut reports = Vec::new();
     let mut errors = Vec::new();
