@@ -12,7 +12,7 @@ mod sheet_support;
 use common::triangles::{inset, triangles};
 use common::{Rng, TempDir};
 use sheet_support::{
-    linear_opaque, load, pack, point_in, regions_file, run, save, status, text, Sheet,
+    linear_opaque, load, pack, padding_of, point_in, regions_file, run, save, status, text, Sheet,
 };
 
 /// Random points of the opaque triangles, moved to the sheet by `offset`,
@@ -35,38 +35,6 @@ fn sample_opaque(sheet: &Sheet, m: &LayerMesh, offset: [f64; 2], rng: &mut Rng) 
         }
     }
     n
-}
-
-/// The padding beyond each side of `b` computed from the texels: over the
-/// visible texels q outside the box within `band` texels of its span, the
-/// fewest transparent texels between q and the box along the axis
-/// (`u32::MAX` when there is none).
-fn padding_of(sheet: &Sheet, b: [u32; 4], band: i64) -> u32 {
-    let [x0, y0, w, h] = b.map(|v| v as i64);
-    let (x1, y1) = (x0 + w, y0 + h);
-    let mut best = u32::MAX;
-    for qy in 0..sheet.h as i64 {
-        for qx in 0..sheet.w as i64 {
-            if sheet.alpha[(qy * sheet.w as i64 + qx) as usize] == 0 {
-                continue;
-            }
-            let in_x = qx >= x0 - band && qx < x1 + band;
-            let in_y = qy >= y0 - band && qy < y1 + band;
-            let gap = if in_y && qx < x0 {
-                x0 - 1 - qx
-            } else if in_y && qx >= x1 {
-                qx - x1
-            } else if in_x && qy < y0 {
-                y0 - 1 - qy
-            } else if in_x && qy >= y1 {
-                qy - y1
-            } else {
-                continue;
-            };
-            best = best.min(gap as u32);
-        }
-    }
-    best
 }
 
 fn sizes(rng: &mut Rng, n: usize) -> Vec<(u64, u32, u32)> {

@@ -10,7 +10,7 @@ use std::path::{Path, PathBuf};
 mod common;
 mod sheet_support;
 use common::TempDir;
-use sheet_support::{load, run, status, text, Sheet};
+use sheet_support::{load, padding_of, run, status, text, Sheet};
 
 fn demo(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -26,32 +26,6 @@ fn sheet() -> Sheet {
         alpha: img.pixels().map(|p| p.0[3]).collect(),
         boxes: Vec::new(),
     }
-}
-
-/// Fewest transparent texels between the box and a visible texel beyond
-/// it, within `band` texels of its span (`u32::MAX`: none).
-fn padding(s: &Sheet, b: [u32; 4], band: i64) -> u32 {
-    let [x0, y0, w, h] = b.map(|v| v as i64);
-    let (x1, y1) = (x0 + w, y0 + h);
-    let mut best = u32::MAX;
-    for qy in 0..s.h as i64 {
-        for qx in 0..s.w as i64 {
-            if s.alpha[(qy * s.w as i64 + qx) as usize] == 0 {
-                continue;
-            }
-            let in_x = qx >= x0 - band && qx < x1 + band;
-            let in_y = qy >= y0 - band && qy < y1 + band;
-            let gap = match () {
-                _ if in_y && qx < x0 => x0 - 1 - qx,
-                _ if in_y && qx >= x1 => qx - x1,
-                _ if in_x && qy < y0 => y0 - 1 - qy,
-                _ if in_x && qy >= y1 => qy - y1,
-                _ => continue,
-            };
-            best = best.min(gap as u32);
-        }
-    }
-    best
 }
 
 /// Every region at budgets 16 and 48, bilinear mip levels 0 and 1: check
@@ -109,7 +83,7 @@ fn demo_sheet_regions_pass_check_and_warn_where_padding_is_short() {
             let short: Vec<usize> = boxes
                 .iter()
                 .enumerate()
-                .filter(|(_, b)| (padding(&s, **b, band) as f64) < reach)
+                .filter(|(_, b)| (padding_of(&s, **b, band) as f64) < reach)
                 .map(|(k, _)| k)
                 .collect();
             if boxes.len() > 1 {

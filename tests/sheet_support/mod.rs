@@ -175,3 +175,35 @@ pub fn point_in(t: &Tri, rng: &mut Rng) -> [f64; 2] {
     }
     [0, 1].map(|c| t[0][c] + r * (t[1][c] - t[0][c]) + s * (t[2][c] - t[0][c]))
 }
+
+/// The padding beyond each side of `b` computed from the texels: over the
+/// visible texels q outside the box within `band` texels of its span, the
+/// fewest transparent texels between q and the box along the axis
+/// (`u32::MAX` when there is none).
+pub fn padding_of(sheet: &Sheet, b: [u32; 4], band: i64) -> u32 {
+    let [x0, y0, w, h] = b.map(|v| v as i64);
+    let (x1, y1) = (x0 + w, y0 + h);
+    let mut best = u32::MAX;
+    for qy in 0..sheet.h as i64 {
+        for qx in 0..sheet.w as i64 {
+            if sheet.alpha[(qy * sheet.w as i64 + qx) as usize] == 0 {
+                continue;
+            }
+            let in_x = qx >= x0 - band && qx < x1 + band;
+            let in_y = qy >= y0 - band && qy < y1 + band;
+            let gap = if in_y && qx < x0 {
+                x0 - 1 - qx
+            } else if in_y && qx >= x1 {
+                qx - x1
+            } else if in_x && qy < y0 {
+                y0 - 1 - qy
+            } else if in_x && qy >= y1 {
+                qy - y1
+            } else {
+                continue;
+            };
+            best = best.min(gap as u32);
+        }
+    }
+    best
+}
