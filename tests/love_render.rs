@@ -40,6 +40,9 @@ use underdraw::scene::run::load_frame_dump;
 mod common;
 use common::TempDir;
 
+#[path = "love_render/regions.rs"]
+mod regions;
+
 const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
 /// Camera positions: the start, a sample of the demo scene (128 * 3) and a
 /// fractional one that puts every layer off the pixel grid.
@@ -86,6 +89,18 @@ fn run_underdraw(args: &[&std::ffi::OsStr]) {
 /// [--plain]`, as the README gives it; returns LÖVE's stdout. Killed after
 /// two minutes (a LÖVE error screen would wait for ever).
 fn love_frame(export: &Path, camera: f64, out: &Path, plain: bool) -> String {
+    let (ok, stdout, stderr) = love_run(export, camera, out, plain);
+    assert!(
+        ok,
+        "love on {} failed:\n{stdout}\n{stderr}",
+        export.display()
+    );
+    stdout
+}
+
+/// As [`love_frame`]; returns whether LÖVE succeeded, its stdout and its
+/// stderr.
+fn love_run(export: &Path, camera: f64, out: &Path, plain: bool) -> (bool, String, String) {
     let mut cmd = Command::new("xvfb-run");
     cmd.args(["-a", "-s", "-screen 0 640x480x24", "love"])
         .arg(root().join("integrations/love"))
@@ -112,14 +127,11 @@ fn love_frame(export: &Path, camera: f64, out: &Path, plain: bool) -> String {
         std::thread::sleep(Duration::from_millis(100));
     }
     let o = child.wait_with_output().expect("love's output");
-    let stdout = String::from_utf8_lossy(&o.stdout).to_string();
-    assert!(
+    (
         o.status.success(),
-        "{cmd:?} failed ({}):\n{stdout}\n{}",
-        o.status,
-        String::from_utf8_lossy(&o.stderr)
-    );
-    stdout
+        String::from_utf8_lossy(&o.stdout).to_string(),
+        String::from_utf8_lossy(&o.stderr).to_string(),
+    )
 }
 
 fn read_rgba(path: &Path) -> RgbaImage {
@@ -168,6 +180,55 @@ fn copies(draws: &[Draw], vertices: &HashMap<String, usize>) -> usize {
         .iter()
         .map(|d| d.positions.len() / 2 / vertices[&d.layer])
         .sum()
+}
+
+/// How LÖVE's split frame differs from its plain frame.
+struct Comparison {
+    /// The largest difference of a channel, and where.
+    max_diff: u8,
+    where_max: (u32, u32),
+    /// Pixels that differ at all, and by more than [`TOLERANCE`].
+    differ: usize,
+    over: usize,
+    /// Pixels the model says only the opaque pass shades (one fragment in
+    /// the split frame's counts, one in the opaque pass alone), and how
+    /// many of them differ at all.
+    opaque_only: usize,
+    opaque_diff: usize,
+}
+
+/// Compares `split` and `plain` pixel by pixel; `counts` is the model's
+/// split counts PNG, `opaque_counts` its opaque pass alone.
+fn compare(
+    split: &RgbaImage,
+    plain: &RgbaImage,
+    counts: &image::ImageBuffer<image::Luma<u16>, Vec<u16>>,
+    opaque_counts: &[u32],
+) -> Comparison {
+    let mut c = Comparison {
+        max_diff: 0,
+        where_max: (0, 0),
+        differ: 0,
+        over: 0,
+        opaque_only: 0,
+        opaque_diff: 0,
+    };
+    for (x, y, s) in split.enumerate_pixels() {
+        let p = plain.get_pixel(x, y);
+        let d = max_channel_diff(s, p);
+        if d > c.max_diff {
+            c.max_diff = d;
+            c.where_max = (x, y);
+        }
+        c.differ += usize::from(d > 0);
+        c.over += usize::from(d > TOLERANCE);
+        let i = (y * split.width() + x) as usize;
+        if opaque_counts[i] == 1 && counts.get_pixel(x, y)[0] == 1 {
+            c.opaque_only += 1;
+            c.opaque_diff += usize::from(d != 0);
+        }
+    }
+    c
 }
 
 /// The bilinear sample of `img` (wrapping in x, clamped in y) at texture
@@ -282,25 +343,14 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         assert_eq!(split.dimensions(), (viewport[0], viewport[1]));
         assert_eq!(plain.dimensions(), split.dimensions());
 
-        let (mut max_diff, mut differ, mut over) = (0u8, 0usize, 0usize);
-        let (mut opaque_only, mut opaque_diff) = (0usize, 0usize);
-        let mut where_max = (0, 0);
-        for (x, y, s) in split.enumerate_pixels() {
-            let p = plain.get_pixel(x, y);
-            let d = max_channel_diff(s, p);
-            if d > max_diff {
-                max_diff = d;
-                where_max = (x, y);
-            }
-            differ += usize::from(d > 0);
-            over += usize::from(d > TOLERANCE);
-            let i = (y * viewport[0] + x) as usize;
-            let c = counts.get_pixel(x, y)[0] as u32;
-            if opaque_counts[i] == 1 && c == 1 {
-                opaque_only += 1;
-                opaque_diff += usize::from(d != 0);
-            }
-        }
+        let Comparison {
+            max_diff,
+            where_max,
+            differ,
+            over,
+            opaque_only,
+            opaque_diff,
+        } = compare(&split, &plain, &counts, &opaque_counts);
         // not blank: a real frame has many colours
         let distinct: HashSet<[u8; 4]> = split.pixels().map(|p| p.0).collect();
         assert!(

@@ -190,6 +190,75 @@ local function bad(path, what, todo)
 end
 
 ---------------------------------------------------------------------------
+-- Regions of a sprite sheet: nine-slice panels and animation frames.
+-- These functions read a decoded mesh file (a table as underdraw.json.decode
+-- returns it) and need no LÖVE, so a game may call them anywhere.
+
+-- The nine-slice rule along one axis: where a vertex anchored in slice
+-- `c` (0, 1, 2) at offset `d` texels lands when a region `n` texels long,
+-- with insets `lo` and `hi`, is drawn `to` long. The corners keep their
+-- size, the middle slice is stretched.
+local function slice_place(c, d, n, lo, hi, to)
+  if c == 0 then return d end
+  if c == 2 then return to - hi + d end
+  local middle = n - lo - hi
+  if middle <= 0 then return lo end -- no middle slice: nothing to stretch
+  return lo + d * (to - lo - hi) / middle
+end
+
+-- The vertex positions of a nine-slice panel mesh drawn `size` = {w, h}
+-- texels: a flat list {x1, y1, x2, y2, ...} in the order of the mesh's
+-- vertices, each placed from its `slice_positions` anchor [column, row,
+-- dx, dy] (column 0 at dx, 1 at left + dx * (w - left - right) / (region
+-- width - left - right), 2 at w - right + dx; rows alike). Works on a mesh
+-- exported at any size: the anchors refer to the region as cut.
+function underdraw.place_panel(m, size)
+  local r = m.region
+  if not (r and r.slices and r.slice_positions) then
+    error("place_panel: the mesh is not a nine-slice panel (no region.slices and region.slice_positions)", 2)
+  end
+  local rw, rh = r.rect[3], r.rect[4]
+  local l, t, rr, b = r.slices[1], r.slices[2], r.slices[3], r.slices[4]
+  local w, h = size[1], size[2]
+  if w < l + rr or h < t + b then
+    error(string.format("place_panel: %s x %s is smaller than the panel's corners (%d x %d)",
+      tostring(w), tostring(h), l + rr, t + b), 2)
+  end
+  local out = {}
+  for k, a in ipairs(r.slice_positions) do
+    out[2 * k - 1] = slice_place(a[1], a[3], rw, l, rr, w)
+    out[2 * k] = slice_place(a[2], a[4], rh, t, b, h)
+  end
+  return out
+end
+
+-- The texture coordinates of an animation mesh for frame `frame` (1-based,
+-- as Lua counts: 1 is the first entry of region.frames): a flat list {u1,
+-- v1, u2, v2, ...}, the mesh's uvs (which draw the first frame) plus that
+-- frame's entry of `frame_uv_offsets`. For a mesh without frames, frame 1
+-- is its uvs as they are.
+function underdraw.frame_uvs(m, frame)
+  local offsets = m.region and m.region.frame_uv_offsets
+  local du, dv = 0, 0
+  if offsets then
+    local o = offsets[frame]
+    if not o then
+      error(string.format("frame_uvs: frame %s is not one of the mesh's %d frames (1 to %d)",
+        tostring(frame), #offsets, #offsets), 2)
+    end
+    du, dv = o[1], o[2]
+  elseif frame ~= 1 then
+    error("frame_uvs: the mesh has no frames, only frame 1", 2)
+  end
+  local out = {}
+  for i = 1, #m.uvs, 2 do
+    out[i] = m.uvs[i] + du
+    out[i + 1] = m.uvs[i + 1] + dv
+  end
+  return out
+end
+
+---------------------------------------------------------------------------
 -- The mesh file: one vertex array, two triangle lists.
 
 -- Positions in texels and texture coordinates, as the mesh file gives them.
@@ -213,13 +282,127 @@ local function vertex_map(list, n, path, which)
   return map
 end
 
+local function fmt_list(t)
+  local out = {}
+  for i, v in ipairs(t or {}) do out[i] = tostring(v) end
+  return "[" .. table.concat(out, ", ") .. "]"
+end
+
+local function same_list(a, b)
+  if type(a) ~= "table" or type(b) ~= "table" or #a ~= #b then return false end
+  for i = 1, #a do if a[i] ~= b[i] then return false end end
+  return true
+end
+
+local function whole_numbers(t, n)
+  if type(t) ~= "table" or #t ~= n then return false end
+  for i = 1, n do
+    if type(t[i]) ~= "number" or t[i] ~= math.floor(t[i]) or t[i] < 0 then return false end
+  end
+  return true
+end
+
+-- Checks a region mesh's `region` key against its image (w x h) and the
+-- draw list's entry (`entry`, from `list_path`; may be nil).
+local function check_region(path, image_path, m, iw, ih, entry, list_path)
+  local r = m.region
+  local todo = "cut the sheet's regions again with underdraw"
+  if not whole_numbers(r.sheet_size, 2) or not whole_numbers(r.rect, 4) then
+    bad(path, "its \"region\" lacks whole-number \"sheet_size\" [W, H] and \"rect\" [x, y, w, h]", todo)
+  end
+  if r.sheet_size[1] ~= iw or r.sheet_size[2] ~= ih then
+    bad(image_path, string.format("is %dx%d, but %s was cut from a sheet of %dx%d", iw, ih, path,
+      r.sheet_size[1], r.sheet_size[2]), "point the layer's image at the sheet it was cut from, or cut the regions again")
+  end
+  local rects = { r.rect }
+  for _, f in ipairs(r.frames or {}) do rects[#rects + 1] = f end
+  for _, q in ipairs(rects) do
+    if not whole_numbers(q, 4) or q[3] < 1 or q[4] < 1 or q[1] + q[3] > iw or q[2] + q[4] > ih then
+      bad(path, string.format("region rectangle %s lies outside its sheet %s (%dx%d)", fmt_list(q),
+        image_path, iw, ih), "fix the rectangle in the regions file and cut the regions again")
+    end
+  end
+  if r.frames and (not r.frame_uv_offsets or #r.frame_uv_offsets ~= #r.frames) then
+    bad(path, "has frames but not one frame_uv_offsets entry per frame", todo)
+  end
+  local rw, rh = r.rect[3], r.rect[4]
+  if r.slices then
+    local s = r.slices
+    if not whole_numbers(s, 4) or s[1] + s[3] > rw or s[2] + s[4] > rh then
+      bad(path, "slices " .. fmt_list(s) .. " do not fit the region " .. fmt_list(r.rect), todo)
+    end
+    if not r.slice_positions or #r.slice_positions ~= #m.positions / 2 then
+      bad(path, "has slices but not one slice_positions entry per vertex", todo)
+    end
+    if m.size[1] < s[1] + s[3] or m.size[2] < s[2] + s[4] then
+      bad(path, string.format("size %s is smaller than the panel's corners", fmt_list(m.size)), todo)
+    end
+  elseif m.size[1] ~= rw or m.size[2] ~= rh then
+    bad(path, string.format("size %s differs from its region's %dx%d and it has no slices to stretch by",
+      fmt_list(m.size), rw, rh), todo)
+  end
+  -- the draw list's copy of these keys (written by the scene export) must agree
+  if entry then
+    local d = entry.region
+    if d and (not same_list(d.sheet_size, r.sheet_size) or not same_list(d.rect, r.rect)) then
+      bad(list_path, string.format("layer %s has region sheet_size %s rect %s, but its mesh file %s says %s %s",
+        tostring(entry.name), fmt_list(d.sheet_size), fmt_list(d.rect), path, fmt_list(r.sheet_size),
+        fmt_list(r.rect)), "export the scene again")
+    end
+    if entry.size and not same_list(entry.size, m.size) then
+      bad(list_path, string.format("layer %s has size %s, but its mesh file %s is %s", tostring(entry.name),
+        fmt_list(entry.size), path, fmt_list(m.size)), "export the scene again")
+    end
+    if entry.slices and not same_list(entry.slices, r.slices) then
+      bad(list_path, string.format("layer %s has slices %s, but its mesh file %s has %s", tostring(entry.name),
+        fmt_list(entry.slices), path, fmt_list(r.slices)), "export the scene again")
+    end
+  end
+end
+
+-- The plain draw of a layer: pieces {quad, x, y, sx, sy}, each a
+-- love.graphics Quad of the texture drawn at (x, y) texels of the layer,
+-- scaled (sx, sy). One piece over `rect` (x, y, w, h in the texture of
+-- size tw x th) drawn `size`; with `slices` (left, top, right, bottom)
+-- nine pieces: corners unscaled, edges stretched along one axis, the
+-- centre along both (pieces of zero size left out).
+function underdraw.plain_pieces(rect, tw, th, size, slices)
+  local rx, ry, rw, rh = rect[1], rect[2], rect[3], rect[4]
+  if not slices then
+    return { { quad = love.graphics.newQuad(rx, ry, rw, rh, tw, th), x = 0, y = 0,
+      sx = size[1] / rw, sy = size[2] / rh } }
+  end
+  local l, t, r, b = slices[1], slices[2], slices[3], slices[4]
+  local src_x, dst_x = { 0, l, rw - r, rw }, { 0, l, size[1] - r, size[1] }
+  local src_y, dst_y = { 0, t, rh - b, rh }, { 0, t, size[2] - b, size[2] }
+  local pieces = {}
+  for j = 1, 3 do
+    for i = 1, 3 do
+      local sw, sh = src_x[i + 1] - src_x[i], src_y[j + 1] - src_y[j]
+      local dw, dh = dst_x[i + 1] - dst_x[i], dst_y[j + 1] - dst_y[j]
+      if sw > 0 and sh > 0 and dw > 0 and dh > 0 then
+        pieces[#pieces + 1] = {
+          quad = love.graphics.newQuad(rx + src_x[i], ry + src_y[j], sw, sh, tw, th),
+          x = dst_x[i], y = dst_y[j], sx = dw / sw, sy = dh / sh,
+        }
+      end
+    end
+  end
+  return pieces
+end
+
 -- Loads a mesh file (`underdraw.layer` version 2) and the PNG it was cut
--- from (`image_path`). Returns a table:
---   size = {w, h} texels; texture = the Image, filtered and wrapped as the
---   mesh was cut for; vertices = the Mesh holding the one vertex array;
---   opaque, blended = a Mesh each (triangles, a vertex map into that array,
---   nil when the list is empty); rect = the layer's plain rectangle.
-function underdraw.load_mesh(path, image_path)
+-- from (`image_path`; for a region of a sprite sheet, the sheet). `entry`
+-- (optional) is the layer's entry of the draw list `list_path`: its
+-- "region", "size" and "slices" must agree with the mesh file, which is
+-- what is read. Returns a table:
+--   size = {w, h} texels as drawn; texture = the Image, filtered and
+--   wrapped as the mesh was cut for; vertices = the Mesh holding the one
+--   vertex array; opaque, blended = a Mesh each (triangles, a vertex map
+--   into that array, nil when the list is empty); plain = the pieces of
+--   the plain draw (underdraw.plain_pieces); mesh = the decoded mesh file;
+--   region = its "region" (nil for a plain layer); frame = 1.
+function underdraw.load_mesh(path, image_path, entry, list_path)
   local m = read_json(path, "give a mesh file written by underdraw")
   if m.format ~= "underdraw.layer" or m.version ~= 2 then
     bad(path, string.format("is format %s version %s, not underdraw.layer version 2",
@@ -231,12 +414,24 @@ function underdraw.load_mesh(path, image_path)
   if #pos % 2 ~= 0 or #uv ~= #pos or n < 1 then
     bad(path, "positions and uvs do not match", "export the scene again")
   end
+  if entry and (entry.region or entry.size or entry.slices) and not m.region then
+    bad(list_path or path, string.format("layer %s is a region of a sheet, but its mesh file %s has no \"region\"",
+      tostring(entry.name), path), "export the scene again")
+  end
 
   local bytes = read_file(image_path, "the layer's PNG must be where the draw list says")
   local data = love.image.newImageData(love.filesystem.newFileData(bytes, image_path))
-  if data:getWidth() ~= w or data:getHeight() ~= h then
-    bad(image_path, string.format("is %dx%d, but %s was cut for %dx%d", data:getWidth(),
-      data:getHeight(), path, w, h), "cut the layer again")
+  local iw, ih = data:getWidth(), data:getHeight()
+  local rect
+  if m.region then
+    check_region(path, image_path, m, iw, ih, entry, list_path)
+    rect = m.region.rect
+  else
+    if iw ~= w or ih ~= h then
+      bad(image_path, string.format("is %dx%d, but %s was cut for %dx%d", iw, ih, path, w, h),
+        "cut the layer again")
+    end
+    rect = { 0, 0, w, h }
   end
   -- mip_levels > 0: the meshes are safe down to that level, so mipmaps
   -- may be used; 0 means the texture is sampled at full size only.
@@ -254,7 +449,7 @@ function underdraw.load_mesh(path, image_path)
   for i = 1, n do
     verts[i] = { pos[2 * i - 1], pos[2 * i], uv[2 * i - 1], uv[2 * i] }
   end
-  local layer = { size = { w, h }, texture = texture, path = path }
+  local layer = { size = { w, h }, texture = texture, path = path, mesh = m, region = m.region, frame = 1 }
   -- the vertex array lives in one Mesh; the opaque triangles draw from it
   -- directly, the blended ones from a second Mesh that attaches its
   -- attributes (LÖVE shares the buffer; the second Mesh's own one-byte
@@ -278,13 +473,46 @@ function underdraw.load_mesh(path, image_path)
   end
   layer.opaque = part(m.opaque, "opaque")
   layer.blended = part(m.blended, "blended")
-  -- the plain rectangle: the whole image, two triangles
-  layer.rect = love.graphics.newMesh(underdraw.vertex_format, {
-    { 0, 0, 0, 0 }, { w, 0, 1, 0 }, { w, h, 1, 1 }, { 0, h, 0, 1 },
-  }, "triangles", "static")
-  layer.rect:setVertexMap(1, 2, 3, 1, 3, 4)
-  layer.rect:setTexture(texture)
+  -- the plain draw: the region's rectangle (the whole image for a plain
+  -- layer), in nine pieces for a nine-slice panel
+  layer.plain = underdraw.plain_pieces(rect, iw, ih, layer.size, m.region and m.region.slices)
   return layer
+end
+
+-- Rewrites the vertex array of `layer` (from load_mesh) from flat lists of
+-- positions and uvs (nil keeps the current one).
+local function set_vertices(layer, positions, uvs)
+  local m = layer.mesh
+  layer.positions = positions or layer.positions or m.positions
+  layer.uvs = uvs or layer.uvs or m.uvs
+  local verts = {}
+  for i = 1, #layer.positions / 2 do
+    verts[i] = { layer.positions[2 * i - 1], layer.positions[2 * i], layer.uvs[2 * i - 1], layer.uvs[2 * i] }
+  end
+  layer.vertices:setVertices(verts)
+end
+
+-- Draws a nine-slice panel layer at `size` = {w, h} texels from now on:
+-- its vertices placed by underdraw.place_panel, its plain pieces
+-- stretched alike. (A scene's layer keeps its copies' placement: size
+-- changes only how far the panel reaches.)
+function underdraw.set_panel_size(layer, size)
+  set_vertices(layer, underdraw.place_panel(layer.mesh, size), nil)
+  layer.size = { size[1], size[2] }
+  local r = layer.region
+  local rect = r.frames and r.frames[layer.frame] or r.rect
+  layer.plain = underdraw.plain_pieces(rect, r.sheet_size[1], r.sheet_size[2], layer.size, r.slices)
+end
+
+-- Draws frame `frame` (1-based) of an animation layer from now on: its
+-- uvs from underdraw.frame_uvs, its plain piece over that frame.
+function underdraw.set_frame(layer, frame)
+  set_vertices(layer, nil, underdraw.frame_uvs(layer.mesh, frame))
+  layer.frame = frame
+  local r = layer.region
+  if not r then error("set_frame: layer " .. tostring(layer.name) .. " is not a region of a sheet", 2) end
+  local rect = r.frames and r.frames[frame] or r.rect
+  layer.plain = underdraw.plain_pieces(rect, r.sheet_size[1], r.sheet_size[2], layer.size, r.slices)
 end
 
 ---------------------------------------------------------------------------
@@ -369,7 +597,7 @@ function underdraw.load_scene(dir)
         "export the scene again")
     end
     local fill = l.fill_width
-    local layer = underdraw.load_mesh(join(dir, l.mesh), join(dir, uri_path(l.image)))
+    local layer = underdraw.load_mesh(join(dir, l.mesh), join(dir, uri_path(l.image)), l, path)
     layer.name = l.name
     layer.position = { l.position[1], l.position[2] }
     layer.scale = l.scale
@@ -409,11 +637,26 @@ function Scene:draw_copies(layer, mesh, camera_x)
   return #origins
 end
 
+-- Draws the plain pieces of `layer` (its rectangle of the texture, or a
+-- panel's nine) at every copy on screen; returns the draw calls made.
+function Scene:draw_plain(layer, camera_x)
+  local origins = underdraw.copy_origins(layer, layer.size, self.viewport, camera_x)
+  local s = layer.scale
+  for _, o in ipairs(origins) do
+    for _, p in ipairs(layer.plain) do
+      love.graphics.draw(layer.texture, p.quad, o[1] + s * p.x, o[2] + s * p.y, 0, s * p.sx, s * p.sy)
+    end
+  end
+  return #origins * #layer.plain
+end
+
 -- Draws the frame at `camera_x` on the current canvas (which needs a
 -- depth buffer, cleared to scene.depth_clear, for the split way).
 -- `how` is "split" (default: the draw list's passes) or "plain" (every
--- layer's rectangle, blended, back to front, no depth). Returns the number
--- of love.graphics.draw calls (one per layer copy and draw).
+-- layer's rectangle, blended, back to front, no depth; a region's
+-- rectangle of its sheet, a nine-slice panel's nine pieces). Returns the
+-- number of love.graphics.draw calls (split: one per layer copy and draw;
+-- plain: one per layer copy and piece).
 function Scene:draw(camera_x, how)
   local calls = 0
   love.graphics.push("all")
@@ -423,7 +666,7 @@ function Scene:draw(camera_x, how)
     love.graphics.setDepthMode() -- no depth test, no write
     love.graphics.setBlendMode("alpha", "alphamultiply")
     for _, layer in ipairs(self.layers) do
-      calls = calls + self:draw_copies(layer, layer.rect, camera_x)
+      calls = calls + self:draw_plain(layer, camera_x)
     end
   else
     love.graphics.setShader(self.shader)
