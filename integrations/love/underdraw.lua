@@ -516,6 +516,39 @@ function underdraw.set_frame(layer, frame)
 end
 
 ---------------------------------------------------------------------------
+-- Drawing one layer, without a scene (a UI panel, a sprite): its top-left
+-- at (x, y), `scale` screen pixels per texel, at its current size and
+-- frame. The caller's blend mode is changed (wrap in push("all") / pop()).
+
+-- The plain way: the layer's pieces (underdraw.plain_pieces), blended
+-- "over". Returns the love.graphics.draw calls made.
+function underdraw.draw_plain(layer, x, y, scale)
+  love.graphics.setBlendMode("alpha", "alphamultiply")
+  for _, p in ipairs(layer.plain) do
+    love.graphics.draw(layer.texture, p.quad, x + scale * p.x, y + scale * p.y, 0, scale * p.sx, scale * p.sy)
+  end
+  return #layer.plain
+end
+
+-- The split way without a depth buffer: the opaque triangles with
+-- blending off, then the blended ones "over" (what a layer drawn alone
+-- needs; a scene's layers use Scene:draw's passes). Returns the draw calls.
+function underdraw.draw_split(layer, x, y, scale)
+  local calls = 0
+  if layer.opaque then
+    love.graphics.setBlendMode("replace", "premultiplied")
+    love.graphics.draw(layer.opaque, x, y, 0, scale, scale)
+    calls = calls + 1
+  end
+  if layer.blended then
+    love.graphics.setBlendMode("alpha", "alphamultiply")
+    love.graphics.draw(layer.blended, x, y, 0, scale, scale)
+    calls = calls + 1
+  end
+  return calls
+end
+
+---------------------------------------------------------------------------
 -- Placement: a texel (tx, ty) lands on screen at
 --   x = position.x + scale * tx - camera_x * parallax,  y = position.y + scale * ty
 -- and a layer with fill_width is drawn as copies
@@ -641,13 +674,11 @@ end
 -- panel's nine) at every copy on screen; returns the draw calls made.
 function Scene:draw_plain(layer, camera_x)
   local origins = underdraw.copy_origins(layer, layer.size, self.viewport, camera_x)
-  local s = layer.scale
+  local calls = 0
   for _, o in ipairs(origins) do
-    for _, p in ipairs(layer.plain) do
-      love.graphics.draw(layer.texture, p.quad, o[1] + s * p.x, o[2] + s * p.y, 0, s * p.sx, s * p.sy)
-    end
+    calls = calls + underdraw.draw_plain(layer, o[1], o[2], layer.scale)
   end
-  return #origins * #layer.plain
+  return calls
 end
 
 -- Draws the frame at `camera_x` on the current canvas (which needs a

@@ -591,3 +591,185 @@ fn love_places_panels_and_frames_by_the_rules() {
         }
     }
 }
+
+/// A LÖVE program (needs a display: run under xvfb-run) that loads the
+/// panel mesh (argument 1, cut at the panel's own size) and the animation
+/// mesh (argument 3) over the sheet (argument 2), and writes into the
+/// folder (argument 4): the panel resized by underdraw.set_panel_size to
+/// each size of the arguments after the fourth ("WxH"), drawn the split
+/// and the plain way at (MARGIN, MARGIN), scale 1 (`panel-W-H-split.png`,
+/// `...-plain.png`); and each frame of the animation chosen by
+/// underdraw.set_frame, drawn both ways at scale 2 (`frame-I-split.png`,
+/// `...-plain.png`); all over opaque black.
+const RESIZE_MAIN: &str = r#"
+package.path = UNDERDRAW_DIR .. "/?.lua;" .. package.path
+local underdraw = require("underdraw")
+local MARGIN = 4
+local function shot(layer, how, scale, path)
+  local w = math.ceil(layer.size[1] * scale) + 2 * MARGIN
+  local h = math.ceil(layer.size[2] * scale) + 2 * MARGIN
+  local canvas = love.graphics.newCanvas(w, h, { format = "normal", msaa = 0 })
+  love.graphics.push("all")
+  love.graphics.setCanvas(canvas)
+  love.graphics.clear(0, 0, 0, 1)
+  love.graphics.setColor(1, 1, 1, 1)
+  if how == "plain" then underdraw.draw_plain(layer, MARGIN, MARGIN, scale)
+  else underdraw.draw_split(layer, MARGIN, MARGIN, scale) end
+  love.graphics.pop()
+  underdraw.write_png(canvas, path)
+end
+function love.load(args)
+  love.errorhandler = function(msg)
+    io.stderr:write("error: " .. tostring(msg) .. "\n")
+    return function() return 1 end
+  end
+  local out = args[4]
+  local panel = underdraw.load_mesh(args[1], args[2])
+  for i = 5, #args do
+    local w, h = args[i]:match("^(%d+)x(%d+)$")
+    underdraw.set_panel_size(panel, { tonumber(w), tonumber(h) })
+    for _, how in ipairs({ "split", "plain" }) do
+      shot(panel, how, 1, string.format("%s/panel-%s-%s-%s.png", out, w, h, how))
+    end
+  end
+  local spark = underdraw.load_mesh(args[3], args[2])
+  for i = 1, #spark.region.frames do
+    underdraw.set_frame(spark, i)
+    for _, how in ipairs({ "split", "plain" }) do
+      shot(spark, how, 2, string.format("%s/frame-%d-%s.png", out, i, how))
+    end
+  end
+  print("done")
+  love.event.quit(0)
+end
+"#;
+
+/// The loader's set_panel_size and set_frame in the real engine: a panel
+/// cut at its own size and resized in LÖVE draws the split way as the
+/// plain way, and the plain way (nine Quads) shows at every pixel the
+/// sheet's LINEAR sample where the nine-slice rule maps it, composited
+/// over black; each animation frame alike, from that frame's rectangle.
+#[test]
+fn love_draws_resized_panels_and_frames_by_the_rules() {
+    if !have("love", "--version") || !have("xvfb-run", "--help") {
+        return;
+    }
+    const MARGIN: f64 = 4.0;
+    let dir = TempDir::new("love-resize");
+    let (png, regions) = sheet();
+    let cut = dir.path("cut");
+    run_underdraw(&[
+        "cut".as_ref(),
+        png.as_os_str(),
+        "--regions".as_ref(),
+        regions.as_os_str(),
+        "--out".as_ref(),
+        cut.as_os_str(),
+        "--quiet".as_ref(),
+    ]);
+    let program = dir.path("program");
+    fs::create_dir_all(&program).unwrap();
+    let main = format!(
+        "UNDERDRAW_DIR = {:?}\n{RESIZE_MAIN}",
+        root().join("integrations/love").display().to_string()
+    );
+    fs::write(program.join("main.lua"), main).unwrap();
+    let frames_dir = dir.path("frames");
+    fs::create_dir_all(&frames_dir).unwrap();
+    let panel_path = cut.join("ui-sheet/panel.mesh.json");
+    let spark_path = cut.join("ui-sheet/spark.mesh.json");
+    let sizes: [[u32; 2]; 3] = [[200, 90], [70, 260], [24, 31]];
+    let o = Command::new("xvfb-run")
+        .args(["-a", "-s", "-screen 0 640x480x24", "love"])
+        .arg(&program)
+        .arg(&panel_path)
+        .arg(&png)
+        .arg(&spark_path)
+        .arg(&frames_dir)
+        .args(sizes.iter().map(|[w, h]| format!("{w}x{h}")))
+        .output()
+        .expect("run xvfb-run love");
+    let stdout = String::from_utf8_lossy(&o.stdout);
+    assert!(
+        o.status.success() && stdout.contains("done"),
+        "{stdout}{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let sheet_png = read_rgba(&png);
+    // the plain frame against the rule, and the split frame against the
+    // plain one: the worst channel differences
+    let check = |name: &str, rect: [f64; 4], slices: [f64; 4], size: [f64; 2], scale: f64| {
+        let split = read_rgba(&frames_dir.join(format!("{name}-split.png")));
+        let plain = read_rgba(&frames_dir.join(format!("{name}-plain.png")));
+        assert_eq!(split.dimensions(), plain.dimensions(), "{name}");
+        let (mut rule, mut ways, mut inside) = (0.0f64, 0u8, 0usize);
+        for (x, y, p) in plain.enumerate_pixels() {
+            ways = ways.max(max_channel_diff(p, split.get_pixel(x, y)));
+            let tx = (x as f64 + 0.5 - MARGIN) / scale;
+            let ty = (y as f64 + 0.5 - MARGIN) / scale;
+            let want = if tx < 0.0 || ty < 0.0 || tx >= size[0] || ty >= size[1] {
+                [0.0; 4]
+            } else {
+                inside += 1;
+                let sx = rect[0] + unstretch(tx, rect[2], slices[0], slices[2], size[0]);
+                let sy = rect[1] + unstretch(ty, rect[3], slices[1], slices[3], size[1]);
+                let s = bilinear_clamp(&sheet_png, sx, sy);
+                // "over" on opaque black: colour times alpha
+                [
+                    s[0] * s[3] / 255.0,
+                    s[1] * s[3] / 255.0,
+                    s[2] * s[3] / 255.0,
+                    255.0,
+                ]
+            };
+            for c in 0..3 {
+                rule = rule.max((p[c] as f64 - want[c]).abs());
+            }
+        }
+        assert!(
+            inside as f64 >= size[0] * size[1] * scale * scale * 0.99,
+            "{name}"
+        );
+        assert!(
+            rule <= 3.0,
+            "{name}: the plain draw is {rule} levels off the sheet's LINEAR sample under the nine-slice rule"
+        );
+        assert!(
+            ways <= TOLERANCE,
+            "{name}: split and plain differ by {ways}/255"
+        );
+        println!("{name}: plain at most {rule:.2} levels off the rule, split vs plain at most {ways}/255");
+    };
+    let panel = json(&panel_path);
+    let f = |v: &Value| v.as_f64().unwrap();
+    let four = |v: &Value| [f(&v[0]), f(&v[1]), f(&v[2]), f(&v[3])];
+    let (rect, slices) = (
+        four(&panel["region"]["rect"]),
+        four(&panel["region"]["slices"]),
+    );
+    for [w, h] in sizes {
+        check(
+            &format!("panel-{w}-{h}"),
+            rect,
+            slices,
+            [w as f64, h as f64],
+            1.0,
+        );
+    }
+    let spark = json(&spark_path);
+    for (i, fr) in spark["region"]["frames"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .enumerate()
+    {
+        let rect = four(fr);
+        check(
+            &format!("frame-{}", i + 1),
+            rect,
+            [0.0; 4],
+            [rect[2], rect[3]],
+            2.0,
+        );
+    }
+}
