@@ -4,6 +4,10 @@
 //! (every layer's rectangle, blended), at three camera positions, one of
 //! them fractional.
 //!
+//! The `regions` module does the same for regions of a sprite sheet (a
+//! button, nine-slice panels, animation frames) and checks the loader's
+//! panel placement and frame choice.
+//!
 //! Needs Debian's `love` and `xvfb-run` (`.ci/run` installs them). Without
 //! them the test is skipped with a reason, except under `CI=true`, where it
 //! fails.

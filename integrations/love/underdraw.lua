@@ -9,6 +9,14 @@
 --   love.graphics.setCanvas({canvas, depth = true})
 --   love.graphics.clear(0, 0, 0, 1, false, scene.depth_clear)
 --
+-- Regions of a sprite sheet (a mesh file with a "region" key) draw from
+-- the sheet; a nine-slice panel can be placed at any size
+-- (underdraw.place_panel, set_panel_size) and an animation's frame chosen
+-- (underdraw.frame_uvs, set_frame). One layer alone (a UI panel):
+--   local panel = underdraw.load_mesh("ui/panel.mesh.json", "ui-sheet.png")
+--   underdraw.set_panel_size(panel, {200, 90})
+--   underdraw.draw_split(panel, x, y, scale)
+--
 -- One file, no dependencies but LÖVE 11 (LuaJIT / Lua 5.1); it reads files
 -- with io.open, so the export folder may lie anywhere on disk.
 
