@@ -152,7 +152,11 @@ fn max_channel_diff(a: &Rgba<u8>, b: &Rgba<u8>) -> u8 {
 
 /// The demo scene with its layers read from the exported meshes and the
 /// camera's only sample at `camera`, so `--dump-frame 0` dumps the frame
-/// LÖVE draws (the same meshes, placements and depths as the export).
+/// LÖVE draws (the same meshes, placements and depths as the export). A
+/// region of a sprite sheet cannot be read from a mesh file (its mesh is
+/// not the sheet's size): it is cut again, at the budget the scene gives
+/// it, which makes the exported mesh (the draw counts below check that
+/// the vertex counts agree).
 fn scene_at(export: &Path, camera: f64, path: &Path) {
     let demo = root().join("demo-layers");
     let mut scene: Value =
@@ -164,8 +168,15 @@ fn scene_at(export: &Path, camera: f64, path: &Path) {
         let name = l["name"].as_str().unwrap().to_string();
         let image = demo.join(l["image"].as_str().unwrap());
         let o = l.as_object_mut().unwrap();
-        o.remove("cut");
         o.insert("image".into(), image.display().to_string().into());
+        if o.contains_key("region") {
+            if let Some(r) = o.get("regions").and_then(|r| r.as_str()) {
+                let r = demo.join(r).display().to_string();
+                o.insert("regions".into(), r.into());
+            }
+            continue;
+        }
+        o.remove("cut");
         let mesh = export.join(format!("{name}.mesh.json"));
         o.insert("mesh".into(), mesh.display().to_string().into());
     }
@@ -276,11 +287,14 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
     let list: Value =
         serde_json::from_slice(&fs::read(export.join("draw-list.json")).unwrap()).unwrap();
     let mut vertices: HashMap<String, usize> = HashMap::new();
+    let mut pieces: HashMap<String, usize> = HashMap::new();
     for l in list["layers"].as_array().unwrap() {
-        vertices.insert(
-            l["name"].as_str().unwrap().into(),
-            l["vertices"].as_u64().unwrap() as usize,
-        );
+        let name: String = l["name"].as_str().unwrap().into();
+        vertices.insert(name.clone(), l["vertices"].as_u64().unwrap() as usize);
+        let mesh: Value =
+            serde_json::from_slice(&fs::read(export.join(l["mesh"].as_str().unwrap())).unwrap())
+                .unwrap();
+        pieces.insert(name, regions::plain_pieces(&mesh));
     }
     let sky = read_rgba(&root().join("demo-layers/sky.png"));
     let sky_layer = &list["layers"][0];
@@ -323,11 +337,15 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         let plain_png = dir.path(&format!("plain-{k}.png"));
         let said_split = love_frame(&export, camera, &split_png, false);
         let said_plain = love_frame(&export, camera, &plain_png, true);
-        // LÖVE drew as many layer copies as the model places
+        // LÖVE drew as many layer copies as the model places (a nine-slice
+        // panel's plain draw is nine pieces)
         let mut rect_vertices = vertices.clone();
         rect_vertices.values_mut().for_each(|v| *v = 4);
         let want_split = copies(split_draws, &vertices);
-        let want_plain = copies(rect_draws, &rect_vertices);
+        let want_plain: usize = rect_draws
+            .iter()
+            .map(|d| copies(std::slice::from_ref(d), &rect_vertices) * pieces[&d.layer])
+            .sum();
         assert!(
             said_split.contains(&format!(
                 ": split, camera {}, {want_split} draw calls",

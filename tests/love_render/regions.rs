@@ -128,14 +128,22 @@ fn add_region_keys(export: &Path) {
     fs::write(&path, serde_json::to_vec_pretty(&list).unwrap()).unwrap();
 }
 
-/// Pieces of a layer's plain draw: a region's rectangle, or a panel's
-/// nine (the insets are all non-zero in the demo's panel).
-fn plain_pieces(mesh: &Value) -> usize {
-    if mesh["region"].get("slices").is_some() {
-        9
-    } else {
-        1
-    }
+/// Pieces of a layer's plain draw (one draw call each): its rectangle, or
+/// a nine-slice panel's pieces of non-zero size.
+pub(crate) fn plain_pieces(mesh: &Value) -> usize {
+    let Some(s) = mesh.get("region").and_then(|r| r.get("slices")) else {
+        return 1;
+    };
+    let r = &mesh["region"]["rect"];
+    let n = |v: &Value| v.as_u64().unwrap();
+    let axis = |lo: u64, hi: u64, len: u64, to: u64| {
+        [(lo, lo), (len - lo - hi, to - lo - hi), (hi, hi)]
+            .iter()
+            .filter(|(a, b)| *a > 0 && *b > 0)
+            .count()
+    };
+    axis(n(&s[0]), n(&s[2]), n(&r[2]), n(&mesh["size"][0]))
+        * axis(n(&s[1]), n(&s[3]), n(&r[3]), n(&mesh["size"][1]))
 }
 
 #[test]
