@@ -59,8 +59,8 @@ function love.load(args)
   if opts.screenshot then
     local calls = scene:render(canvas, target, opts.camera, opts.how)
     underdraw.write_png(canvas, opts.screenshot)
-    print(string.format("wrote %s: %s, camera %s, %d draw calls", opts.screenshot, opts.how,
-      tostring(opts.camera), calls))
+    print(string.format("wrote %s: %s, camera %s, %d draw calls, %d textures", opts.screenshot, opts.how,
+      tostring(opts.camera), calls, scene.textures.count))
     love.event.quit(0)
     return
   end

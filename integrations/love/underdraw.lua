@@ -403,14 +403,16 @@ end
 -- from (`image_path`; for a region of a sprite sheet, the sheet). `entry`
 -- (optional) is the layer's entry of the draw list `list_path`: its
 -- "region", "size" and "slices" must agree with the mesh file, which is
--- what is read. Returns a table:
+-- what is read. `textures` (optional, {data = {}, images = {}, count = 0})
+-- shares textures between calls: layers drawn from one file with the same
+-- filter, mipmaps and wrap get one Image. Returns a table:
 --   size = {w, h} texels as drawn; texture = the Image, filtered and
 --   wrapped as the mesh was cut for; vertices = the Mesh holding the one
 --   vertex array; opaque, blended = a Mesh each (triangles, a vertex map
 --   into that array, nil when the list is empty); plain = the pieces of
 --   the plain draw (underdraw.plain_pieces); mesh = the decoded mesh file;
 --   region = its "region" (nil for a plain layer); frame = 1.
-function underdraw.load_mesh(path, image_path, entry, list_path)
+function underdraw.load_mesh(path, image_path, entry, list_path, textures)
   local m = read_json(path, "give a mesh file written by underdraw")
   if m.format ~= "underdraw.layer" or m.version ~= 2 then
     bad(path, string.format("is format %s version %s, not underdraw.layer version 2",
@@ -427,8 +429,14 @@ function underdraw.load_mesh(path, image_path, entry, list_path)
       tostring(entry.name), path), "export the scene again")
   end
 
-  local bytes = read_file(image_path, "the layer's PNG must be where the draw list says")
-  local data = love.image.newImageData(love.filesystem.newFileData(bytes, image_path))
+  -- `textures` (from load_scene) shares one decoded image, and one Image
+  -- per sampling state, between the layers drawn from one file (a sheet)
+  local data = textures and textures.data[image_path]
+  if not data then
+    local bytes = read_file(image_path, "the layer's PNG must be where the draw list says")
+    data = love.image.newImageData(love.filesystem.newFileData(bytes, image_path))
+    if textures then textures.data[image_path] = data end
+  end
   local iw, ih = data:getWidth(), data:getHeight()
   local rect
   if m.region then
@@ -444,14 +452,22 @@ function underdraw.load_mesh(path, image_path, entry, list_path)
   -- mip_levels > 0: the meshes are safe down to that level, so mipmaps
   -- may be used; 0 means the texture is sampled at full size only.
   local levels = m.filter and m.filter.mip_levels or 0
-  local texture = love.graphics.newImage(data, { mipmaps = levels > 0 })
   local filter = (m.filter and m.filter.mode == "nearest") and "nearest" or "linear"
-  texture:setFilter(filter, filter, 1) -- anisotropy 1: the contract assumes none
-  if levels > 0 then texture:setMipmapFilter(filter) end
   local wrap = m.wrap or "none"
   local wx = (wrap == "x" or wrap == "xy") and "repeat" or "clamp"
   local wy = (wrap == "y" or wrap == "xy") and "repeat" or "clamp"
-  texture:setWrap(wx, wy)
+  local key = table.concat({ image_path, tostring(levels > 0), filter, wx, wy }, "|")
+  local texture = textures and textures.images[key]
+  if not texture then
+    texture = love.graphics.newImage(data, { mipmaps = levels > 0 })
+    texture:setFilter(filter, filter, 1) -- anisotropy 1: the contract assumes none
+    if levels > 0 then texture:setMipmapFilter(filter) end
+    texture:setWrap(wx, wy)
+    if textures then
+      textures.images[key] = texture
+      textures.count = textures.count + 1
+    end
+  end
 
   local verts = {}
   for i = 1, n do
@@ -631,6 +647,7 @@ function underdraw.load_scene(dir)
     by_name = {},
     passes = list.passes,
     shader = love.graphics.newShader(underdraw.depth_shader_code),
+    textures = { data = {}, images = {}, count = 0 }, -- shared by the layers
   }, Scene)
   for i, l in ipairs(list.layers) do
     if l.repeat_x ~= nil then
@@ -638,7 +655,7 @@ function underdraw.load_scene(dir)
         "export the scene again")
     end
     local fill = l.fill_width
-    local layer = underdraw.load_mesh(join(dir, l.mesh), join(dir, uri_path(l.image)), l, path)
+    local layer = underdraw.load_mesh(join(dir, l.mesh), join(dir, uri_path(l.image)), l, path, scene.textures)
     layer.name = l.name
     layer.position = { l.position[1], l.position[2] }
     layer.scale = l.scale

@@ -223,6 +223,11 @@ fn love_draws_sheet_regions_split_as_plain() {
             )),
             "LÖVE said {said_split:?}, the model places {want_split} copies"
         );
+        // the sheet's region layers share one texture, the sky has its own
+        assert!(
+            said_split.contains("draw calls, 2 textures"),
+            "LÖVE said {said_split:?}"
+        );
         assert!(
             said_plain.contains(&format!(
                 ": plain, camera {camera}, {want_plain} draw calls"
