@@ -5,8 +5,8 @@
 //! them fractional.
 //!
 //! The `regions` module does the same for regions of a sprite sheet (a
-//! button, nine-slice panels, animation frames) and checks the loader's
-//! panel placement and frame choice.
+//! button, nine-slice panels, animation frames); the `panels` module checks
+//! the loader's panel placement and frame choice.
 //!
 //! Needs Debian's `love` and `xvfb-run` (`.ci/run` installs them). Without
 //! them the test is skipped with a reason, except under `CI=true`, where it
@@ -46,6 +46,9 @@ use common::TempDir;
 
 #[path = "love_render/regions.rs"]
 mod regions;
+
+#[path = "love_render/panels.rs"]
+mod panels;
 
 const BIN: &str = env!("CARGO_BIN_EXE_underdraw");
 /// Camera positions: the start, a sample of the demo scene (128 * 3) and a
