@@ -66,7 +66,13 @@ fn love_places_panels_and_frames_by_the_rules() {
         cut.as_os_str(),
         "--quiet".as_ref(),
     ]);
-    let panel_path = cut.join("ui-sheet/panel.mesh.json");
+    // the demo panel's vertices in the middle slices all sit on the slice
+    // lines (offset 0), where any stretch factor places them alike: add
+    // vertices inside them (used by no triangle) so the factor shows
+    let panel_path = dir.path("panel.mesh.json");
+    let mut panel = json(&cut.join("ui-sheet/panel.mesh.json"));
+    add_middle_vertices(&mut panel);
+    fs::write(&panel_path, serde_json::to_vec(&panel).unwrap()).unwrap();
     let spark_path = cut.join("ui-sheet/spark.mesh.json");
     let program = dir.path("program");
     fs::create_dir_all(&program).unwrap();
@@ -76,11 +82,65 @@ fn love_places_panels_and_frames_by_the_rules() {
         root().join("integrations/love").display().to_string()
     );
     fs::write(program.join("main.lua"), main).unwrap();
+    // the panel as a stretched scene layer exports it (its positions at
+    // 200 x 90, its anchors as cut): placing starts from either the same
+    let mut stretched: underdraw::mesh::LayerMesh =
+        serde_json::from_slice(&fs::read(&panel_path).unwrap()).unwrap();
+    let insets = stretched.region.as_ref().unwrap().slices.unwrap();
+    underdraw::scene::region::stretch_mesh(&mut stretched, insets, [200, 90]);
+    let stretched_path = dir.path("stretched.mesh.json");
+    fs::write(&stretched_path, serde_json::to_vec(&stretched).unwrap()).unwrap();
+    for placed in [&panel_path, &stretched_path] {
+        place_and_check(&program, placed, &panel_path, &spark_path);
+    }
+}
+
+/// Adds to a panel mesh (decoded, at the region's own size) vertices
+/// inside its middle slices, each with its anchor [column, row, dx, dy]
+/// and its position and uv as cut.
+fn add_middle_vertices(panel: &mut Value) {
+    let f = |v: &Value| v.as_f64().unwrap();
+    let r = panel["region"].clone();
+    let (w, h) = (f(&r["rect"][2]), f(&r["rect"][3]));
+    let s: Vec<f64> = r["slices"].as_array().unwrap().iter().map(f).collect();
+    let (sw, sh) = (f(&r["sheet_size"][0]), f(&r["sheet_size"][1]));
+    let at = |c: f64, d: f64, n: f64, lo: f64, hi: f64| match c as u32 {
+        0 => d,
+        1 => lo + d,
+        _ => n - hi + d,
+    };
+    for a in [
+        [1.0, 1.0, 7.5, 3.0],
+        [1.0, 0.0, 0.5, 5.0],
+        [2.0, 1.0, 4.0, 23.5],
+        [0.0, 2.0, 11.0, 6.5],
+        [1.0, 2.0, 12.25, 0.0],
+    ] {
+        let (x, y) = (at(a[0], a[2], w, s[0], s[2]), at(a[1], a[3], h, s[1], s[3]));
+        let push = |key: &str, v: Vec<f64>, p: &mut Value| {
+            let list = p[key].as_array_mut().unwrap();
+            list.extend(v.into_iter().map(Value::from));
+        };
+        push("positions", vec![x, y], panel);
+        let uv = vec![(f(&r["rect"][0]) + x) / sw, (f(&r["rect"][1]) + y) / sh];
+        push("uvs", uv, panel);
+        panel["region"]["slice_positions"]
+            .as_array_mut()
+            .unwrap()
+            .push(serde_json::json!(a));
+    }
+}
+
+/// Runs the PLACE_MAIN program in `program` on the panel mesh file
+/// `placed` and the animation `spark_path`, and checks its lines against
+/// the nine-slice rule applied to the positions of the panel as cut
+/// (`panel_path`) and against the frames' rectangles.
+fn place_and_check(program: &Path, placed: &Path, panel_path: &Path, spark_path: &Path) {
     let sizes: [[u32; 2]; 5] = [[48, 48], [200, 90], [70, 260], [24, 31], [23, 60]];
     let o = Command::new("love")
-        .arg(&program)
-        .arg(&panel_path)
-        .arg(&spark_path)
+        .arg(program)
+        .arg(placed)
+        .arg(spark_path)
         .args(sizes.iter().map(|[w, h]| format!("{w}x{h}")))
         .output()
         .expect("run love");
@@ -98,7 +158,7 @@ fn love_places_panels_and_frames_by_the_rules() {
             .collect()
     };
 
-    let panel = json(&panel_path);
+    let panel = json(panel_path);
     let r = &panel["region"];
     let f = |v: &Value| v.as_f64().unwrap();
     let (w, h) = (f(&r["rect"][2]), f(&r["rect"][3]));
@@ -137,7 +197,8 @@ fn love_places_panels_and_frames_by_the_rules() {
             for a in 0..2 {
                 assert!(
                     (got[2 * i + a] - want[a]).abs() <= 1e-4,
-                    "size {k} {dw} x {dh}: vertex {i} at ({}, {}) placed at {:?}, the rule says {want:?}",
+                    "{}: size {k} {dw} x {dh}: vertex {i} at ({}, {}) placed at {:?}, the rule says {want:?}",
+                    placed.display(),
                     p[0],
                     p[1],
                     &got[2 * i..2 * i + 2]
@@ -146,7 +207,7 @@ fn love_places_panels_and_frames_by_the_rules() {
         }
     }
 
-    let spark = json(&spark_path);
+    let spark = json(spark_path);
     let frames = spark["region"]["frames"].as_array().unwrap();
     let sheet_size = [
         f(&spark["region"]["sheet_size"][0]),
