@@ -11,7 +11,7 @@ use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
-use underdraw::check::check_mesh;
+use underdraw::check::{check_mesh, check_region_mesh};
 use underdraw::frame::{measure, render};
 use underdraw::io::{load_alpha, load_mesh};
 use underdraw::scene::run::load_frame_dump;
@@ -226,17 +226,23 @@ fn allocation_beats_the_even_spread() {
         assert_eq!(mesh.budget, Some(budget));
         assert!(mesh.vertex_count() <= budget, "{name}");
         vertices += mesh.vertex_count();
-        let image = scene["layers"]
+        let layer = scene["layers"]
             .as_array()
             .unwrap()
             .iter()
             .find(|s| s["name"] == name)
-            .unwrap()["image"]
-            .as_str()
-            .unwrap()
-            .to_string();
+            .unwrap();
+        let image = layer["image"].as_str().unwrap();
         let map = load_alpha(&root().join("demo-layers").join(image)).unwrap();
-        assert!(check_mesh(&mesh, &map).unwrap().holds(), "{name}");
+        if layer["region"].is_string() {
+            // a region of a sheet: its mesh is checked against the whole
+            // sheet, inside the region's rectangle
+            assert!(mesh.region.is_some(), "{name}: no region key");
+            let report = check_region_mesh(&mesh, &map, None).unwrap();
+            assert!(report.holds(), "{name}");
+        } else {
+            assert!(check_mesh(&mesh, &map).unwrap().holds(), "{name}");
+        }
     }
     assert!(vertices <= VERTEX_TOTAL, "{vertices} vertices");
 }

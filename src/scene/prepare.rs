@@ -31,7 +31,8 @@ pub struct Layer {
     /// The layer's mesh: cut on the fly, or read from its mesh file.
     pub mesh: LayerMesh,
     /// What a layer cut on the fly is cut from (to cut it again at other
-    /// budgets); `None` for a layer read from a mesh file.
+    /// budgets): its image, or for a region of a sprite sheet the whole
+    /// sheet; `None` for a layer read from a mesh file.
     pub alpha: Option<Arc<LayerAlpha>>,
     /// The cut's remarks.
     pub notes: Vec<String>,
@@ -46,6 +47,45 @@ impl Layer {
             MeshSource::File(_) => None,
         }
     }
+
+    /// True for a layer that is a region of a sprite sheet
+    /// ([`MeshSource::Region`]).
+    pub fn is_region(&self) -> bool {
+        matches!(self.spec.mesh, MeshSource::Region(_))
+    }
+
+    /// A region layer cut again at `budget` (the way [`prepare_layers`]
+    /// cut it: on the whole sheet, stretched for a panel given a `size`);
+    /// `None` for a layer that is not a region of a sheet.
+    pub fn region_cut_at(&self, budget: usize) -> Option<Result<LayerMesh, FileError>> {
+        let (MeshSource::Region(r), Some(sheet)) = (&self.spec.mesh, &self.alpha) else {
+            return None;
+        };
+        let mut r = r.clone();
+        r.settings.budget = budget;
+        Some(
+            super::region::cut_region_layer(&self.spec.image, sheet.level0(), &r)
+                .map(|(mesh, _)| mesh),
+        )
+    }
+}
+
+/// Every region layer among `free` cut at each of `budgets`
+/// ([`Layer::region_cut_at`]), in parallel, keyed by (layer index,
+/// budget); the other layers are cut through [`cut_all`].
+pub fn cut_regions_at(
+    layers: &[Layer],
+    free: &[usize],
+    budgets: &[usize],
+) -> Result<HashMap<(usize, usize), LayerMesh>, FileError> {
+    let jobs: Vec<(usize, usize)> = free
+        .iter()
+        .filter(|&&i| layers[i].is_region())
+        .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
+        .collect();
+    jobs.par_iter()
+        .filter_map(|&(i, b)| layers[i].region_cut_at(b).map(|m| m.map(|m| ((i, b), m))))
+        .collect()
 }
 
 /// What a layer is cut from: a PNG's alpha, or a shipped texture's decoded
@@ -253,7 +293,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
                 Ok(Layer {
                     spec: spec.clone(),
                     mesh,
-                    alpha: None,
+                    alpha: Some(maps[&spec.image].clone()),
                     notes,
                 })
             }
