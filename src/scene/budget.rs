@@ -312,7 +312,9 @@ pub fn allocate_scene(
         .collect();
     let cuts = cut_all(&jobs, &maps);
     // regions of a sprite sheet: cut on the whole sheet, stretched as drawn
-    let region_cuts = cut_regions_at(layers, &free, &budgets)?;
+    let region_cuts = cut_regions_at(layers, &free, &budgets, even)?;
+    // a region has no cut below what its pieces need
+    let cut_at = |i: usize, b: usize| !layers[i].is_region() || region_cuts.contains_key(&(i, b));
     let candidate = |i: usize, b: usize| {
         region_cuts
             .get(&(i, b))
@@ -353,6 +355,7 @@ pub fn allocate_scene(
             .map(|&i| {
                 budgets
                     .par_iter()
+                    .filter(|&&b| cut_at(i, b))
                     .map(|&b| {
                         let m = candidate(i, b);
                         CurveEntry {

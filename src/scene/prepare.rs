@@ -72,20 +72,36 @@ impl Layer {
 
 /// Every region layer among `free` cut at each of `budgets`
 /// ([`Layer::region_cut_at`]), in parallel, keyed by (layer index,
-/// budget); the other layers are cut through [`cut_all`].
+/// budget); the other layers are cut through [`cut_all`]. A budget a
+/// region cannot be cut at (below what a nine-slice panel's pieces need)
+/// has no entry; the error is returned only when the region cannot be cut
+/// at `required` (the even share of the vertex total).
 pub fn cut_regions_at(
     layers: &[Layer],
     free: &[usize],
     budgets: &[usize],
+    required: usize,
 ) -> Result<HashMap<(usize, usize), LayerMesh>, FileError> {
     let jobs: Vec<(usize, usize)> = free
         .iter()
         .filter(|&&i| layers[i].is_region())
         .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
         .collect();
-    jobs.par_iter()
-        .filter_map(|&(i, b)| layers[i].region_cut_at(b).map(|m| m.map(|m| ((i, b), m))))
-        .collect()
+    let cuts: Vec<((usize, usize), Result<LayerMesh, FileError>)> = jobs
+        .par_iter()
+        .filter_map(|&(i, b)| layers[i].region_cut_at(b).map(|m| ((i, b), m)))
+        .collect();
+    let mut out = HashMap::new();
+    for ((i, b), m) in cuts {
+        match m {
+            Ok(m) => {
+                out.insert((i, b), m);
+            }
+            Err(e) if b == required => return Err(e),
+            Err(_) => {}
+        }
+    }
+    Ok(out)
 }
 
 /// What a layer is cut from: a PNG's alpha, or a shipped texture's decoded
