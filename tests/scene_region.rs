@@ -219,6 +219,43 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         let c = run(&["check", tampered.to_str().unwrap(), sheet.to_str().unwrap()]);
         status(&c, 1, &format!("check a tampered panel at {size:?}"));
     }
+    // the same scene from mesh files: the exported ones (a panel already
+    // stretched) and the panel as `cut --regions` wrote it (stretched when
+    // the scene is loaded) draw the frame the cut scene drew
+    let mut from_files = scene.clone();
+    for l in from_files["layers"].as_array_mut().unwrap() {
+        let name = l["name"].as_str().unwrap().to_string();
+        let mesh = match name.as_str() {
+            "panel-0" => cut_dir.join("ui-sheet/panel.mesh.json"),
+            _ => export.join(format!("{name}.mesh.json")),
+        };
+        let o = l.as_object_mut().unwrap();
+        o.remove("cut");
+        o.insert("mesh".into(), mesh.to_str().unwrap().into());
+    }
+    let path2 = dir.path("files.scene.json");
+    std::fs::write(&path2, serde_json::to_vec_pretty(&from_files).unwrap()).unwrap();
+    let out2 = dir.path("out2");
+    let o = run(&[
+        "scene",
+        path2.to_str().unwrap(),
+        "--out",
+        out2.to_str().unwrap(),
+        "--dump-frame",
+        "0",
+    ]);
+    status(&o, 0, "scene with region mesh files");
+    for s in ["split", "outline"] {
+        let f = format!("counts-0-{s}.png");
+        let (a, b) = (
+            image::open(out.join(&f)).unwrap(),
+            image::open(out2.join(&f)).unwrap(),
+        );
+        assert!(
+            a.as_bytes() == b.as_bytes(),
+            "{f}: mesh files draw another frame"
+        );
+    }
     // the outline strategy's counts (every triangle blended, no depth): the
     // UI layers do not overlap, so a panel's screen box holds its fragments
     let counts = image::open(out.join("counts-0-outline.png"))

@@ -301,6 +301,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
                     notes,
                 })
             }
+            MeshSource::Region(r) if r.mesh.is_some() => region_mesh_file(spec, r),
             MeshSource::Region(r) => {
                 // cut the way it ships: from the sheet's texels, whole-sheet regions
                 let (mesh, mut notes) =
@@ -327,9 +328,104 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
         .collect()
 }
 
+/// A region layer read from its mesh file (`"region"` with `"mesh"`): the
+/// file must be a mesh of that region of the sheet (its `region` key's
+/// rectangle and sheet size), drawn at the layer's size (a mesh of the
+/// region's own size is stretched to a panel's `size` here; one exported
+/// stretched is used as it is). Its floor and report use the settings the
+/// file records; the allocation of a vertex total keeps it as it is.
+fn region_mesh_file(spec: &LayerSpec, r: &super::file::RegionLayer) -> Result<Layer, FileError> {
+    let path = r.mesh.as_ref().expect("a region mesh file");
+    let mut mesh = load_mesh(path)?;
+    check_mesh_structure(path, &mesh)?;
+    let sheet = image_size(&spec.image)?;
+    let regions = crate::sheet::regions::load_regions(&r.regions, sheet)?;
+    let region = regions.iter().find(|g| g.name == r.name).ok_or_else(|| {
+        FileError::new(
+            &r.regions,
+            format!("has no region named {:?}", r.name),
+            "give a region of the regions file",
+        )
+    })?;
+    let g = &region.rect;
+    let rect = [g.x, g.y, g.w, g.h];
+    let hint = "cut the region again with `underdraw cut --regions`, or point the layer at the region it was cut from";
+    match &mesh.region {
+        Some(m) if m.rect == rect && m.sheet_size == [sheet.0, sheet.1] => {}
+        _ => {
+            return Err(FileError::new(
+                path,
+                format!(
+                    "is not a mesh of region {:?} ({rect:?}) of the {} x {} sheet {}",
+                    r.name,
+                    sheet.0,
+                    sheet.1,
+                    spec.image.display()
+                ),
+                hint,
+            ))
+        }
+    }
+    let own = [g.w, g.h];
+    let slices = mesh.region.as_ref().and_then(|m| m.slices);
+    match (r.size, slices) {
+        (Some(size), Some(insets)) if mesh.size == own && size != own => {
+            super::region::stretch_mesh(&mut mesh, insets, size)
+        }
+        _ => {}
+    }
+    let want = r.size.unwrap_or(own);
+    if mesh.size != want {
+        return Err(FileError::new(
+            path,
+            format!(
+                "is drawn {} x {}, but the layer draws region {:?} at {} x {}",
+                mesh.size[0], mesh.size[1], r.name, want[0], want[1]
+            ),
+            hint,
+        ));
+    }
+    let mut spec = spec.clone();
+    if let MeshSource::Region(r) = &mut spec.mesh {
+        r.settings = CutSettings {
+            budget: mesh.budget.unwrap_or(r.settings.budget),
+            filter: mesh.filter,
+            alpha: mesh.alpha,
+            wrap: mesh.wrap,
+        };
+    }
+    Ok(Layer {
+        spec,
+        mesh,
+        alpha: None,
+        notes: Vec::new(),
+    })
+}
+
 /// What drawing a mesh file needs: whole triangles, indices naming vertices,
 /// finite positions, and the size of the layer's image.
 fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), FileError> {
+    check_mesh_structure(path, mesh)?;
+    let dims = image_size(image)?;
+    if [dims.0, dims.1] != mesh.size {
+        return Err(FileError::new(
+            path,
+            format!(
+                "was cut for a {} x {} layer, but {} is {} x {}",
+                mesh.size[0],
+                mesh.size[1],
+                image.display(),
+                dims.0,
+                dims.1
+            ),
+            "cut the mesh from this image again, or point the layer at the image it was cut from",
+        ));
+    }
+    Ok(())
+}
+
+/// Whole triangles, indices naming vertices, finite positions.
+fn check_mesh_structure(path: &Path, mesh: &LayerMesh) -> Result<(), FileError> {
     let hint = "cut the layer again with `underdraw cut`";
     let n = mesh.positions.len() / 2;
     if !mesh.positions.len().is_multiple_of(2) || mesh.positions.iter().any(|v| !v.is_finite()) {
@@ -354,21 +450,6 @@ fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), Fi
                 hint,
             ));
         }
-    }
-    let dims = image_size(image)?;
-    if [dims.0, dims.1] != mesh.size {
-        return Err(FileError::new(
-            path,
-            format!(
-                "was cut for a {} x {} layer, but {} is {} x {}",
-                mesh.size[0],
-                mesh.size[1],
-                image.display(),
-                dims.0,
-                dims.1
-            ),
-            "cut the mesh from this image again, or point the layer at the image it was cut from",
-        ));
     }
     Ok(())
 }
