@@ -11,7 +11,7 @@ use std::fs;
 use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 use std::sync::OnceLock;
-use underdraw::check::check_mesh;
+use underdraw::check::{check_mesh, check_region_mesh};
 use underdraw::frame::{measure, render};
 use underdraw::io::{load_alpha, load_mesh};
 use underdraw::scene::run::load_frame_dump;
@@ -46,6 +46,8 @@ fn demo() -> &'static DemoRun {
             .arg(&out)
             .args(["--dump-frame", &DUMPED.to_string()])
             .args(["--vertex-total", &VERTEX_TOTAL.to_string()])
+            .arg("--report")
+            .arg(out.join("report"))
             .output()
             .expect("run underdraw");
         assert!(
@@ -226,17 +228,23 @@ fn allocation_beats_the_even_spread() {
         assert_eq!(mesh.budget, Some(budget));
         assert!(mesh.vertex_count() <= budget, "{name}");
         vertices += mesh.vertex_count();
-        let image = scene["layers"]
+        let layer = scene["layers"]
             .as_array()
             .unwrap()
             .iter()
             .find(|s| s["name"] == name)
-            .unwrap()["image"]
-            .as_str()
-            .unwrap()
-            .to_string();
+            .unwrap();
+        let image = layer["image"].as_str().unwrap();
         let map = load_alpha(&root().join("demo-layers").join(image)).unwrap();
-        assert!(check_mesh(&mesh, &map).unwrap().holds(), "{name}");
+        if layer["region"].is_string() {
+            // a region of a sheet: its mesh is checked against the whole
+            // sheet, inside the region's rectangle
+            assert!(mesh.region.is_some(), "{name}: no region key");
+            let report = check_region_mesh(&mesh, &map, None).unwrap();
+            assert!(report.holds(), "{name}");
+        } else {
+            assert!(check_mesh(&mesh, &map).unwrap().holds(), "{name}");
+        }
     }
     assert!(vertices <= VERTEX_TOTAL, "{vertices} vertices");
 }
@@ -565,4 +573,80 @@ fn a_ktx2_layer_is_cut_and_scored() {
         "{err}"
     );
     assert!(err.contains("mip_levels"), "{err}");
+}
+
+/// The README's main scene draws the sheet's nine-slice panel at three
+/// sizes: per the scene file (read here, not through the library), three
+/// layers of region "panel" with three different `size`s; each is drawn
+/// by the rect strategy as exactly its stretched rectangle on screen
+/// (position to position + size, parallax 0), and the report page shows
+/// each with its preview over the stretched panel.
+#[test]
+fn the_demo_draws_the_sheet_panel_at_three_sizes() {
+    let scene: Value = serde_json::from_str(
+        &fs::read_to_string(root().join("demo-layers/harbour.scene.json")).unwrap(),
+    )
+    .unwrap();
+    let panels: Vec<&Value> = scene["layers"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .filter(|l| l["region"] == "panel")
+        .collect();
+    let mut sizes: Vec<(u64, u64)> = panels
+        .iter()
+        .map(|l| {
+            (
+                l["size"][0].as_u64().unwrap(),
+                l["size"][1].as_u64().unwrap(),
+            )
+        })
+        .collect();
+    sizes.sort();
+    sizes.dedup();
+    assert!(sizes.len() >= 3, "panel sizes in the demo: {sizes:?}");
+    let run = demo();
+    let dump = load_frame_dump(&run.out.join(format!("frame-{DUMPED}.json"))).unwrap();
+    let page = fs::read_to_string(run.out.join("report/index.html")).unwrap();
+    for l in panels {
+        let name = l["name"].as_str().unwrap();
+        let (x, y) = (
+            l["position"][0].as_f64().unwrap(),
+            l["position"][1].as_f64().unwrap(),
+        );
+        let (w, h) = (
+            l["size"][0].as_f64().unwrap(),
+            l["size"][1].as_f64().unwrap(),
+        );
+        let draw = dump.strategies["rect"]
+            .draws
+            .iter()
+            .find(|d| d.layer == name)
+            .unwrap();
+        let xs = draw.positions.iter().step_by(2).map(|&v| v as f64);
+        let ys = draw.positions.iter().skip(1).step_by(2).map(|&v| v as f64);
+        let fold = |it: &mut dyn Iterator<Item = f64>, min: bool| {
+            it.fold(if min { f64::MAX } else { f64::MIN }, |a, b| {
+                if min {
+                    a.min(b)
+                } else {
+                    a.max(b)
+                }
+            })
+        };
+        let box_ = [
+            fold(&mut xs.clone(), true),
+            fold(&mut ys.clone(), true),
+            fold(&mut xs.clone(), false),
+            fold(&mut ys.clone(), false),
+        ];
+        assert_eq!(box_, [x, y, x + w, y + h], "{name}: the rectangle drawn");
+        let preview = format!("{name}.preview.png");
+        assert!(page.contains(&preview), "{name}: no preview on the page");
+        let (pw, ph) = image::image_dimensions(run.out.join("report").join(&preview)).unwrap();
+        assert!(
+            pw >= w.min(240.0) as u32 && ph > 0,
+            "{name}: preview {pw} x {ph}"
+        );
+    }
 }

@@ -5,6 +5,11 @@
 //! placed by their slice anchors (the engine's rule, written here) and
 //! rasterized here with the top-left rule at pixel centres (Direct3D 11
 //! rasterization rules, from memory), vertices snapped to 1/256 pixel.
+//! The export carries what an engine needs for a region (the sheet, the
+//! region's rectangle, a stretched panel's drawn size and insets, read
+//! here from the regions file), and each stretched panel's exported mesh
+//! passes `check` against the sheet, while a vertex moved off its anchor's
+//! place fails it.
 
 mod common;
 mod sheet_support;
@@ -146,6 +151,111 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         sheet.to_str().unwrap(),
     ]);
     status(&c, 0, "check the panel region");
+    // the draw list: the sheet, the region's rectangle, and for a panel
+    // drawn stretched its size and insets, as the regions file gives them
+    let regions: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(dir.path("ui-sheet.regions.json")).unwrap()).unwrap();
+    let entry = |name: &str| -> serde_json::Value {
+        regions["regions"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|r| r["name"] == name)
+            .unwrap()
+            .clone()
+    };
+    let list: serde_json::Value =
+        serde_json::from_slice(&std::fs::read(export.join("draw-list.json")).unwrap()).unwrap();
+    let (sw, sh) = image::image_dimensions(&sheet).unwrap();
+    for l in list["layers"].as_array().unwrap() {
+        let name = l["name"].as_str().unwrap();
+        let image = export.join(l["image"].as_str().unwrap());
+        assert_eq!(
+            std::fs::canonicalize(image).unwrap(),
+            std::fs::canonicalize(&sheet).unwrap(),
+            "{name}: image is the sheet"
+        );
+        assert_eq!(
+            l["region"]["sheet_size"],
+            serde_json::json!([sw, sh]),
+            "{name}"
+        );
+        let want = entry(if name == "play" {
+            "button-play"
+        } else {
+            "panel"
+        });
+        assert_eq!(l["region"]["rect"], want["rect"], "{name}");
+        if name == "play" {
+            assert!(l.get("size").is_none() && l.get("slices").is_none(), "{l}");
+        } else {
+            let k: usize = name["panel-".len()..].parse().unwrap();
+            assert_eq!(l["size"], serde_json::json!(PANELS[k].0), "{name}");
+            assert_eq!(l["slices"], want["slices"], "{name}");
+        }
+    }
+    // each stretched panel's exported mesh: placed by the engine's rule,
+    // checked against the sheet; a vertex moved off its place fails
+    for (k, (size, _)) in PANELS.iter().enumerate() {
+        let file = export.join(format!("panel-{k}.mesh.json"));
+        let m = load(&file);
+        assert_eq!(m.size, *size);
+        let want = stretched(&panel, *size);
+        for (i, w) in want.iter().enumerate() {
+            let got = m.position(i as u32);
+            assert!(
+                (got[0] as f64 - w[0]).abs() < 1e-3 && (got[1] as f64 - w[1]).abs() < 1e-3,
+                "panel {size:?}, vertex {i}: {got:?} vs {w:?}"
+            );
+        }
+        let c = run(&["check", file.to_str().unwrap(), sheet.to_str().unwrap()]);
+        status(&c, 0, &format!("check the panel exported at {size:?}"));
+        let mut bad: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(&file).unwrap()).unwrap();
+        let x = bad["positions"][0].as_f64().unwrap();
+        bad["positions"][0] = serde_json::json!(x + 0.5);
+        let tampered = dir.path(&format!("tampered-{k}.mesh.json"));
+        std::fs::write(&tampered, serde_json::to_vec(&bad).unwrap()).unwrap();
+        let c = run(&["check", tampered.to_str().unwrap(), sheet.to_str().unwrap()]);
+        status(&c, 1, &format!("check a tampered panel at {size:?}"));
+    }
+    // the same scene from mesh files: the exported ones (a panel already
+    // stretched) and the panel as `cut --regions` wrote it (stretched when
+    // the scene is loaded) draw the frame the cut scene drew
+    let mut from_files = scene.clone();
+    for l in from_files["layers"].as_array_mut().unwrap() {
+        let name = l["name"].as_str().unwrap().to_string();
+        let mesh = match name.as_str() {
+            "panel-0" => cut_dir.join("ui-sheet/panel.mesh.json"),
+            _ => export.join(format!("{name}.mesh.json")),
+        };
+        let o = l.as_object_mut().unwrap();
+        o.remove("cut");
+        o.insert("mesh".into(), mesh.to_str().unwrap().into());
+    }
+    let path2 = dir.path("files.scene.json");
+    std::fs::write(&path2, serde_json::to_vec_pretty(&from_files).unwrap()).unwrap();
+    let out2 = dir.path("out2");
+    let o = run(&[
+        "scene",
+        path2.to_str().unwrap(),
+        "--out",
+        out2.to_str().unwrap(),
+        "--dump-frame",
+        "0",
+    ]);
+    status(&o, 0, "scene with region mesh files");
+    for s in ["split", "outline"] {
+        let f = format!("counts-0-{s}.png");
+        let (a, b) = (
+            image::open(out.join(&f)).unwrap(),
+            image::open(out2.join(&f)).unwrap(),
+        );
+        assert!(
+            a.as_bytes() == b.as_bytes(),
+            "{f}: mesh files draw another frame"
+        );
+    }
     // the outline strategy's counts (every triangle blended, no depth): the
     // UI layers do not overlap, so a panel's screen box holds its fragments
     let counts = image::open(out.join("counts-0-outline.png"))

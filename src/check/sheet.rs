@@ -8,6 +8,15 @@
 //! region (and each frame by its offset), and a nine-slice panel's
 //! triangles must each lie within one slice, with anchors that give back
 //! their positions.
+//!
+//! A nine-slice panel drawn stretched (a mesh whose `size` is not the
+//! region's, as `scene --export` writes a panel given a `size`) is checked
+//! by undoing the stretch exactly: each vertex's `slice_positions` anchor
+//! gives its place in the region, where the contract is checked as above,
+//! and its stretched position must be where that anchor lands at the drawn
+//! size (corners unscaled, the middle slices scaled). Since no triangle
+//! crosses a slice line and each slice is moved by an affine map of its
+//! own, the stretched panel is that map's image of the checked geometry.
 
 use super::regions::region_runs;
 use super::runs::{intersect_into, union_into, CellRuns};
@@ -20,11 +29,20 @@ use crate::mesh::{LayerMesh, MeshRegion, FORMAT, VERSION};
 /// below it for sheets up to 16384 texels).
 pub const UV_TOLERANCE: f64 = 1e-6;
 
+/// A stretched panel's vertex counts as misplaced when it lies farther than
+/// this share of its distance from the panel's corner (at least a texel's
+/// share) from where its anchor lands: f32 rounding of the stretch is far
+/// below it.
+pub const STRETCH_TOLERANCE: f64 = 1e-6;
+
 /// What [`check_region_mesh`] measured.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct RegionReport {
     /// The contract's areas within the region's rectangle.
     pub contract: ContractReport,
+    /// For a nine-slice panel drawn stretched, the size it is drawn at
+    /// (the contract is checked on the panel unstretched).
+    pub stretched_to: Option<[u32; 2]>,
     /// Vertices whose texture coordinate is not (position + rect corner) /
     /// sheet size, or frame offsets that are not the frames' distances.
     pub wrong_uvs: usize,
@@ -133,6 +151,20 @@ pub fn check_region_mesh(
             });
         }
     }
+    // a panel drawn stretched: back to the region's own geometry
+    let mut stretch_errors = 0;
+    let unstretched;
+    let mut stretched_to = None;
+    let mesh = match region.slices {
+        Some(slices) if mesh.size != [w, h] => {
+            let (m, wrong) = unstretch(mesh, [w, h], slices, region)?;
+            unstretched = m;
+            stretch_errors = wrong;
+            stretched_to = Some(mesh.size);
+            &unstretched
+        }
+        _ => mesh,
+    };
     if mesh.size != [w, h] {
         return Err(CheckError::SizeMismatch {
             mesh_w: mesh.size[0],
@@ -161,6 +193,8 @@ pub fn check_region_mesh(
     let (s, c) = (s.expect("a frame"), c.expect("a frame"));
     let mut report = RegionReport {
         contract: measure(mesh, (w, h), &s, &c),
+        stretched_to,
+        wrong_anchors: stretch_errors,
         ..Default::default()
     };
 
@@ -240,6 +274,78 @@ pub fn check_region_mesh(
         }
     }
     Ok(report)
+}
+
+/// A nine-slice panel mesh drawn stretched to `mesh.size`, brought back to
+/// the region's own size `[w, h]`: each vertex at its anchor's place in the
+/// region (slice line + offset). Also counts the vertices whose stretched
+/// position is not where their anchor lands at the drawn size, or whose
+/// anchor is not a slice and an offset inside it.
+fn unstretch(
+    mesh: &LayerMesh,
+    [w, h]: [u32; 2],
+    [l, t, r, b]: [u32; 4],
+    region: &MeshRegion,
+) -> Result<(LayerMesh, usize), CheckError> {
+    let [sw, sh] = mesh.size;
+    if sw < l + r || sh < t + b {
+        return Err(CheckError::BadRegion {
+            why: format!(
+                "the panel is drawn {sw} x {sh}, smaller than its corners ({} x {})",
+                l + r,
+                t + b
+            ),
+        });
+    }
+    let anchors = match &region.slice_positions {
+        Some(a) if a.len() == mesh.vertex_count() => a,
+        _ => {
+            return Err(CheckError::BadRegion {
+                why: format!(
+                    "the panel is drawn stretched to {sw} x {sh} but has no slice_positions for every vertex, so its stretch cannot be undone"
+                ),
+            })
+        }
+    };
+    // slice lines of one axis: in the region and as drawn
+    let axis = |n: u32, lo: u32, hi: u32, to: u32| {
+        let own = [0.0, lo as f64, (n - hi) as f64, n as f64];
+        let drawn = [0.0, lo as f64, (to - hi) as f64, to as f64];
+        (own, drawn)
+    };
+    let (cols, dcols) = axis(w, l, r, sw);
+    let (rows, drows) = axis(h, t, b, sh);
+    // where offset d inside slice k lands as drawn
+    let land = |own: &[f64; 4], drawn: &[f64; 4], k: usize, d: f64| {
+        let (n, to) = (own[k + 1] - own[k], drawn[k + 1] - drawn[k]);
+        if k == 1 && n > 0.0 {
+            drawn[1] + d * to / n
+        } else {
+            drawn[k] + d
+        }
+    };
+    let mut out = mesh.clone();
+    out.size = [w, h];
+    let mut wrong = 0;
+    for (i, a) in anchors.iter().enumerate() {
+        let p = mesh.position(i as u32);
+        let mut fine = a[0].fract() == 0.0 && a[1].fract() == 0.0;
+        let mut at = [0.0f32; 2];
+        for (axis_k, (own, drawn)) in [(&cols, &dcols), (&rows, &drows)].into_iter().enumerate() {
+            let (k, d) = (a[axis_k], a[2 + axis_k] as f64);
+            let k = (k.max(0.0) as usize).min(2);
+            fine &= d >= 0.0 && d <= own[k + 1] - own[k];
+            let e = land(own, drawn, k, d);
+            fine &= (p[axis_k] as f64 - e).abs() <= STRETCH_TOLERANCE * e.abs().max(1.0);
+            at[axis_k] = (own[k] + d) as f32;
+        }
+        out.positions[2 * i] = at[0];
+        out.positions[2 * i + 1] = at[1];
+        if !fine {
+            wrong += 1;
+        }
+    }
+    Ok((out, wrong))
 }
 
 /// The cells of `runs` (a sheet's half-texel grid) inside `rect` (texels),

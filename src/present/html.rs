@@ -30,6 +30,45 @@ pub struct LayerCard {
     pub warnings: Vec<String>,
 }
 
+/// A region layer narrower than this (texels) is previewed enlarged by a
+/// whole factor, so its cut and caption can be read.
+const PREVIEW_MIN_WIDTH: u32 = 240;
+
+/// The texels a region layer draws, for its preview: the region's
+/// rectangle of the sheet (an animation's first frame), and for a nine-slice
+/// panel drawn stretched, its slices stretched to the drawn size (corners as
+/// they are, the middle slices sampled nearest). `None` for a mesh without
+/// a `region` key or a rectangle outside the sheet.
+fn region_texels(
+    sheet: &image::RgbaImage,
+    mesh: &crate::mesh::LayerMesh,
+) -> Option<image::RgbaImage> {
+    let r = mesh.region.as_ref()?;
+    let [x, y, w, h] = r.rect;
+    if x + w > sheet.width() || y + h > sheet.height() {
+        return None;
+    }
+    let crop = image::imageops::crop_imm(sheet, x, y, w, h).to_image();
+    let [dw, dh] = mesh.size;
+    if [dw, dh] == [w, h] {
+        return Some(crop);
+    }
+    let [left, top, right, bottom] = r.slices?;
+    // the region texel a drawn texel shows, along one axis
+    let back = |p: u32, n: u32, lo: u32, hi: u32, to: u32| -> u32 {
+        if p < lo {
+            p
+        } else if p >= to - hi {
+            n - (to - p)
+        } else {
+            lo + ((p - lo) as u64 * (n - lo - hi) as u64 / (to - lo - hi) as u64) as u32
+        }
+    };
+    Some(image::RgbaImage::from_fn(dw, dh, |px, py| {
+        *crop.get_pixel(back(px, w, left, right, dw), back(py, h, top, bottom, dh))
+    }))
+}
+
 const STYLE: &str = "
 body { font-family: sans-serif; margin: 24px; color: #1b1b1b; background: #ffffff; }
 h1 { font-size: 22px; } h2 { font-size: 18px; margin-top: 28px; }
@@ -290,14 +329,37 @@ pub fn write_report_page(
             )?),
             true => None,
         };
+        // a region of a sheet: the texels it draws, stretched as drawn
+        let rgba = match layer.is_region() {
+            true => rgba.and_then(|sheet| region_texels(&sheet, mesh)),
+            false => rgba,
+        };
         if let Some(rgba) = rgba.filter(|r| r.dimensions() == (mesh.size[0], mesh.size[1])) {
             let file = format!("{name}.preview.png");
-            let img = crate::preview::render_preview(&rgba, mesh, 1024);
+            // a small region (an icon) is shown enlarged, whole texels
+            let img = match rgba.width() < PREVIEW_MIN_WIDTH && layer.is_region() {
+                true => {
+                    let k = PREVIEW_MIN_WIDTH.div_ceil(rgba.width());
+                    let big = image::imageops::resize(
+                        &rgba,
+                        rgba.width() * k,
+                        rgba.height() * k,
+                        image::imageops::FilterType::Nearest,
+                    );
+                    let mut m = mesh.clone();
+                    m.positions.iter_mut().for_each(|p| *p *= k as f32);
+                    m.size = [m.size[0] * k, m.size[1] * k];
+                    crate::preview::render_preview(&big, &m, 1024)
+                }
+                false => crate::preview::render_preview(&rgba, mesh, 1024),
+            };
             out.write(&file, &super::png::rgba_png(img))?;
             card.preview = Some(file);
         }
         let mut knee_budget = None;
-        if let (Some(alpha), Some(settings)) = (&layer.alpha, layer.cut_settings()) {
+        // a region layer's alpha is the whole sheet: no plot of the sheet
+        let own = layer.alpha.as_ref().filter(|_| !layer.is_region());
+        if let (Some(alpha), Some(settings)) = (own, layer.cut_settings()) {
             let source = crate::scene::prepare::source_name(&layer.spec.image);
             let points: &Vec<_> = sweeps
                 .entry((layer.spec.image.clone(), settings))
@@ -384,10 +446,7 @@ pub fn write_report_page(
         // a shipped texture: what the guarantee was computed for, as a row
         // (the same wording as `cut`'s note, which is then not repeated)
         let mut shown_note = None;
-        if let (Some(t), Some(settings)) = (
-            layer.alpha.as_ref().and_then(|a| a.texture()),
-            layer.cut_settings(),
-        ) {
+        if let (Some(t), Some(settings)) = (own.and_then(|a| a.texture()), layer.cut_settings()) {
             let mip = settings.filter.mip_levels;
             card.numbers
                 .push(("guarantee computed for".into(), t.describe(mip)));

@@ -33,7 +33,7 @@
 use super::allocate::{allocate, CurvePoint};
 use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
-use super::prepare::{cut_all, Layer};
+use super::prepare::{cut_all, cut_regions_at, Layer};
 use super::score::mean_fragments;
 use crate::error::{FileError, Setting};
 use crate::frame::{render, Draw};
@@ -297,11 +297,12 @@ pub fn allocate_scene(
             crate::settings::CutSettings { budget, ..s },
         ),
         MeshSource::File(_) | MeshSource::Region(_) => {
-            unreachable!("free layers are cut on the fly")
+            unreachable!("free layers are cut on the fly (regions by cut_regions_at)")
         }
     };
     let jobs: Vec<(PathBuf, crate::settings::CutSettings)> = free
         .iter()
+        .filter(|&&i| !layers[i].is_region())
         .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
         .map(|(i, b)| setting(i, b))
         .collect();
@@ -310,7 +311,15 @@ pub fn allocate_scene(
         .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
         .collect();
     let cuts = cut_all(&jobs, &maps);
-    let candidate = |i: usize, b: usize| &cuts[&setting(i, b)].0;
+    // regions of a sprite sheet: cut on the whole sheet, stretched as drawn
+    let region_cuts = cut_regions_at(layers, &free, &budgets, even)?;
+    // a region has no cut below what its pieces need
+    let cut_at = |i: usize, b: usize| !layers[i].is_region() || region_cuts.contains_key(&(i, b));
+    let candidate = |i: usize, b: usize| {
+        region_cuts
+            .get(&(i, b))
+            .unwrap_or_else(|| &cuts[&setting(i, b)].0)
+    };
     let assign = |choice: &[Option<usize>]| -> Vec<&LayerMesh> {
         (0..layers.len())
             .map(|i| match choice[i] {
@@ -346,6 +355,7 @@ pub fn allocate_scene(
             .map(|&i| {
                 budgets
                     .par_iter()
+                    .filter(|&&b| cut_at(i, b))
                     .map(|&b| {
                         let m = candidate(i, b);
                         CurveEntry {

@@ -19,6 +19,16 @@
 //! test or write (the [`Strategy::Layered`] frame; on a GPU with
 //! hidden-surface removal it shades what the passes shade).
 //!
+//! A layer that is a region of a sprite sheet has `image` the sheet and
+//! `"region": {"sheet_size": [W, H], "rect": [x, y, w, h]}` (its mesh's
+//! positions are local to the rectangle, its uvs address the sheet); a
+//! nine-slice panel drawn stretched also has `"size": [w, h]`, the drawn
+//! size in texels (its mesh file's positions are already placed at that
+//! size, each vertex where its `slice_positions` anchor puts it), and
+//! `"slices": [left, top, right, bottom]`, the insets in texels. Lists
+//! without these keys (whole layers, or lists written before them) read
+//! as before.
+//!
 //! Invariants: the entries of `passes` are exactly the non-empty draws of the
 //! [`Strategy::Split`] frame in the same order (the scorer's model, so the
 //! report's numbers are the numbers of this list); each layer's depth is
@@ -28,7 +38,7 @@
 use super::draws::layer_depth;
 #[allow(unused_imports)]
 use super::draws::Strategy; // named in the docs
-use super::file::Scene;
+use super::file::{MeshSource, Scene};
 use super::prepare::Layer;
 use crate::error::{FileError, Setting};
 use crate::export::gltf::{gltf_files, relative_uri};
@@ -106,6 +116,29 @@ pub struct ExportedLayer {
     pub fill_width: bool,
     /// Its depth, 0 nearest ([`layer_depth`]).
     pub depth: f32,
+    /// For a region of a sprite sheet: where it lies in the sheet (`image`
+    /// is then the sheet). Absent for a whole layer.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub region: Option<ExportedRegion>,
+    /// For a nine-slice panel drawn stretched: the size it is drawn at, in
+    /// texels (before `scale`), [w, h]. Absent otherwise.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub size: Option<[u32; 2]>,
+    /// For a nine-slice panel drawn stretched: its insets in texels from
+    /// the left, top, right and bottom edges. Absent otherwise.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub slices: Option<[u32; 4]>,
+}
+
+/// Where a layer that is a region of a sprite sheet lies in the sheet.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ExportedRegion {
+    /// The sheet's size in texels, [W, H].
+    pub sheet_size: [u32; 2],
+    /// The region's rectangle in the sheet, [x, y, w, h] in texels (for an
+    /// animation, its first frame).
+    pub rect: [u32; 4],
 }
 
 /// One pass of the frame.
@@ -289,6 +322,13 @@ pub fn export_scene_with(
         ));
         files.extend(gltf_files(mesh, &uri, dir, name, format)?);
         let s = &layer.spec;
+        // a nine-slice panel drawn stretched: its insets
+        let stretched = match &s.mesh {
+            MeshSource::Region(r) if r.size.is_some() => {
+                mesh.region.as_ref().and_then(|g| g.slices)
+            }
+            _ => None,
+        };
         exported.push(ExportedLayer {
             name: name.clone(),
             image: uri,
@@ -301,6 +341,12 @@ pub fn export_scene_with(
             parallax: s.parallax,
             fill_width: s.fill_width,
             depth: layer_depth(i, n),
+            region: mesh.region.as_ref().map(|r| ExportedRegion {
+                sheet_size: r.sheet_size,
+                rect: r.rect,
+            }),
+            size: stretched.map(|_| mesh.size),
+            slices: stretched,
         });
     }
     let list = draw_list(scene, &exported, meshes);

@@ -138,6 +138,10 @@ pub struct RegionLayer {
     /// For a nine-slice region: the size it is drawn stretched to, texels
     /// (each side at least the slices' insets).
     pub size: Option<[u32; 2]>,
+    /// A mesh file of the region cut before (resolved path; it exists),
+    /// used instead of cutting it: as `cut --regions` writes it, or as
+    /// `scene --export` writes it (a panel already stretched to `size`).
+    pub mesh: Option<PathBuf>,
 }
 
 /// One layer of a scene, paths resolved against the scene file's folder.
@@ -356,7 +360,7 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                 "add \"region\": NAME (a region of the image's regions file), or remove them",
             );
         }
-        if let (Some(name), None) = (&l.region, &l.mesh) {
+        if let Some(name) = &l.region {
             let regions = match &l.regions {
                 Some(r) => dir.join(r),
                 None => {
@@ -385,6 +389,25 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                     "give \"size\": [width, height] in texels, at least the panel's slice insets",
                 );
             }
+            let mesh = match (&l.cut, &l.mesh) {
+                (Some(_), Some(_)) => {
+                    return bad(
+                        format!("{at}: has both \"cut\" settings and a \"mesh\" file"),
+                        "keep one: \"cut\" to cut the region when the scene is loaded, or \"mesh\" to use a region mesh cut before",
+                    )
+                }
+                (_, Some(m)) => {
+                    let m = dir.join(m);
+                    if !m.is_file() {
+                        return bad(
+                            format!("{at}: mesh file {} does not exist", m.display()),
+                            "check the path, or write it with `underdraw cut --regions`, or give \"cut\" settings instead",
+                        );
+                    }
+                    Some(m)
+                }
+                _ => None,
+            };
             layers.push(LayerSpec {
                 name: l.name,
                 image,
@@ -393,6 +416,7 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                     name: name.clone(),
                     regions,
                     size: l.size,
+                    mesh,
                 }),
                 position: l.position,
                 scale: l.scale,
@@ -400,12 +424,6 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                 fill_width: l.fill_width,
             });
             continue;
-        }
-        if l.region.is_some() {
-            return bad(
-                format!("{at}: has both a \"region\" and a \"mesh\" file"),
-                "keep one: a region is cut from the sheet when the scene is loaded",
-            );
         }
         let mesh = match (l.cut, l.mesh) {
             (Some(_), Some(_)) => {

@@ -31,7 +31,8 @@ pub struct Layer {
     /// The layer's mesh: cut on the fly, or read from its mesh file.
     pub mesh: LayerMesh,
     /// What a layer cut on the fly is cut from (to cut it again at other
-    /// budgets); `None` for a layer read from a mesh file.
+    /// budgets): its image, or for a region of a sprite sheet the whole
+    /// sheet; `None` for a layer read from a mesh file.
     pub alpha: Option<Arc<LayerAlpha>>,
     /// The cut's remarks.
     pub notes: Vec<String>,
@@ -46,6 +47,61 @@ impl Layer {
             MeshSource::File(_) => None,
         }
     }
+
+    /// True for a layer that is a region of a sprite sheet
+    /// ([`MeshSource::Region`]).
+    pub fn is_region(&self) -> bool {
+        matches!(self.spec.mesh, MeshSource::Region(_))
+    }
+
+    /// A region layer cut again at `budget` (the way [`prepare_layers`]
+    /// cut it: on the whole sheet, stretched for a panel given a `size`);
+    /// `None` for a layer that is not a region of a sheet.
+    pub fn region_cut_at(&self, budget: usize) -> Option<Result<LayerMesh, FileError>> {
+        let (MeshSource::Region(r), Some(sheet)) = (&self.spec.mesh, &self.alpha) else {
+            return None;
+        };
+        let mut r = r.clone();
+        r.settings.budget = budget;
+        Some(
+            super::region::cut_region_layer(&self.spec.image, sheet.level0(), &r)
+                .map(|(mesh, _)| mesh),
+        )
+    }
+}
+
+/// Every region layer among `free` cut at each of `budgets`
+/// ([`Layer::region_cut_at`]), in parallel, keyed by (layer index,
+/// budget); the other layers are cut through [`cut_all`]. A budget a
+/// region cannot be cut at (below what a nine-slice panel's pieces need)
+/// has no entry; the error is returned only when the region cannot be cut
+/// at `required` (the even share of the vertex total).
+pub fn cut_regions_at(
+    layers: &[Layer],
+    free: &[usize],
+    budgets: &[usize],
+    required: usize,
+) -> Result<HashMap<(usize, usize), LayerMesh>, FileError> {
+    let jobs: Vec<(usize, usize)> = free
+        .iter()
+        .filter(|&&i| layers[i].is_region())
+        .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
+        .collect();
+    let cuts: Vec<((usize, usize), Result<LayerMesh, FileError>)> = jobs
+        .par_iter()
+        .filter_map(|&(i, b)| layers[i].region_cut_at(b).map(|m| ((i, b), m)))
+        .collect();
+    let mut out = HashMap::new();
+    for ((i, b), m) in cuts {
+        match m {
+            Ok(m) => {
+                out.insert((i, b), m);
+            }
+            Err(e) if b == required => return Err(e),
+            Err(_) => {}
+        }
+    }
+    Ok(out)
 }
 
 /// What a layer is cut from: a PNG's alpha, or a shipped texture's decoded
@@ -245,6 +301,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
                     notes,
                 })
             }
+            MeshSource::Region(r) if r.mesh.is_some() => region_mesh_file(spec, r),
             MeshSource::Region(r) => {
                 // cut the way it ships: from the sheet's texels, whole-sheet regions
                 let (mesh, mut notes) =
@@ -253,7 +310,7 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
                 Ok(Layer {
                     spec: spec.clone(),
                     mesh,
-                    alpha: None,
+                    alpha: Some(maps[&spec.image].clone()),
                     notes,
                 })
             }
@@ -271,9 +328,104 @@ pub fn prepare_layers_with(scene: &Scene, limits: &ImageLimits) -> Result<Vec<La
         .collect()
 }
 
+/// A region layer read from its mesh file (`"region"` with `"mesh"`): the
+/// file must be a mesh of that region of the sheet (its `region` key's
+/// rectangle and sheet size), drawn at the layer's size (a mesh of the
+/// region's own size is stretched to a panel's `size` here; one exported
+/// stretched is used as it is). Its floor and report use the settings the
+/// file records; the allocation of a vertex total keeps it as it is.
+fn region_mesh_file(spec: &LayerSpec, r: &super::file::RegionLayer) -> Result<Layer, FileError> {
+    let path = r.mesh.as_ref().expect("a region mesh file");
+    let mut mesh = load_mesh(path)?;
+    check_mesh_structure(path, &mesh)?;
+    let sheet = image_size(&spec.image)?;
+    let regions = crate::sheet::regions::load_regions(&r.regions, sheet)?;
+    let region = regions.iter().find(|g| g.name == r.name).ok_or_else(|| {
+        FileError::new(
+            &r.regions,
+            format!("has no region named {:?}", r.name),
+            "give a region of the regions file",
+        )
+    })?;
+    let g = &region.rect;
+    let rect = [g.x, g.y, g.w, g.h];
+    let hint = "cut the region again with `underdraw cut --regions`, or point the layer at the region it was cut from";
+    match &mesh.region {
+        Some(m) if m.rect == rect && m.sheet_size == [sheet.0, sheet.1] => {}
+        _ => {
+            return Err(FileError::new(
+                path,
+                format!(
+                    "is not a mesh of region {:?} ({rect:?}) of the {} x {} sheet {}",
+                    r.name,
+                    sheet.0,
+                    sheet.1,
+                    spec.image.display()
+                ),
+                hint,
+            ))
+        }
+    }
+    let own = [g.w, g.h];
+    let slices = mesh.region.as_ref().and_then(|m| m.slices);
+    match (r.size, slices) {
+        (Some(size), Some(insets)) if mesh.size == own && size != own => {
+            super::region::stretch_mesh(&mut mesh, insets, size)
+        }
+        _ => {}
+    }
+    let want = r.size.unwrap_or(own);
+    if mesh.size != want {
+        return Err(FileError::new(
+            path,
+            format!(
+                "is drawn {} x {}, but the layer draws region {:?} at {} x {}",
+                mesh.size[0], mesh.size[1], r.name, want[0], want[1]
+            ),
+            hint,
+        ));
+    }
+    let mut spec = spec.clone();
+    if let MeshSource::Region(r) = &mut spec.mesh {
+        r.settings = CutSettings {
+            budget: mesh.budget.unwrap_or(r.settings.budget),
+            filter: mesh.filter,
+            alpha: mesh.alpha,
+            wrap: mesh.wrap,
+        };
+    }
+    Ok(Layer {
+        spec,
+        mesh,
+        alpha: None,
+        notes: Vec::new(),
+    })
+}
+
 /// What drawing a mesh file needs: whole triangles, indices naming vertices,
 /// finite positions, and the size of the layer's image.
 fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), FileError> {
+    check_mesh_structure(path, mesh)?;
+    let dims = image_size(image)?;
+    if [dims.0, dims.1] != mesh.size {
+        return Err(FileError::new(
+            path,
+            format!(
+                "was cut for a {} x {} layer, but {} is {} x {}",
+                mesh.size[0],
+                mesh.size[1],
+                image.display(),
+                dims.0,
+                dims.1
+            ),
+            "cut the mesh from this image again, or point the layer at the image it was cut from",
+        ));
+    }
+    Ok(())
+}
+
+/// Whole triangles, indices naming vertices, finite positions.
+fn check_mesh_structure(path: &Path, mesh: &LayerMesh) -> Result<(), FileError> {
     let hint = "cut the layer again with `underdraw cut`";
     let n = mesh.positions.len() / 2;
     if !mesh.positions.len().is_multiple_of(2) || mesh.positions.iter().any(|v| !v.is_finite()) {
@@ -298,21 +450,6 @@ fn check_mesh_file(path: &Path, mesh: &LayerMesh, image: &Path) -> Result<(), Fi
                 hint,
             ));
         }
-    }
-    let dims = image_size(image)?;
-    if [dims.0, dims.1] != mesh.size {
-        return Err(FileError::new(
-            path,
-            format!(
-                "was cut for a {} x {} layer, but {} is {} x {}",
-                mesh.size[0],
-                mesh.size[1],
-                image.display(),
-                dims.0,
-                dims.1
-            ),
-            "cut the mesh from this image again, or point the layer at the image it was cut from",
-        ));
     }
     Ok(())
 }
