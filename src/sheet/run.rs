@@ -10,11 +10,12 @@
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
 use super::{cut_region, RegionCut, RegionError, SheetAnalysis};
+use crate::batch::manifest::{sha256_hex, LayerResult, OutputFile, RegionEntry, SheetEntry};
 use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
 use crate::error::{FileError, Setting};
 use crate::export::gltf::{glb_file, gltf_files, relative_uri};
-use crate::io::{load_layer, ImageLimits, NamedBytes, OutputFolder};
+use crate::io::{ImageLimits, NamedBytes, OutputFolder};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use crate::settings::PartialSettings;
@@ -60,6 +61,10 @@ pub struct SheetRequest {
     pub per_frame: bool,
     /// Largest sheet read.
     pub limits: ImageLimits,
+    /// The sheet's key in the output folder's manifest (the path of its
+    /// outputs' folder, `ui/atlas`), for a sheet cut from a regions file;
+    /// `None` runs it without the manifest (regions found every run).
+    pub key: Option<String>,
 }
 
 /// One region's result.
@@ -69,9 +74,11 @@ pub struct RegionResult {
     pub region: SheetRegion,
     /// Its settings.
     pub settings: CutSettings,
-    /// The cut, or why it failed.
-    pub cut: Result<RegionCut, RegionError>,
-    /// Files written (or already holding these bytes).
+    /// The cut's numbers, notes and warnings (the padding warnings among
+    /// them), as a batch records a layer's, or why it failed.
+    pub cut: Result<LayerResult, RegionError>,
+    /// Files written (or already holding these bytes; for an unchanged
+    /// sheet, the files recorded).
     pub outputs: Vec<PathBuf>,
 }
 
@@ -90,6 +97,12 @@ pub struct SheetReport {
     pub regions: Vec<RegionResult>,
     /// Every file written through the run's output folder, in order.
     pub written: Vec<PathBuf>,
+    /// True when the manifest showed the sheet unchanged: nothing was cut
+    /// or written, the regions' numbers are the recorded ones.
+    pub unchanged: bool,
+    /// The manifest entry to record, when the sheet has a key and every
+    /// region was cut (or it was unchanged).
+    pub entry: Option<SheetEntry>,
 }
 
 impl SheetReport {
@@ -104,7 +117,20 @@ impl SheetReport {
 /// refused, an output that would replace an input) come back as `Err`; a
 /// region that fails is reported in its [`RegionResult`].
 pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
-    let layer = load_layer(&req.sheet, &req.limits)?;
+    run_sheet_since(req, None)
+}
+
+/// [`run_sheet`], skipping the cut when `previous` (the sheet's manifest
+/// entry) shows the sheet's bytes, the regions file's bytes, every region's
+/// effective settings and the underdraw version unchanged and every output
+/// recorded in place with its hash: the report then says `unchanged` and
+/// carries the recorded numbers.
+pub fn run_sheet_since(
+    req: &SheetRequest,
+    previous: Option<&SheetEntry>,
+) -> Result<SheetReport, FileError> {
+    let sheet_bytes = crate::io::read_input(&req.sheet)?;
+    let layer = crate::io::decode_layer(&req.sheet, &sheet_bytes, &req.limits)?;
     let sheet = layer.alpha;
     let stem = req
         .sheet
@@ -231,6 +257,50 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         }
     }
     let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
+    // what decides the outputs' bytes besides the two input files
+    let key_settings = serde_json::json!({
+        "regions": settings,
+        "outputs": req.outputs,
+        "per_frame": req.per_frame,
+        "image_uri": image_uri,
+    });
+    let regions_sha256 = match req.regions_path() {
+        Some(p) => Some(sha256_hex(&crate::io::read_input(p)?)),
+        None => None,
+    };
+    let input_sha256 = sha256_hex(&sheet_bytes);
+    let version = env!("CARGO_PKG_VERSION");
+    if let (Some(prev), Some(regions_sha256)) = (previous, &regions_sha256) {
+        if prev.input_sha256 == input_sha256
+            && &prev.regions_sha256 == regions_sha256
+            && prev.settings == key_settings
+            && prev.underdraw == version
+            && prev.regions.len() == regions.len()
+            && prev.outputs_intact(&req.out)
+        {
+            let results = regions
+                .iter()
+                .zip(&settings)
+                .zip(&prev.regions)
+                .map(|((r, s), e)| RegionResult {
+                    region: r.clone(),
+                    settings: *s,
+                    cut: Ok(e.result.clone()),
+                    outputs: e.outputs.iter().map(|o| req.out.join(o)).collect(),
+                })
+                .collect();
+            return Ok(SheetReport {
+                sheet: req.sheet.clone(),
+                stem,
+                regions_written: None,
+                warnings: layer.warnings,
+                regions: results,
+                written: Vec::new(),
+                unchanged: true,
+                entry: Some(prev.clone()),
+            });
+        }
+    }
     // cut in parallel, each region's files as named bytes
     let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), RegionError>> = regions
         .par_iter()
@@ -251,11 +321,22 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         .collect();
     // then each region's group committed, in the file's order
     let mut results = Vec::with_capacity(regions.len());
+    let mut recorded = Vec::new();
+    let mut entries = Vec::new();
     for ((r, s), cut) in regions.iter().zip(&settings).zip(cuts) {
         let before = out.written().len();
         let cut = cut.and_then(|(c, files)| {
             out.commit_changed(&files)?;
-            Ok(c)
+            recorded.extend(files.iter().map(|(name, bytes)| OutputFile {
+                path: name.clone(),
+                sha256: sha256_hex(bytes),
+            }));
+            entries.push(RegionEntry {
+                name: r.name.clone(),
+                outputs: files.iter().map(|(name, _)| name.clone()).collect(),
+                result: region_result(&c),
+            });
+            Ok(region_result(&c))
         });
         results.push(RegionResult {
             region: r.clone(),
@@ -264,6 +345,19 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
             outputs: out.written()[before..].to_vec(),
         });
     }
+    // recorded only when every region is in place: a failed one is cut again
+    let entry = match (&req.key, regions_sha256) {
+        (Some(_), Some(regions_sha256)) if entries.len() == regions.len() => Some(SheetEntry {
+            input: format!("{}{sheet_name}", req.match_prefix),
+            input_sha256,
+            regions_sha256,
+            underdraw: version.into(),
+            settings: key_settings,
+            outputs: recorded,
+            regions: entries,
+        }),
+        _ => None,
+    };
     Ok(SheetReport {
         sheet: req.sheet.clone(),
         stem,
@@ -271,7 +365,25 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         warnings: layer.warnings,
         regions: results,
         written: out.written().to_vec(),
+        unchanged: false,
+        entry,
     })
+}
+
+/// A region's cut as a batch records a layer's: its numbers, the cutter's
+/// notes and the padding warnings.
+fn region_result(c: &RegionCut) -> LayerResult {
+    let s = &c.mesh.stats;
+    LayerResult {
+        vertices: c.mesh.vertex_count(),
+        opaque_capture: s.opaque_capture(),
+        excess: s.excess(),
+        must_cover_area: s.must_cover_area,
+        safe_opaque_area: Some(s.safe_opaque_area),
+        opaque_texels: Some(s.opaque_texels),
+        notes: c.notes.clone(),
+        warnings: c.warnings.clone(),
+    }
 }
 
 impl SheetRequest {

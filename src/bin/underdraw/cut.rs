@@ -166,6 +166,7 @@ pub(crate) fn cut(
                 base: defaults,
                 overrides: args.options.partial(args.budget as usize, typed),
                 outputs,
+                lock_wait: std::time::Duration::from_secs(args.lock_wait),
                 unsupported: unsupported.iter().filter(|u| u.1).map(|u| u.0).collect(),
             },
             print,
@@ -224,8 +225,12 @@ pub(crate) fn cut(
         batch::run(&plan, &options, &|_| progress.inc(1))
     };
     progress.finish_and_clear();
-    let (sheet_reports, sheet_errors) = crate::sheet::run_found(&sheets);
     let report = report?;
+    let crate::sheet::SheetsDone {
+        reports: sheet_reports,
+        errors: sheet_errors,
+        notes: sheet_notes,
+    } = crate::sheet::run_found(&sheets, &plan.out, args.force, options.lock_wait);
     let result = CutResult::new(&report, &plan.empty);
     let (region_rows, regions_total) = crate::sheet::region_rows(&sheet_reports);
     if print.json {
@@ -240,6 +245,9 @@ pub(crate) fn cut(
         println!("{}", to_json(&objects));
     } else if print.text() {
         let cwd = std::env::current_dir().unwrap_or_default();
+        for n in &sheet_notes {
+            println!("note: {n}");
+        }
         print!(
             "{}",
             result.text_with(&cwd, &region_rows, regions_total.as_deref())

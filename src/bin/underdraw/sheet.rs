@@ -13,7 +13,8 @@ use underdraw::present::tables as table;
 use underdraw::quality::CutNumbers;
 use underdraw::settings::CutSettings;
 use underdraw::settings::PartialSettings;
-use underdraw::sheet::run::{run_sheet, RegionSource, SheetReport, SheetRequest};
+use underdraw::sheet::batch::run_sheets;
+use underdraw::sheet::run::{RegionSource, SheetReport, SheetRequest};
 
 /// The `cut` options a sheet run uses.
 pub(crate) struct SheetArgs<'a> {
@@ -27,6 +28,7 @@ pub(crate) struct SheetArgs<'a> {
     pub(crate) base: CutSettings,
     pub(crate) overrides: PartialSettings,
     pub(crate) outputs: Outputs,
+    pub(crate) lock_wait: std::time::Duration,
     /// Flags given that a sheet run does not take.
     pub(crate) unsupported: Vec<&'static str>,
 }
@@ -63,14 +65,26 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             outputs: args.outputs,
             per_frame: args.per_frame,
             limits,
+            // a regions file's sheet is recorded in the manifest; found
+            // regions are found again every run
+            key: args
+                .regions
+                .and(sheet.file_stem().map(|s| s.to_string_lossy().into_owned())),
         })
         .collect();
-    let (reports, errors) = run_found(&requests);
+    let SheetsDone {
+        reports,
+        errors,
+        notes,
+    } = run_found(&requests, args.out, args.force, args.lock_wait);
     if print.json {
         let lines: Vec<SheetRegionLine> =
             reports.iter().flat_map(SheetRegionLine::of_sheet).collect();
         println!("{}", to_json(&lines));
     } else if print.text() {
+        for n in &notes {
+            println!("note: {n}");
+        }
         for r in &reports {
             for w in &r.warnings {
                 println!("note: {}: {w}", r.sheet.display());
@@ -98,37 +112,66 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
 fn print_table(reports: &[SheetReport]) {
     let (rows, _) = region_rows(reports);
     print!("{}", table::cut_table(&rows));
-    let (count, failed, vertices) = region_counts(reports);
-    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+    let (_, total) = region_rows(reports);
+    println!("total: {}", total.unwrap_or_default());
 }
 
-/// Regions cut, failed, and the vertices of those cut.
+/// Regions cut (or unchanged), failed, and the vertices of those cut.
 fn region_counts(reports: &[SheetReport]) -> (usize, usize, usize) {
     let cut = reports
         .iter()
         .flat_map(|r| &r.regions)
         .filter_map(|g| g.cut.as_ref().ok());
-    let vertices = cut.clone().map(|c| c.mesh.vertex_count()).sum();
+    let vertices = cut.clone().map(|c| c.vertices).sum();
     let failed = reports.iter().map(|r| r.failed()).sum();
     (cut.count(), failed, vertices)
 }
 
+/// What running sheets gave: the reports, the errors of the sheets and
+/// regions that failed (and of a manifest that could not be written), and
+/// the notes to print.
+pub(crate) struct SheetsDone {
+    pub(crate) reports: Vec<SheetReport>,
+    pub(crate) errors: Vec<Line>,
+    pub(crate) notes: Vec<String>,
+}
+
 /// Runs sheets (given with `--regions` / `--find-regions`, or found by a
-/// `cut` batch as PNGs with a `<stem>.regions.json` beside them): the
-/// reports, and the errors of the sheets and regions that failed.
-pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Line>) {
-    let mut reports = Vec::new();
-    let mut errors = Vec::new();
-    for req in requests {
-        match run_sheet(req) {
-            Ok(r) => reports.push(r),
-            Err(e) => errors.push(Line::Error(e.to_string())),
+/// `cut` batch as PNGs with a `<stem>.regions.json` beside them) into the
+/// output folder `out`, skipping those the manifest shows unchanged
+/// (unless `force`).
+pub(crate) fn run_found(
+    requests: &[SheetRequest],
+    out: &Path,
+    force: bool,
+    lock_wait: std::time::Duration,
+) -> SheetsDone {
+    let mut done = SheetsDone {
+        reports: Vec::new(),
+        errors: Vec::new(),
+        notes: Vec::new(),
+    };
+    if requests.is_empty() {
+        return done;
+    }
+    let run = match run_sheets(requests, out, force, lock_wait) {
+        Ok(r) => r,
+        Err(e) => {
+            done.errors.push(Line::Error(e.to_string()));
+            return done;
+        }
+    };
+    done.notes = run.notes;
+    for r in run.sheets {
+        match r {
+            Ok(r) => done.reports.push(r),
+            Err(e) => done.errors.push(Line::Error(e.to_string())),
         }
     }
-    for r in &reports {
+    for r in &done.reports {
         for g in &r.regions {
             if let Err(e) = &g.cut {
-                errors.push(Line::Error(format!(
+                done.errors.push(Line::Error(format!(
                     "{}: region {:?}: {e}",
                     r.sheet.display(),
                     g.region.name
@@ -136,7 +179,10 @@ pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Lin
             }
         }
     }
-    (reports, errors)
+    if let Some(e) = run.manifest_error {
+        done.errors.push(Line::Error(e.to_string()));
+    }
+    done
 }
 
 /// The `--json` objects of the regions of sheets a batch found.
@@ -144,34 +190,36 @@ pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<SheetRegionLine> {
     reports.iter().flat_map(SheetRegionLine::of_sheet).collect()
 }
 
-/// One table row per region cut (`<stem>/<name>`), and the total line's
-/// words for them (none without sheets).
+/// One table row per region cut or unchanged (`<stem>/<name>`), with the
+/// numbers, warnings and notes of its `--json` object, and the total
+/// line's words for them (none without sheets).
 pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, Option<String>) {
     let mut rows = Vec::new();
     for r in reports {
-        for g in &r.regions {
-            let Ok(c) = &g.cut else { continue };
-            let s = &c.mesh.stats;
-            let numbers = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
+        for (g, line) in r.regions.iter().zip(SheetRegionLine::of_sheet(r)) {
+            let (Ok(result), Some(n)) = (&g.cut, &line.numbers) else {
+                continue;
+            };
             rows.push(table::CutRow {
-                layer: format!("{}/{}", r.stem, g.region.name),
-                status: "cut".into(),
-                numbers,
-                warnings: c
-                    .warnings
-                    .iter()
-                    .cloned()
-                    .chain(numbers.warnings(None))
-                    .collect(),
-                notes: c.notes.clone(),
+                layer: line.layer.clone(),
+                status: if r.unchanged { "unchanged" } else { "cut" }.into(),
+                numbers: CutNumbers::of_result(result),
+                warnings: n.warnings.clone(),
+                notes: n.notes.clone(),
             });
         }
     }
     let (count, failed, vertices) = region_counts(reports);
+    let unchanged: usize = reports
+        .iter()
+        .filter(|r| r.unchanged)
+        .map(|r| r.regions.len())
+        .sum();
     let total = (!reports.is_empty()).then(|| {
         format!(
-            "{count} regions of {} sheet(s) cut ({failed} failed), {vertices} vertices",
-            reports.len()
+            "{count} regions of {} sheet(s) ({} cut, {unchanged} unchanged, {failed} failed), {vertices} vertices",
+            reports.len(),
+            count - unchanged
         )
     });
     (rows, total)
