@@ -336,3 +336,73 @@ fn a_broken_regions_file_in_a_batch_is_named_and_the_batch_goes_on() {
     let manifest = std::fs::read_to_string(out.join("underdraw-manifest.json")).unwrap();
     assert!(!manifest.contains("ui/atlas"), "{manifest}");
 }
+
+#[test]
+fn preview_draws_every_regions_meshes_over_the_whole_sheet() {
+    let dir = TempDir::new("sheet-preview");
+    let boxes = layout(&dir.0);
+    let out = dir.path("out");
+    let sheet = dir.path("in/ui/atlas.png");
+    let regions = dir.path("in/ui/atlas.regions.json");
+    let cut = || {
+        run(&[
+            "--json",
+            "cut",
+            sheet.to_str().unwrap(),
+            "--regions",
+            regions.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--preview",
+        ])
+    };
+    let o = cut();
+    status(&o, 0, "--regions --preview");
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    let preview = out.join("atlas.preview.png");
+    assert_eq!(v[0]["sheet_preview"].as_str(), preview.to_str(), "{v:#}");
+    // read back with the png crate (a reference decoder of the PNG
+    // specification): the sheet's width (80 texels, under the 1024 limit),
+    // the plain sheet above its cut (wider than tall), a caption below
+    let decoder = png::Decoder::new(std::io::BufReader::new(
+        std::fs::File::open(&preview).unwrap(),
+    ));
+    let mut reader = decoder.read_info().unwrap();
+    let mut buf = vec![0; reader.output_buffer_size().unwrap()];
+    let info = reader.next_frame(&mut buf).unwrap();
+    assert_eq!(info.color_type, png::ColorType::Rgba);
+    let (w, h) = (info.width, info.height);
+    assert_eq!(w, 80);
+    let sheet_img = image::open(&sheet).unwrap().to_rgba8();
+    let sh = sheet_img.height();
+    assert!(h > 2 * sh, "plain panel, cut panel and a caption: {h}");
+    // every region's rectangle is tinted by its meshes in the cut panel
+    // (6 pixels below the plain panel), where the plain panel is not
+    let px = |x: u32, y: u32| {
+        let i = 4 * (y * w + x) as usize;
+        [buf[i], buf[i + 1], buf[i + 2]]
+    };
+    for b in &boxes {
+        let changed = (b[1]..b[1] + b[3])
+            .flat_map(|y| (b[0]..b[0] + b[2]).map(move |x| (x, y)))
+            .filter(|&(x, y)| px(x, y) != px(x, y + sh + 6))
+            .count();
+        assert!(
+            changed as u32 > b[2] * b[3] / 2,
+            "region {b:?}: {changed} pixels tinted"
+        );
+    }
+    // recorded in the manifest: an unchanged rerun keeps it and says where
+    let o = cut();
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(v[0]["status"], "unchanged");
+    assert_eq!(v[0]["sheet_preview"].as_str(), preview.to_str());
+    std::fs::remove_file(&preview).unwrap();
+    let o = cut();
+    let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(
+        v[0]["status"], "cut",
+        "a deleted preview cuts the sheet again"
+    );
+    assert!(preview.is_file());
+}

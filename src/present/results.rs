@@ -284,6 +284,9 @@ pub struct SheetRegionLine {
     /// Why it failed.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub error: Option<String>,
+    /// The sheet's preview with every region's meshes, when written.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sheet_preview: Option<String>,
 }
 
 impl SheetRegionLine {
@@ -309,6 +312,7 @@ impl SheetRegionLine {
                     },
                     numbers,
                     error,
+                    sheet_preview: r.preview.as_ref().map(|p| p.display().to_string()),
                 }
             })
             .collect()

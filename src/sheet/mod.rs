@@ -8,6 +8,8 @@
 //!   texels separated by transparent ones), in reading order.
 //! * [`padding`]: the transparent padding around a region against the
 //!   filter's reach, as warnings.
+//! * [`preview`]: the sheet's preview, every region's meshes at its
+//!   rectangle over the whole sheet.
 //! * [`cut_region`]: the cut of one region. The contract on a sheet: the
 //!   safe-opaque and must-cover regions are computed on the WHOLE sheet (a
 //!   filtered sample near the region's edge reads its neighbours, the
@@ -24,6 +26,7 @@ pub mod batch;
 pub mod find;
 pub mod frames;
 pub mod padding;
+pub mod preview;
 pub mod regions;
 pub mod run;
 pub mod slices;

@@ -55,7 +55,8 @@ pub struct SheetRequest {
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
     pub overrides: PartialSettings,
-    /// What to write per region (`preview` is not written for regions).
+    /// What to write per region; `preview`: one `OUT/<stem>.preview.png`
+    /// of the whole sheet with every region's meshes ([`super::preview`]).
     pub outputs: Outputs,
     /// Also cut and write each frame of an animation alone.
     pub per_frame: bool,
@@ -103,6 +104,8 @@ pub struct SheetReport {
     /// The manifest entry to record, when the sheet has a key and every
     /// region was cut (or it was unchanged).
     pub entry: Option<SheetEntry>,
+    /// The sheet's preview (`OUT/<stem>.preview.png`), when asked for.
+    pub preview: Option<PathBuf>,
 }
 
 impl SheetReport {
@@ -251,6 +254,10 @@ pub fn run_sheet_since(
         ));
     }
     // refused before anything of a region is written
+    let preview_name = format!("{stem}.preview.png");
+    if req.outputs.preview {
+        out.refuse_inputs(&preview_name)?;
+    }
     for (name, _) in &stems {
         for p in [".mesh.json", ".gltf", ".bin", ".glb"] {
             out.refuse_inputs(&format!("{stem}/{name}{p}"))?;
@@ -297,6 +304,11 @@ pub fn run_sheet_since(
                 regions: results,
                 written: Vec::new(),
                 unchanged: true,
+                preview: prev
+                    .outputs
+                    .iter()
+                    .find(|o| o.path == preview_name)
+                    .map(|o| req.out.join(&o.path)),
                 entry: Some(prev.clone()),
             });
         }
@@ -323,6 +335,7 @@ pub fn run_sheet_since(
     let mut results = Vec::with_capacity(regions.len());
     let mut recorded = Vec::new();
     let mut entries = Vec::new();
+    let mut meshes = Vec::new();
     for ((r, s), cut) in regions.iter().zip(&settings).zip(cuts) {
         let before = out.written().len();
         let cut = cut.and_then(|(c, files)| {
@@ -336,7 +349,9 @@ pub fn run_sheet_since(
                 outputs: files.iter().map(|(name, _)| name.clone()).collect(),
                 result: region_result(&c),
             });
-            Ok(region_result(&c))
+            let result = region_result(&c);
+            meshes.push(c.mesh);
+            Ok(result)
         });
         results.push(RegionResult {
             region: r.clone(),
@@ -344,6 +359,21 @@ pub fn run_sheet_since(
             cut,
             outputs: out.written()[before..].to_vec(),
         });
+    }
+    // the sheet's preview, of the regions cut
+    let mut preview = None;
+    if req.outputs.preview {
+        let rgba = crate::io::decode_rgba(&req.sheet, &sheet_bytes, &req.limits)?;
+        let placed: Vec<&LayerMesh> = meshes.iter().collect();
+        let width = crate::batch::layer::PREVIEW_WIDTH;
+        if let Some(png) = super::preview::sheet_preview(&rgba, &placed, width) {
+            out.write(&preview_name, &png)?;
+            recorded.push(OutputFile {
+                path: preview_name.clone(),
+                sha256: sha256_hex(&png),
+            });
+            preview = Some(out.path(&preview_name));
+        }
     }
     // recorded only when every region is in place: a failed one is cut again
     let entry = match (&req.key, regions_sha256) {
@@ -367,6 +397,7 @@ pub fn run_sheet_since(
         written: out.written().to_vec(),
         unchanged: false,
         entry,
+        preview,
     })
 }
 

@@ -85,7 +85,9 @@ pub(crate) struct CutArgs {
     /// with the opaque mesh tinted blue and the blended one orange (lightly,
     /// so the art shows), their edges on top, the regions' outlines dotted,
     /// and a caption in words; a layer wider than tall is shown plain above
-    /// its cut. At most 1024 pixels wide.
+    /// its cut. At most 1024 pixels wide. For a sprite sheet, one
+    /// `<OUT>/<sheet stem>.preview.png`: the whole sheet with every
+    /// region's meshes at its rectangle and the whole sheet's outlines.
     #[arg(long)]
     preview: bool,
     /// The compressed texture that ships for the one PNG layer given (KTX
@@ -150,7 +152,6 @@ pub(crate) fn cut(
         };
         let unsupported = [
             ("--texture", args.texture.is_some()),
-            ("--preview", args.preview),
             ("--include", !args.include.is_empty()),
             ("--exclude", !args.exclude.is_empty()),
         ];

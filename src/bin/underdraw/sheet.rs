@@ -86,6 +86,13 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             println!("note: {n}");
         }
         for r in &reports {
+            if let Some(p) = &r.preview {
+                println!(
+                    "note: the preview of {}'s regions is {}",
+                    r.sheet.display(),
+                    p.display()
+                );
+            }
             for w in &r.warnings {
                 println!("note: {}: {w}", r.sheet.display());
             }
