@@ -31,8 +31,9 @@ pub fn regions_beside(png: &Path) -> Option<PathBuf> {
 
 /// Takes out of `plan` every job whose PNG has a regions file beside it
 /// ([`regions_beside`]) and returns the sheet runs that replace them, in
-/// plan order. Jobs cut against a shipped texture and jobs that clash with
-/// an earlier one stay in the plan (the batch reports them).
+/// plan order (a job's shipped texture goes with it: the sheet is cut
+/// against it). Jobs that clash with an earlier one stay in the plan (the
+/// batch reports them).
 pub fn take_sheets(
     plan: &mut Plan,
     request: &Request,
@@ -43,7 +44,7 @@ pub fn take_sheets(
     let out = plan.out.clone();
     let outputs = plan.outputs;
     plan.jobs.retain(|job| {
-        if job.texture.is_some() || job.clash.is_some() {
+        if job.clash.is_some() {
             return true;
         }
         let Some(regions) = regions_beside(&job.input) else {
@@ -70,6 +71,7 @@ pub fn take_sheets(
             per_frame,
             limits,
             key: Some(job.key.clone()),
+            texture: job.texture.clone(),
         });
         false
     });

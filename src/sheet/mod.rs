@@ -32,7 +32,7 @@ pub mod run;
 pub mod slices;
 
 use crate::alpha::{analyze_runs, AlphaMap, RegionStats};
-use crate::check::check_region_mesh;
+use crate::check::check_region_mesh_sampled;
 use crate::cut::{cut_runs, CutOutcome};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshRegion};
@@ -48,6 +48,12 @@ pub struct SheetAnalysis {
     pub safe: RowRuns,
     /// What must be covered, over the whole sheet.
     pub cover: RowRuns,
+    /// The shipped texture's decoded levels analyzed with (level 0 first,
+    /// levels 0..=`mip_levels`); empty for the sheet's PNG alone.
+    pub shipped: Vec<AlphaMap>,
+    /// Whether the sheet's PNG (its block levels) was analyzed: false for
+    /// a sheet that is itself a shipped texture.
+    pub with_source: bool,
 }
 
 impl SheetAnalysis {
@@ -58,6 +64,24 @@ impl SheetAnalysis {
             settings: *settings,
             safe,
             cover,
+            shipped: Vec::new(),
+            with_source: true,
+        }
+    }
+
+    /// Analyzes the whole sheet as the GPU samples it (`sampled`, which
+    /// must [validate](crate::alpha::Sampled::validate)): safe where the
+    /// PNG's block levels and the shipped texture's own decoded levels
+    /// all sample opaque, must-cover where any of them is visible. Its
+    /// meshes are checked against the same levels.
+    pub fn sampled(sampled: crate::alpha::Sampled, settings: &CutSettings) -> SheetAnalysis {
+        let (safe, cover, _) = crate::alpha::analyze_sampled_runs(sampled, settings);
+        SheetAnalysis {
+            settings: *settings,
+            safe,
+            cover,
+            shipped: sampled.shipped.to_vec(),
+            with_source: sampled.source.is_some(),
         }
     }
     /// Whether this analysis serves `settings` (same filter, thresholds and
@@ -228,7 +252,10 @@ impl Placement<'_> {
         let check = |m: &LayerMesh| {
             let mut m = m.clone();
             self.locate(&mut m, key.clone());
-            let r = check_region_mesh(&m, self.sheet, None).map_err(|e| e.to_string())?;
+            let a = self.analysis;
+            let source = a.with_source.then_some(self.sheet);
+            let r = check_region_mesh_sampled(&m, source, &a.shipped, None)
+                .map_err(|e| e.to_string())?;
             if r.holds() {
                 Ok(())
             } else {

@@ -62,6 +62,12 @@ pub struct SheetRequest {
     pub per_frame: bool,
     /// Largest sheet read.
     pub limits: ImageLimits,
+    /// The compressed texture that ships for the sheet's PNG (KTX 2.0 or
+    /// `.astc`): every region is cut safe where the PNG and the texture's
+    /// own decoded levels (0..=`mip_levels`) all sample opaque, covering
+    /// what any shows. A sheet that is itself such a texture is cut on its
+    /// decoded levels alone.
+    pub texture: Option<PathBuf>,
     /// The sheet's key in the output folder's manifest (the path of its
     /// outputs' folder, `ui/atlas`), for a sheet cut from a regions file;
     /// `None` runs it without the manifest (regions found every run).
@@ -133,8 +139,15 @@ pub fn run_sheet_since(
     previous: Option<&SheetEntry>,
 ) -> Result<SheetReport, FileError> {
     let sheet_bytes = crate::io::read_input(&req.sheet)?;
-    let layer = crate::io::decode_layer(&req.sheet, &sheet_bytes, &req.limits)?;
-    let sheet = layer.alpha;
+    let shipped = ShippedSheet::read(req, &sheet_bytes)?;
+    // the sheet's alpha: its PNG's, or a texture sheet's level 0
+    let (sheet, sheet_warnings) = match &shipped {
+        Some(t) if t.is_sheet => (t.texture.levels[0].clone(), Vec::new()),
+        _ => {
+            let layer = crate::io::decode_layer(&req.sheet, &sheet_bytes, &req.limits)?;
+            (layer.alpha, layer.warnings)
+        }
+    };
     let stem = req
         .sheet
         .file_stem()
@@ -223,13 +236,6 @@ pub fn run_sheet_since(
         })?;
         settings.push(s);
     }
-    // the whole sheet analyzed once per filter, thresholds and addressing
-    let mut analyses: Vec<SheetAnalysis> = Vec::new();
-    for s in &settings {
-        if !analyses.iter().any(|a| a.serves(s)) {
-            analyses.push(SheetAnalysis::new(&sheet, s));
-        }
-    }
     // output names: a region's, and with --per-frame its frames' `<name>.<k>`
     let mut stems: Vec<(String, &str)> = Vec::new();
     for r in &regions {
@@ -264,6 +270,9 @@ pub fn run_sheet_since(
         }
     }
     let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
+    if shipped.as_ref().is_some_and(|t| t.is_sheet) {
+        texture_sheet_refusals(req)?;
+    }
     // what decides the outputs' bytes besides the two input files
     let key_settings = serde_json::json!({
         "regions": settings,
@@ -271,6 +280,14 @@ pub fn run_sheet_since(
         "per_frame": req.per_frame,
         "image_uri": image_uri,
     });
+    let mut key_settings = key_settings;
+    if let Some(t) = shipped.as_ref().filter(|t| !t.is_sheet) {
+        // a new texture cuts the sheet again
+        key_settings["texture"] = serde_json::json!({
+            "path": t.path.display().to_string(),
+            "sha256": t.sha256,
+        });
+    }
     let regions_sha256 = match req.regions_path() {
         Some(p) => Some(sha256_hex(&crate::io::read_input(p)?)),
         None => None,
@@ -300,7 +317,7 @@ pub fn run_sheet_since(
                 sheet: req.sheet.clone(),
                 stem,
                 regions_written: None,
-                warnings: layer.warnings,
+                warnings: sheet_warnings.clone(),
                 regions: results,
                 written: Vec::new(),
                 unchanged: true,
@@ -313,16 +330,32 @@ pub fn run_sheet_since(
             });
         }
     }
+    // the whole sheet analyzed once per filter, thresholds and addressing
+    // (with a shipped texture: its own decoded levels up to the mip level)
+    let mut analyses: Vec<(SheetAnalysis, Option<String>)> = Vec::new();
+    for s in &settings {
+        if !analyses.iter().any(|a| a.0.serves(s)) {
+            analyses.push(match &shipped {
+                None => (SheetAnalysis::new(&sheet, s), None),
+                Some(t) => {
+                    let (a, note) = t.analysis(&sheet, s)?;
+                    (a, Some(note))
+                }
+            });
+        }
+    }
     // cut in parallel, each region's files as named bytes
     let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), RegionError>> = regions
         .par_iter()
         .zip(&settings)
         .map(|(r, s)| {
-            let a = analyses
+            let (a, note) = analyses
                 .iter()
-                .find(|a| a.serves(s))
+                .find(|a| a.0.serves(s))
                 .expect("analyzed above");
-            let c = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame)?;
+            let mut c = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame)?;
+            // what the guarantee was computed for, as a layer's cut says
+            c.notes.splice(0..0, note.clone());
             let mut files = mesh_files(&dir, &stem, &r.name, &c.mesh, &req.outputs, &image_uri)?;
             for (k, m) in &c.per_frame {
                 let name = format!("{}.{k}", r.name);
@@ -392,13 +425,114 @@ pub fn run_sheet_since(
         sheet: req.sheet.clone(),
         stem,
         regions_written,
-        warnings: layer.warnings,
+        warnings: sheet_warnings.clone(),
         regions: results,
         written: out.written().to_vec(),
         unchanged: false,
         entry,
         preview,
     })
+}
+
+/// The shipped texture a sheet is cut against: the sheet itself (a KTX 2.0
+/// or `.astc` file) or the texture given for its PNG.
+struct ShippedSheet {
+    path: PathBuf,
+    texture: crate::io::Texture,
+    sha256: String,
+    /// The texture is the sheet (no PNG is read).
+    is_sheet: bool,
+}
+
+impl ShippedSheet {
+    /// The texture of `req`, decoded, if there is one.
+    fn read(req: &SheetRequest, sheet_bytes: &[u8]) -> Result<Option<ShippedSheet>, FileError> {
+        let (path, bytes, is_sheet) = if crate::io::is_texture(sheet_bytes) {
+            if let Some(t) = &req.texture {
+                return Err(FileError::new(
+                    t,
+                    format!(
+                        "is given as the shipped texture of {}, which is itself a texture",
+                        req.sheet.display()
+                    ),
+                    format!(
+                        "give the sheet's PNG with {}, or the texture alone",
+                        Setting::Texture
+                    ),
+                ));
+            }
+            (req.sheet.clone(), sheet_bytes.to_vec(), true)
+        } else if let Some(t) = &req.texture {
+            (t.clone(), crate::io::read_input(t)?, false)
+        } else {
+            return Ok(None);
+        };
+        let texture = crate::io::decode_texture(&path, &bytes, &req.limits)?;
+        Ok(Some(ShippedSheet {
+            sha256: sha256_hex(&bytes),
+            path,
+            texture,
+            is_sheet,
+        }))
+    }
+
+    /// The whole sheet analyzed for `s` with the texture's levels
+    /// 0..=`mip_levels` (and the PNG's, unless the texture is the sheet),
+    /// and the note saying what the guarantee was computed for.
+    fn analysis(
+        &self,
+        sheet: &crate::alpha::AlphaMap,
+        s: &CutSettings,
+    ) -> Result<(SheetAnalysis, String), FileError> {
+        let mip = s.filter.mip_levels;
+        let levels = self.texture.levels_for(mip).map_err(|why| {
+            FileError::new(
+                &self.path,
+                why.to_string(),
+                format!("lower {} to the levels the texture holds, or export it with a full mip chain of sizes W / 2^l", Setting::MipLevels),
+            )
+        })?;
+        let sampled = crate::alpha::Sampled {
+            source: (!self.is_sheet).then_some(sheet),
+            shipped: levels,
+        };
+        sampled.validate().map_err(|why| {
+            FileError::new(
+                &self.path,
+                why.to_string(),
+                "give the texture compressed from this sheet, at its size",
+            )
+        })?;
+        Ok((
+            SheetAnalysis::sampled(sampled, s),
+            self.texture.guarantee_note(mip),
+        ))
+    }
+}
+
+/// What a sheet that is itself a shipped texture cannot give: a glTF
+/// asset (its image must be a PNG or JPEG) or a preview (drawn from the
+/// PNG's colours).
+fn texture_sheet_refusals(req: &SheetRequest) -> Result<(), FileError> {
+    if req.outputs.gltf || req.outputs.glb {
+        return Err(FileError::new(
+            &req.sheet,
+            "is a compressed texture, and a glTF asset's image must be a PNG or JPEG (core glTF 2.0)",
+            format!("cut the sheet's PNG with {} pointing to this file to get glTF assets, or use {}", Setting::Texture, Setting::Format.given("json")),
+        ));
+    }
+    if req.outputs.preview {
+        return Err(FileError::new(
+            &req.sheet,
+            "is a compressed texture, and previews are drawn from the PNG",
+            format!(
+                "cut the sheet's PNG with {} pointing to this file to get a preview, or leave out {}",
+                Setting::Texture,
+                Setting::Preview
+            ),
+        ));
+    }
+    Ok(())
 }
 
 /// A region's cut as a batch records a layer's: its numbers, the cutter's

@@ -95,7 +95,8 @@ pub(crate) struct CutArgs {
     /// Zstandard-supercompressed; or a raw .astc file): the layer is cut on
     /// both, safe where both sample opaque and covering what either shows,
     /// with --mip-levels counting the texture's own levels. A .ktx2 or .astc
-    /// file can also be cut alone, given as the layer.
+    /// file can also be cut alone, given as the layer. With --regions: the
+    /// texture of the sheet, every region cut against it.
     #[arg(long, value_name = "FILE")]
     texture: Option<PathBuf>,
     /// Most vertices per layer, both meshes together (a vertex they share
@@ -151,7 +152,6 @@ pub(crate) fn cut(
             vertex_format: args.vertex_format,
         };
         let unsupported = [
-            ("--texture", args.texture.is_some()),
             ("--include", !args.include.is_empty()),
             ("--exclude", !args.exclude.is_empty()),
         ];
@@ -168,6 +168,7 @@ pub(crate) fn cut(
                 overrides: args.options.partial(args.budget as usize, typed),
                 outputs,
                 lock_wait: std::time::Duration::from_secs(args.lock_wait),
+                texture: args.texture.as_deref(),
                 unsupported: unsupported.iter().filter(|u| u.1).map(|u| u.0).collect(),
             },
             print,

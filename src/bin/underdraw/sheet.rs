@@ -29,6 +29,7 @@ pub(crate) struct SheetArgs<'a> {
     pub(crate) overrides: PartialSettings,
     pub(crate) outputs: Outputs,
     pub(crate) lock_wait: std::time::Duration,
+    pub(crate) texture: Option<&'a Path>,
     /// Flags given that a sheet run does not take.
     pub(crate) unsupported: Vec<&'static str>,
 }
@@ -42,6 +43,9 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
     }
     if args.regions.is_some() && args.images.len() != 1 {
         bail!("--regions gives the regions of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its regions file, or use --find-regions for several", args.images.len());
+    }
+    if args.texture.is_some() && args.images.len() != 1 {
+        bail!("--texture gives the shipped texture of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its texture", args.images.len());
     }
     if let Some(dir) = args.images.iter().find(|p| p.is_dir()) {
         bail!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display());
@@ -65,6 +69,7 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             outputs: args.outputs,
             per_frame: args.per_frame,
             limits,
+            texture: args.texture.map(Path::to_path_buf),
             // a regions file's sheet is recorded in the manifest; found
             // regions are found again every run
             key: args
@@ -241,13 +246,38 @@ pub(crate) fn check_region(
     print: Print,
     limits: ImageLimits,
 ) -> Result<ExitCode> {
-    if texture_path.is_some() {
-        bail!("--texture is not taken for a region of a sheet\n  hint: check the region mesh against the sheet's PNG");
-    }
     let Some(image_path) = image_path else {
         bail!("a region mesh is checked against its sheet, but no IMAGE was given\n  hint: give the sheet's PNG after the mesh file");
     };
-    let sheet = underdraw::io::load_layer(image_path, &limits)?.alpha;
+    // the sheet's PNG and/or the texture that ships (a texture sheet alone)
+    let bytes = underdraw::io::read_input(image_path)?;
+    let (png, texture) = if underdraw::io::is_texture(&bytes) {
+        if let Some(t) = texture_path {
+            bail!("{}: is given as the shipped texture of {}, which is itself a texture\n  hint: check against the sheet's PNG with --texture, or the texture alone", t.display(), image_path.display());
+        }
+        let t = underdraw::io::decode_texture(image_path, &bytes, &limits)?;
+        (None, Some((image_path, t)))
+    } else {
+        let png = underdraw::io::decode_layer(image_path, &bytes, &limits)?.alpha;
+        let t = match texture_path {
+            Some(p) => Some((p, underdraw::io::load_texture(p, &limits)?)),
+            None => None,
+        };
+        (Some(png), t)
+    };
+    let mip = mesh.filter.mip_levels;
+    let shipped = match &texture {
+        Some((p, t)) => t.levels_for(mip).map_err(|why| {
+            anyhow::anyhow!(
+                "{}: {why}\n  hint: check a mesh cut for the levels the texture holds",
+                p.display()
+            )
+        })?,
+        None => &[],
+    };
+    let sheet = png
+        .clone()
+        .unwrap_or_else(|| shipped.first().cloned().expect("a texture's level 0"));
     let region = match named {
         None => mesh.region.clone().expect("a region key"),
         Some((name, file)) => {
@@ -284,8 +314,9 @@ pub(crate) fn check_region(
             }
         }
     };
-    let report = underdraw::check::check_region_mesh(mesh, &sheet, Some(&region))
-        .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
+    let report =
+        underdraw::check::check_region_mesh_sampled(mesh, png.as_ref(), shipped, Some(&region))
+            .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
     let c = &report.contract;
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
     if print.json {
