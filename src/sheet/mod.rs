@@ -8,6 +8,8 @@
 //!   texels separated by transparent ones), in reading order.
 //! * [`padding`]: the transparent padding around a region against the
 //!   filter's reach, as warnings.
+//! * [`shipped`]: a shipped texture of the sheet (or the sheet as one),
+//!   its own decoded levels analyzed.
 //! * [`preview`]: the sheet's preview, every region's meshes at its
 //!   rectangle over the whole sheet.
 //! * [`cut_region`]: the cut of one region. The contract on a sheet: the
@@ -29,6 +31,7 @@ pub mod padding;
 pub mod preview;
 pub mod regions;
 pub mod run;
+pub mod shipped;
 pub mod slices;
 
 use crate::alpha::{analyze_runs, AlphaMap, RegionStats};
