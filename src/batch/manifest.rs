@@ -9,7 +9,12 @@
 //!     "underdraw": "0.1.0",
 //!     "settings": {"cut": {...}, "outputs": {...}, "image_uri": "../in/town/houses.png"},
 //!     "outputs": [{"path": "town/houses.mesh.json", "sha256": "…"}],
-//!     "result": {"vertices": 48, "opaque_capture": 0.9, "excess": 120.0, ...}}}}
+//!     "result": {"vertices": 48, "opaque_capture": 0.9, "excess": 120.0, ...}}},
+//!  "sheets": {"ui/atlas": {                    // a sprite sheet cut by its regions (absent without)
+//!     "input": "ui/atlas.png", "input_sha256": "…", "regions_sha256": "…",
+//!     "underdraw": "0.1.0", "settings": {"regions": [{...}, ...], ...},
+//!     "outputs": [{"path": "atlas/r0.mesh.json", "sha256": "…"}],
+//!     "regions": [{"name": "r0", "outputs": ["atlas/r0.mesh.json"], "result": {...}}]}}}
 //! ```
 //!
 //! Invariants: hashes are SHA-256 (FIPS 180-4) of the file bytes, in lower
@@ -105,6 +110,60 @@ pub struct Manifest {
     /// The layers, by the path of their outputs in the output folder
     /// without extension (`town/houses`).
     pub layers: BTreeMap<String, Entry>,
+    /// The sprite sheets cut by their regions, by the path of their outputs'
+    /// folder in the output folder (`ui/atlas`); absent when there are none,
+    /// so manifests without sheets keep their bytes.
+    #[serde(default, skip_serializing_if = "BTreeMap::is_empty")]
+    pub sheets: BTreeMap<String, SheetEntry>,
+}
+
+/// A sprite sheet's record: what its regions were cut from, with which
+/// settings, and what they wrote. A sheet is skipped when the sheet's
+/// bytes, the regions file's bytes, every region's effective settings and
+/// the underdraw version are the entry's and every output recorded is in
+/// place with its hash.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SheetEntry {
+    /// The sheet, relative to its input folder (given directly: its name).
+    pub input: String,
+    /// SHA-256 of the sheet's bytes.
+    pub input_sha256: String,
+    /// SHA-256 of the regions file's bytes.
+    pub regions_sha256: String,
+    /// The underdraw version that cut it.
+    pub underdraw: String,
+    /// Everything besides the sheet and the regions file that decides the
+    /// outputs' bytes: each region's effective settings, the outputs asked
+    /// for, the image URI, a shipped texture's hash.
+    pub settings: serde_json::Value,
+    /// The files written, relative to the sheet's output folder (the one
+    /// holding `<stem>/`), in writing order.
+    pub outputs: Vec<OutputFile>,
+    /// Per region, in the regions file's order, what was printed for it.
+    pub regions: Vec<RegionEntry>,
+}
+
+/// One region of a [`SheetEntry`].
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RegionEntry {
+    /// The region's name.
+    pub name: String,
+    /// Its files, relative to the sheet's output folder.
+    pub outputs: Vec<String>,
+    /// Its numbers, notes and warnings (the padding warnings among them).
+    pub result: LayerResult,
+}
+
+impl SheetEntry {
+    /// Whether the outputs recorded are all in `out` (the sheet's output
+    /// folder) with the hashes recorded.
+    pub fn outputs_intact(&self, out: &Path) -> bool {
+        self.outputs
+            .iter()
+            .all(|o| std::fs::read(out.join(&o.path)).is_ok_and(|b| sha256_hex(&b) == o.sha256))
+    }
 }
 
 impl Manifest {
@@ -114,6 +173,7 @@ impl Manifest {
             format: FORMAT.into(),
             version: VERSION,
             layers: BTreeMap::new(),
+            sheets: BTreeMap::new(),
         }
     }
 

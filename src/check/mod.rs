@@ -40,7 +40,7 @@ mod sheet;
 mod tests;
 
 pub use regions::regions_for_check;
-pub use sheet::{check_region_mesh, RegionReport};
+pub use sheet::{check_region_mesh, check_region_mesh_sampled, RegionReport};
 
 use crate::alpha::AlphaMap;
 use crate::mesh::{LayerMesh, Winding, FORMAT, VERSION};

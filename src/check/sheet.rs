@@ -91,6 +91,42 @@ pub fn check_region_mesh(
     sheet: &AlphaMap,
     region: Option<&MeshRegion>,
 ) -> Result<RegionReport, CheckError> {
+    check_region_mesh_sampled(mesh, Some(sheet), &[], region)
+}
+
+/// [`check_region_mesh`] against what the GPU samples from the sheet: the
+/// sheet's alpha (`source`, its mip levels by the block rules) and/or the
+/// decoded levels of the texture that ships (`shipped`, level 0 first,
+/// every one used); S intersected and C united over all of them on the
+/// whole sheet (as [`super::check_mesh_sampled`] does for a layer), then
+/// clipped to the region. Level 0 (the source, else the first shipped
+/// level) is the sheet; each shipped level's size must divide it.
+pub fn check_region_mesh_sampled(
+    mesh: &LayerMesh,
+    source: Option<&AlphaMap>,
+    shipped: &[AlphaMap],
+    region: Option<&MeshRegion>,
+) -> Result<RegionReport, CheckError> {
+    let Some(sheet) = source.or(shipped.first()) else {
+        return Err(CheckError::BadLevels {
+            why: "neither a sheet nor a texture level was given".into(),
+        });
+    };
+    for (l, m) in shipped.iter().enumerate() {
+        let fits = m.alpha.len() == m.width as usize * m.height as usize
+            && m.width > 0
+            && m.height > 0
+            && sheet.width % m.width == 0
+            && sheet.height % m.height == 0;
+        if !fits || (l == 0 && (m.width, m.height) != (sheet.width, sheet.height)) {
+            return Err(CheckError::BadLevels {
+                why: format!(
+                    "texture level {l} is {} x {} texels, which does not divide the sheet's {} x {}",
+                    m.width, m.height, sheet.width, sheet.height
+                ),
+            });
+        }
+    }
     if mesh.format != FORMAT {
         return Err(CheckError::WrongFormat {
             found: mesh.format.clone(),
@@ -176,7 +212,15 @@ pub fn check_region_mesh(
     validate_structure(mesh)?;
 
     // S and C on the whole sheet, then clipped to each frame.
-    let (safe, cover) = region_runs(sheet, mesh.filter, mesh.alpha, mesh.wrap);
+    let (safe, cover) = match shipped {
+        [] => region_runs(sheet, mesh.filter, mesh.alpha, mesh.wrap),
+        _ => super::sampled_runs(
+            source,
+            shipped,
+            (sw, sh),
+            (mesh.filter, mesh.alpha, mesh.wrap),
+        ),
+    };
     let mut s: Option<CellRuns> = None;
     let mut c: Option<CellRuns> = None;
     for f in &frames {

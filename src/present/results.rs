@@ -6,6 +6,7 @@
 //! Where to add a field to a command's `--json`: its type here (and, if
 //! the table shows it, its column in [`super::tables`]).
 
+use crate::batch::manifest::LayerResult;
 use crate::batch::{BatchReport, LayerReport, Status};
 use crate::check::ContractReport;
 use crate::error::FileError;
@@ -67,32 +68,39 @@ pub struct CutLayerNumbers {
     pub warnings: Vec<String>,
 }
 
+impl CutLayerNumbers {
+    /// The numbers a batch records for a layer (or a region of a sheet):
+    /// the vertex bytes per vertex format, the capture (`None` where the
+    /// safe-opaque region is empty), and the recorded warnings followed by
+    /// the quality warnings.
+    pub fn of_result(r: &LayerResult) -> CutLayerNumbers {
+        let n = CutNumbers::of_result(r);
+        CutLayerNumbers {
+            vertices: r.vertices,
+            vertex_bytes: VertexFormat::ALL
+                .iter()
+                .map(|f| {
+                    (
+                        f.name().to_string(),
+                        r.vertices as u64 * f.bytes_per_vertex(),
+                    )
+                })
+                .collect(),
+            opaque_capture: n.capture(),
+            excess: r.excess,
+            excess_share: n.excess_share(),
+            must_cover_area: r.must_cover_area,
+            notes: r.notes.clone(),
+            warnings: r.warnings.iter().cloned().chain(n.warnings(None)).collect(),
+        }
+    }
+}
+
 impl CutLayer {
     /// A layer of the batch's report.
     pub fn of_report(l: &LayerReport) -> CutLayer {
         let cut_numbers = l.result.as_ref().map(CutNumbers::of_result);
-        let numbers = l
-            .result
-            .as_ref()
-            .zip(cut_numbers)
-            .map(|(r, n)| CutLayerNumbers {
-                vertices: r.vertices,
-                vertex_bytes: VertexFormat::ALL
-                    .iter()
-                    .map(|f| {
-                        (
-                            f.name().to_string(),
-                            r.vertices as u64 * f.bytes_per_vertex(),
-                        )
-                    })
-                    .collect(),
-                opaque_capture: n.capture(),
-                excess: r.excess,
-                excess_share: n.excess_share(),
-                must_cover_area: r.must_cover_area,
-                notes: r.notes.clone(),
-                warnings: r.warnings.iter().cloned().chain(n.warnings(None)).collect(),
-            });
+        let numbers = l.result.as_ref().map(CutLayerNumbers::of_result);
         CutLayer {
             layer: l.input.display().to_string(),
             status: l.status,
@@ -252,45 +260,33 @@ pub struct SweepResult {
 }
 
 /// One region of a sprite sheet in `cut --json` (with `--regions`,
-/// `--find-regions`, or a sheet a batch found): the sheet, the region, its
-/// rectangle, the files written and its numbers, or why it failed.
+/// `--find-regions`, or a sheet a batch found): the same keys as a layer's
+/// object ([`CutLayer`]: `layer`, `status`, `outputs`, the numbers with
+/// `vertex_bytes`, `error`), `layer` being `<sheet stem>/<region name>`,
+/// plus the sheet, the region and its rectangle.
 #[derive(Clone, Debug, Serialize)]
 pub struct SheetRegionLine {
+    /// `<sheet stem>/<region name>`, as the table names the row.
+    pub layer: String,
     /// The sheet's path.
     pub sheet: String,
     /// The region's name.
     pub region: String,
     /// The region's rectangle in the sheet: x, y, width, height.
     pub rect: [u32; 4],
-    /// The files written for it.
+    /// The files written for it (for an unchanged sheet, those recorded).
     pub outputs: Vec<String>,
-    /// `cut` or `failed`.
+    /// `cut`, `unchanged` or `failed`.
     pub status: Status,
-    /// Its numbers, when it was cut.
+    /// Its numbers, when it was cut or is unchanged: a layer's numbers.
     #[serde(flatten)]
-    pub numbers: Option<SheetRegionNumbers>,
+    pub numbers: Option<CutLayerNumbers>,
     /// Why it failed.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub error: Option<String>,
-}
-
-/// A cut region's numbers in `cut --json`.
-#[derive(Clone, Debug, Serialize)]
-pub struct SheetRegionNumbers {
-    /// Vertices of both meshes together.
-    pub vertices: usize,
-    /// Opaque capture; null where the safe-opaque region is empty.
-    pub opaque_capture: Option<f64>,
-    /// Area covered beyond the must-cover region, texels.
-    pub excess: f64,
-    /// The excess as a share of the covered area.
-    pub excess_share: f64,
-    /// The must-cover region's area, texels.
-    pub must_cover_area: f64,
-    /// The cutter's notes.
-    pub notes: Vec<String>,
-    /// Warnings (padding, quality), each with what to try.
-    pub warnings: Vec<String>,
+    /// The sheet's preview with every region's meshes, when written.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub sheet_preview: Option<String>,
 }
 
 impl SheetRegionLine {
@@ -300,34 +296,23 @@ impl SheetRegionLine {
             .iter()
             .map(|g| {
                 let (numbers, error) = match &g.cut {
-                    Ok(c) => {
-                        let s = &c.mesh.stats;
-                        let n = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
-                        let numbers = SheetRegionNumbers {
-                            vertices: c.mesh.vertex_count(),
-                            opaque_capture: n.capture(),
-                            excess: s.excess(),
-                            excess_share: n.excess_share(),
-                            must_cover_area: s.must_cover_area,
-                            notes: c.notes.clone(),
-                            warnings: c.warnings.iter().cloned().chain(n.warnings(None)).collect(),
-                        };
-                        (Some(numbers), None)
-                    }
+                    Ok(c) => (Some(CutLayerNumbers::of_result(c)), None),
                     Err(e) => (None, Some(e.to_string())),
                 };
                 SheetRegionLine {
+                    layer: format!("{}/{}", r.stem, g.region.name),
                     sheet: r.sheet.display().to_string(),
                     region: g.region.name.clone(),
                     rect: g.region.rect.to_array(),
                     outputs: g.outputs.iter().map(|p| p.display().to_string()).collect(),
-                    status: if numbers.is_some() {
-                        Status::Cut
-                    } else {
-                        Status::Failed
+                    status: match (&numbers, r.unchanged) {
+                        (None, _) => Status::Failed,
+                        (Some(_), true) => Status::Unchanged,
+                        (Some(_), false) => Status::Cut,
                     },
                     numbers,
                     error,
+                    sheet_preview: r.preview.as_ref().map(|p| p.display().to_string()),
                 }
             })
             .collect()

@@ -8,6 +8,10 @@
 //!   texels separated by transparent ones), in reading order.
 //! * [`padding`]: the transparent padding around a region against the
 //!   filter's reach, as warnings.
+//! * [`shipped`]: a shipped texture of the sheet (or the sheet as one),
+//!   its own decoded levels analyzed.
+//! * [`preview`]: the sheet's preview, every region's meshes at its
+//!   rectangle over the whole sheet.
 //! * [`cut_region`]: the cut of one region. The contract on a sheet: the
 //!   safe-opaque and must-cover regions are computed on the WHOLE sheet (a
 //!   filtered sample near the region's edge reads its neighbours, the
@@ -24,12 +28,14 @@ pub mod batch;
 pub mod find;
 pub mod frames;
 pub mod padding;
+pub mod preview;
 pub mod regions;
 pub mod run;
+pub mod shipped;
 pub mod slices;
 
 use crate::alpha::{analyze_runs, AlphaMap, RegionStats};
-use crate::check::check_region_mesh;
+use crate::check::check_region_mesh_sampled;
 use crate::cut::{cut_runs, CutOutcome};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshRegion};
@@ -45,6 +51,12 @@ pub struct SheetAnalysis {
     pub safe: RowRuns,
     /// What must be covered, over the whole sheet.
     pub cover: RowRuns,
+    /// The shipped texture's decoded levels analyzed with (level 0 first,
+    /// levels 0..=`mip_levels`); empty for the sheet's PNG alone.
+    pub shipped: Vec<AlphaMap>,
+    /// Whether the sheet's PNG (its block levels) was analyzed: false for
+    /// a sheet that is itself a shipped texture.
+    pub with_source: bool,
 }
 
 impl SheetAnalysis {
@@ -55,6 +67,24 @@ impl SheetAnalysis {
             settings: *settings,
             safe,
             cover,
+            shipped: Vec::new(),
+            with_source: true,
+        }
+    }
+
+    /// Analyzes the whole sheet as the GPU samples it (`sampled`, which
+    /// must [validate](crate::alpha::Sampled::validate)): safe where the
+    /// PNG's block levels and the shipped texture's own decoded levels
+    /// all sample opaque, must-cover where any of them is visible. Its
+    /// meshes are checked against the same levels.
+    pub fn sampled(sampled: crate::alpha::Sampled, settings: &CutSettings) -> SheetAnalysis {
+        let (safe, cover, _) = crate::alpha::analyze_sampled_runs(sampled, settings);
+        SheetAnalysis {
+            settings: *settings,
+            safe,
+            cover,
+            shipped: sampled.shipped.to_vec(),
+            with_source: sampled.source.is_some(),
         }
     }
     /// Whether this analysis serves `settings` (same filter, thresholds and
@@ -225,7 +255,10 @@ impl Placement<'_> {
         let check = |m: &LayerMesh| {
             let mut m = m.clone();
             self.locate(&mut m, key.clone());
-            let r = check_region_mesh(&m, self.sheet, None).map_err(|e| e.to_string())?;
+            let a = self.analysis;
+            let source = a.with_source.then_some(self.sheet);
+            let r = check_region_mesh_sampled(&m, source, &a.shipped, None)
+                .map_err(|e| e.to_string())?;
             if r.holds() {
                 Ok(())
             } else {

@@ -9,12 +9,14 @@
 
 use super::find::{find_regions, region_names};
 use super::regions::{load_regions, parse_regions, RegionKind, RegionsFile, SheetRegion};
+use super::shipped::{texture_sheet_refusals, ShippedSheet};
 use super::{cut_region, RegionCut, RegionError, SheetAnalysis};
+use crate::batch::manifest::{sha256_hex, LayerResult, OutputFile, RegionEntry, SheetEntry};
 use crate::batch::settings_file::SettingsFile;
 use crate::batch::Outputs;
 use crate::error::{FileError, Setting};
 use crate::export::gltf::{glb_file, gltf_files, relative_uri};
-use crate::io::{load_layer, ImageLimits, NamedBytes, OutputFolder};
+use crate::io::{ImageLimits, NamedBytes, OutputFolder};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use crate::settings::PartialSettings;
@@ -54,12 +56,23 @@ pub struct SheetRequest {
     pub base: CutSettings,
     /// Settings given explicitly (over the file's).
     pub overrides: PartialSettings,
-    /// What to write per region (`preview` is not written for regions).
+    /// What to write per region; `preview`: one `OUT/<stem>.preview.png`
+    /// of the whole sheet with every region's meshes ([`super::preview`]).
     pub outputs: Outputs,
     /// Also cut and write each frame of an animation alone.
     pub per_frame: bool,
     /// Largest sheet read.
     pub limits: ImageLimits,
+    /// The compressed texture that ships for the sheet's PNG (KTX 2.0 or
+    /// `.astc`): every region is cut safe where the PNG and the texture's
+    /// own decoded levels (0..=`mip_levels`) all sample opaque, covering
+    /// what any shows. A sheet that is itself such a texture is cut on its
+    /// decoded levels alone.
+    pub texture: Option<PathBuf>,
+    /// The sheet's key in the output folder's manifest (the path of its
+    /// outputs' folder, `ui/atlas`), for a sheet cut from a regions file;
+    /// `None` runs it without the manifest (regions found every run).
+    pub key: Option<String>,
 }
 
 /// One region's result.
@@ -69,9 +82,11 @@ pub struct RegionResult {
     pub region: SheetRegion,
     /// Its settings.
     pub settings: CutSettings,
-    /// The cut, or why it failed.
-    pub cut: Result<RegionCut, RegionError>,
-    /// Files written (or already holding these bytes).
+    /// The cut's numbers, notes and warnings (the padding warnings among
+    /// them), as a batch records a layer's, or why it failed.
+    pub cut: Result<LayerResult, RegionError>,
+    /// Files written (or already holding these bytes; for an unchanged
+    /// sheet, the files recorded).
     pub outputs: Vec<PathBuf>,
 }
 
@@ -90,6 +105,14 @@ pub struct SheetReport {
     pub regions: Vec<RegionResult>,
     /// Every file written through the run's output folder, in order.
     pub written: Vec<PathBuf>,
+    /// True when the manifest showed the sheet unchanged: nothing was cut
+    /// or written, the regions' numbers are the recorded ones.
+    pub unchanged: bool,
+    /// The manifest entry to record, when the sheet has a key and every
+    /// region was cut (or it was unchanged).
+    pub entry: Option<SheetEntry>,
+    /// The sheet's preview (`OUT/<stem>.preview.png`), when asked for.
+    pub preview: Option<PathBuf>,
 }
 
 impl SheetReport {
@@ -104,8 +127,28 @@ impl SheetReport {
 /// refused, an output that would replace an input) come back as `Err`; a
 /// region that fails is reported in its [`RegionResult`].
 pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
-    let layer = load_layer(&req.sheet, &req.limits)?;
-    let sheet = layer.alpha;
+    run_sheet_since(req, None)
+}
+
+/// [`run_sheet`], skipping the cut when `previous` (the sheet's manifest
+/// entry) shows the sheet's bytes, the regions file's bytes, every region's
+/// effective settings and the underdraw version unchanged and every output
+/// recorded in place with its hash: the report then says `unchanged` and
+/// carries the recorded numbers.
+pub fn run_sheet_since(
+    req: &SheetRequest,
+    previous: Option<&SheetEntry>,
+) -> Result<SheetReport, FileError> {
+    let sheet_bytes = crate::io::read_input(&req.sheet)?;
+    let shipped = ShippedSheet::read(req, &sheet_bytes)?;
+    // the sheet's alpha: its PNG's, or a texture sheet's level 0
+    let (sheet, sheet_warnings) = match &shipped {
+        Some(t) if t.is_sheet => (t.texture.levels[0].clone(), Vec::new()),
+        _ => {
+            let layer = crate::io::decode_layer(&req.sheet, &sheet_bytes, &req.limits)?;
+            (layer.alpha, layer.warnings)
+        }
+    };
     let stem = req
         .sheet
         .file_stem()
@@ -194,13 +237,6 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         })?;
         settings.push(s);
     }
-    // the whole sheet analyzed once per filter, thresholds and addressing
-    let mut analyses: Vec<SheetAnalysis> = Vec::new();
-    for s in &settings {
-        if !analyses.iter().any(|a| a.serves(s)) {
-            analyses.push(SheetAnalysis::new(&sheet, s));
-        }
-    }
     // output names: a region's, and with --per-frame its frames' `<name>.<k>`
     let mut stems: Vec<(String, &str)> = Vec::new();
     for r in &regions {
@@ -225,22 +261,102 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         ));
     }
     // refused before anything of a region is written
+    let preview_name = format!("{stem}.preview.png");
+    if req.outputs.preview {
+        out.refuse_inputs(&preview_name)?;
+    }
     for (name, _) in &stems {
         for p in [".mesh.json", ".gltf", ".bin", ".glb"] {
             out.refuse_inputs(&format!("{stem}/{name}{p}"))?;
         }
     }
     let image_uri = relative_uri(&dir, &req.sheet).unwrap_or_else(|| sheet_name.clone());
+    if shipped.as_ref().is_some_and(|t| t.is_sheet) {
+        texture_sheet_refusals(req)?;
+    }
+    // what decides the outputs' bytes besides the two input files
+    let key_settings = serde_json::json!({
+        "regions": settings,
+        "outputs": req.outputs,
+        "per_frame": req.per_frame,
+        "image_uri": image_uri,
+    });
+    let mut key_settings = key_settings;
+    if let Some(t) = shipped.as_ref().filter(|t| !t.is_sheet) {
+        // a new texture cuts the sheet again
+        key_settings["texture"] = serde_json::json!({
+            "path": t.path.display().to_string(),
+            "sha256": t.sha256,
+        });
+    }
+    let regions_sha256 = match req.regions_path() {
+        Some(p) => Some(sha256_hex(&crate::io::read_input(p)?)),
+        None => None,
+    };
+    let input_sha256 = sha256_hex(&sheet_bytes);
+    let version = env!("CARGO_PKG_VERSION");
+    if let (Some(prev), Some(regions_sha256)) = (previous, &regions_sha256) {
+        if prev.input_sha256 == input_sha256
+            && &prev.regions_sha256 == regions_sha256
+            && prev.settings == key_settings
+            && prev.underdraw == version
+            && prev.regions.len() == regions.len()
+            && prev.outputs_intact(&req.out)
+        {
+            let results = regions
+                .iter()
+                .zip(&settings)
+                .zip(&prev.regions)
+                .map(|((r, s), e)| RegionResult {
+                    region: r.clone(),
+                    settings: *s,
+                    cut: Ok(e.result.clone()),
+                    outputs: e.outputs.iter().map(|o| req.out.join(o)).collect(),
+                })
+                .collect();
+            return Ok(SheetReport {
+                sheet: req.sheet.clone(),
+                stem,
+                regions_written: None,
+                warnings: sheet_warnings.clone(),
+                regions: results,
+                written: Vec::new(),
+                unchanged: true,
+                preview: prev
+                    .outputs
+                    .iter()
+                    .find(|o| o.path == preview_name)
+                    .map(|o| req.out.join(&o.path)),
+                entry: Some(prev.clone()),
+            });
+        }
+    }
+    // the whole sheet analyzed once per filter, thresholds and addressing
+    // (with a shipped texture: its own decoded levels up to the mip level)
+    let mut analyses: Vec<(SheetAnalysis, Option<String>)> = Vec::new();
+    for s in &settings {
+        if !analyses.iter().any(|a| a.0.serves(s)) {
+            analyses.push(match &shipped {
+                None => (SheetAnalysis::new(&sheet, s), None),
+                Some(t) => {
+                    let (a, note) = t.analysis(&sheet, s)?;
+                    (a, Some(note))
+                }
+            });
+        }
+    }
     // cut in parallel, each region's files as named bytes
     let cuts: Vec<Result<(RegionCut, Vec<NamedBytes>), RegionError>> = regions
         .par_iter()
         .zip(&settings)
         .map(|(r, s)| {
-            let a = analyses
+            let (a, note) = analyses
                 .iter()
-                .find(|a| a.serves(s))
+                .find(|a| a.0.serves(s))
                 .expect("analyzed above");
-            let c = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame)?;
+            let mut c = cut_region(&sheet, &sheet_name, a, r, s, req.per_frame)?;
+            // what the guarantee was computed for, as a layer's cut says
+            c.notes.splice(0..0, note.clone());
             let mut files = mesh_files(&dir, &stem, &r.name, &c.mesh, &req.outputs, &image_uri)?;
             for (k, m) in &c.per_frame {
                 let name = format!("{}.{k}", r.name);
@@ -251,11 +367,25 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
         .collect();
     // then each region's group committed, in the file's order
     let mut results = Vec::with_capacity(regions.len());
+    let mut recorded = Vec::new();
+    let mut entries = Vec::new();
+    let mut meshes = Vec::new();
     for ((r, s), cut) in regions.iter().zip(&settings).zip(cuts) {
         let before = out.written().len();
         let cut = cut.and_then(|(c, files)| {
             out.commit_changed(&files)?;
-            Ok(c)
+            recorded.extend(files.iter().map(|(name, bytes)| OutputFile {
+                path: name.clone(),
+                sha256: sha256_hex(bytes),
+            }));
+            entries.push(RegionEntry {
+                name: r.name.clone(),
+                outputs: files.iter().map(|(name, _)| name.clone()).collect(),
+                result: region_result(&c),
+            });
+            let result = region_result(&c);
+            meshes.push(c.mesh);
+            Ok(result)
         });
         results.push(RegionResult {
             region: r.clone(),
@@ -264,14 +394,61 @@ pub fn run_sheet(req: &SheetRequest) -> Result<SheetReport, FileError> {
             outputs: out.written()[before..].to_vec(),
         });
     }
+    // the sheet's preview, of the regions cut
+    let mut preview = None;
+    if req.outputs.preview {
+        let rgba = crate::io::decode_rgba(&req.sheet, &sheet_bytes, &req.limits)?;
+        let placed: Vec<&LayerMesh> = meshes.iter().collect();
+        let width = crate::batch::layer::PREVIEW_WIDTH;
+        if let Some(png) = super::preview::sheet_preview(&rgba, &placed, width) {
+            out.write(&preview_name, &png)?;
+            recorded.push(OutputFile {
+                path: preview_name.clone(),
+                sha256: sha256_hex(&png),
+            });
+            preview = Some(out.path(&preview_name));
+        }
+    }
+    // recorded only when every region is in place: a failed one is cut again
+    let entry = match (&req.key, regions_sha256) {
+        (Some(_), Some(regions_sha256)) if entries.len() == regions.len() => Some(SheetEntry {
+            input: format!("{}{sheet_name}", req.match_prefix),
+            input_sha256,
+            regions_sha256,
+            underdraw: version.into(),
+            settings: key_settings,
+            outputs: recorded,
+            regions: entries,
+        }),
+        _ => None,
+    };
     Ok(SheetReport {
         sheet: req.sheet.clone(),
         stem,
         regions_written,
-        warnings: layer.warnings,
+        warnings: sheet_warnings.clone(),
         regions: results,
         written: out.written().to_vec(),
+        unchanged: false,
+        entry,
+        preview,
     })
+}
+
+/// A region's cut as a batch records a layer's: its numbers, the cutter's
+/// notes and the padding warnings.
+fn region_result(c: &RegionCut) -> LayerResult {
+    let s = &c.mesh.stats;
+    LayerResult {
+        vertices: c.mesh.vertex_count(),
+        opaque_capture: s.opaque_capture(),
+        excess: s.excess(),
+        must_cover_area: s.must_cover_area,
+        safe_opaque_area: Some(s.safe_opaque_area),
+        opaque_texels: Some(s.opaque_texels),
+        notes: c.notes.clone(),
+        warnings: c.warnings.clone(),
+    }
 }
 
 impl SheetRequest {

@@ -85,7 +85,9 @@ pub(crate) struct CutArgs {
     /// with the opaque mesh tinted blue and the blended one orange (lightly,
     /// so the art shows), their edges on top, the regions' outlines dotted,
     /// and a caption in words; a layer wider than tall is shown plain above
-    /// its cut. At most 1024 pixels wide.
+    /// its cut. At most 1024 pixels wide. For a sprite sheet, one
+    /// `<OUT>/<sheet stem>.preview.png`: the whole sheet with every
+    /// region's meshes at its rectangle and the whole sheet's outlines.
     #[arg(long)]
     preview: bool,
     /// The compressed texture that ships for the one PNG layer given (KTX
@@ -93,7 +95,8 @@ pub(crate) struct CutArgs {
     /// Zstandard-supercompressed; or a raw .astc file): the layer is cut on
     /// both, safe where both sample opaque and covering what either shows,
     /// with --mip-levels counting the texture's own levels. A .ktx2 or .astc
-    /// file can also be cut alone, given as the layer.
+    /// file can also be cut alone, given as the layer. With --regions: the
+    /// texture of the sheet, every region cut against it.
     #[arg(long, value_name = "FILE")]
     texture: Option<PathBuf>,
     /// Most vertices per layer, both meshes together (a vertex they share
@@ -149,8 +152,6 @@ pub(crate) fn cut(
             vertex_format: args.vertex_format,
         };
         let unsupported = [
-            ("--texture", args.texture.is_some()),
-            ("--preview", args.preview),
             ("--include", !args.include.is_empty()),
             ("--exclude", !args.exclude.is_empty()),
         ];
@@ -166,6 +167,8 @@ pub(crate) fn cut(
                 base: defaults,
                 overrides: args.options.partial(args.budget as usize, typed),
                 outputs,
+                lock_wait: std::time::Duration::from_secs(args.lock_wait),
+                texture: args.texture.as_deref(),
                 unsupported: unsupported.iter().filter(|u| u.1).map(|u| u.0).collect(),
             },
             print,
@@ -224,8 +227,12 @@ pub(crate) fn cut(
         batch::run(&plan, &options, &|_| progress.inc(1))
     };
     progress.finish_and_clear();
-    let (sheet_reports, sheet_errors) = crate::sheet::run_found(&sheets);
     let report = report?;
+    let crate::sheet::SheetsDone {
+        reports: sheet_reports,
+        errors: sheet_errors,
+        notes: sheet_notes,
+    } = crate::sheet::run_found(&sheets, &plan.out, args.force, options.lock_wait);
     let result = CutResult::new(&report, &plan.empty);
     let (region_rows, regions_total) = crate::sheet::region_rows(&sheet_reports);
     if print.json {
@@ -240,6 +247,9 @@ pub(crate) fn cut(
         println!("{}", to_json(&objects));
     } else if print.text() {
         let cwd = std::env::current_dir().unwrap_or_default();
+        for n in &sheet_notes {
+            println!("note: {n}");
+        }
         print!(
             "{}",
             result.text_with(&cwd, &region_rows, regions_total.as_deref())

@@ -13,7 +13,8 @@ use underdraw::present::tables as table;
 use underdraw::quality::CutNumbers;
 use underdraw::settings::CutSettings;
 use underdraw::settings::PartialSettings;
-use underdraw::sheet::run::{run_sheet, RegionSource, SheetReport, SheetRequest};
+use underdraw::sheet::batch::run_sheets;
+use underdraw::sheet::run::{RegionSource, SheetReport, SheetRequest};
 
 /// The `cut` options a sheet run uses.
 pub(crate) struct SheetArgs<'a> {
@@ -27,6 +28,8 @@ pub(crate) struct SheetArgs<'a> {
     pub(crate) base: CutSettings,
     pub(crate) overrides: PartialSettings,
     pub(crate) outputs: Outputs,
+    pub(crate) lock_wait: std::time::Duration,
+    pub(crate) texture: Option<&'a Path>,
     /// Flags given that a sheet run does not take.
     pub(crate) unsupported: Vec<&'static str>,
 }
@@ -40,6 +43,9 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
     }
     if args.regions.is_some() && args.images.len() != 1 {
         bail!("--regions gives the regions of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its regions file, or use --find-regions for several", args.images.len());
+    }
+    if args.texture.is_some() && args.images.len() != 1 {
+        bail!("--texture gives the shipped texture of one sheet, but {} inputs were given\n  hint: cut one sheet a run with its texture", args.images.len());
     }
     if let Some(dir) = args.images.iter().find(|p| p.is_dir()) {
         bail!("{}: is a folder, but --regions and --find-regions take sheets (PNG files)\n  hint: give the sheet's PNG file", dir.display());
@@ -63,15 +69,35 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
             outputs: args.outputs,
             per_frame: args.per_frame,
             limits,
+            texture: args.texture.map(Path::to_path_buf),
+            // a regions file's sheet is recorded in the manifest; found
+            // regions are found again every run
+            key: args
+                .regions
+                .and(sheet.file_stem().map(|s| s.to_string_lossy().into_owned())),
         })
         .collect();
-    let (reports, errors) = run_found(&requests);
+    let SheetsDone {
+        reports,
+        errors,
+        notes,
+    } = run_found(&requests, args.out, args.force, args.lock_wait);
     if print.json {
         let lines: Vec<SheetRegionLine> =
             reports.iter().flat_map(SheetRegionLine::of_sheet).collect();
         println!("{}", to_json(&lines));
     } else if print.text() {
+        for n in &notes {
+            println!("note: {n}");
+        }
         for r in &reports {
+            if let Some(p) = &r.preview {
+                println!(
+                    "note: the preview of {}'s regions is {}",
+                    r.sheet.display(),
+                    p.display()
+                );
+            }
             for w in &r.warnings {
                 println!("note: {}: {w}", r.sheet.display());
             }
@@ -98,37 +124,66 @@ pub(crate) fn cut_sheets(args: &SheetArgs, print: Print, limits: ImageLimits) ->
 fn print_table(reports: &[SheetReport]) {
     let (rows, _) = region_rows(reports);
     print!("{}", table::cut_table(&rows));
-    let (count, failed, vertices) = region_counts(reports);
-    println!("total: {count} regions cut, {failed} failed, {vertices} vertices");
+    let (_, total) = region_rows(reports);
+    println!("total: {}", total.unwrap_or_default());
 }
 
-/// Regions cut, failed, and the vertices of those cut.
+/// Regions cut (or unchanged), failed, and the vertices of those cut.
 fn region_counts(reports: &[SheetReport]) -> (usize, usize, usize) {
     let cut = reports
         .iter()
         .flat_map(|r| &r.regions)
         .filter_map(|g| g.cut.as_ref().ok());
-    let vertices = cut.clone().map(|c| c.mesh.vertex_count()).sum();
+    let vertices = cut.clone().map(|c| c.vertices).sum();
     let failed = reports.iter().map(|r| r.failed()).sum();
     (cut.count(), failed, vertices)
 }
 
+/// What running sheets gave: the reports, the errors of the sheets and
+/// regions that failed (and of a manifest that could not be written), and
+/// the notes to print.
+pub(crate) struct SheetsDone {
+    pub(crate) reports: Vec<SheetReport>,
+    pub(crate) errors: Vec<Line>,
+    pub(crate) notes: Vec<String>,
+}
+
 /// Runs sheets (given with `--regions` / `--find-regions`, or found by a
-/// `cut` batch as PNGs with a `<stem>.regions.json` beside them): the
-/// reports, and the errors of the sheets and regions that failed.
-pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Line>) {
-    let mut reports = Vec::new();
-    let mut errors = Vec::new();
-    for req in requests {
-        match run_sheet(req) {
-            Ok(r) => reports.push(r),
-            Err(e) => errors.push(Line::Error(e.to_string())),
+/// `cut` batch as PNGs with a `<stem>.regions.json` beside them) into the
+/// output folder `out`, skipping those the manifest shows unchanged
+/// (unless `force`).
+pub(crate) fn run_found(
+    requests: &[SheetRequest],
+    out: &Path,
+    force: bool,
+    lock_wait: std::time::Duration,
+) -> SheetsDone {
+    let mut done = SheetsDone {
+        reports: Vec::new(),
+        errors: Vec::new(),
+        notes: Vec::new(),
+    };
+    if requests.is_empty() {
+        return done;
+    }
+    let run = match run_sheets(requests, out, force, lock_wait) {
+        Ok(r) => r,
+        Err(e) => {
+            done.errors.push(Line::Error(e.to_string()));
+            return done;
+        }
+    };
+    done.notes = run.notes;
+    for r in run.sheets {
+        match r {
+            Ok(r) => done.reports.push(r),
+            Err(e) => done.errors.push(Line::Error(e.to_string())),
         }
     }
-    for r in &reports {
+    for r in &done.reports {
         for g in &r.regions {
             if let Err(e) = &g.cut {
-                errors.push(Line::Error(format!(
+                done.errors.push(Line::Error(format!(
                     "{}: region {:?}: {e}",
                     r.sheet.display(),
                     g.region.name
@@ -136,7 +191,10 @@ pub(crate) fn run_found(requests: &[SheetRequest]) -> (Vec<SheetReport>, Vec<Lin
             }
         }
     }
-    (reports, errors)
+    if let Some(e) = run.manifest_error {
+        done.errors.push(Line::Error(e.to_string()));
+    }
+    done
 }
 
 /// The `--json` objects of the regions of sheets a batch found.
@@ -144,34 +202,36 @@ pub(crate) fn found_json(reports: &[SheetReport]) -> Vec<SheetRegionLine> {
     reports.iter().flat_map(SheetRegionLine::of_sheet).collect()
 }
 
-/// One table row per region cut (`<stem>/<name>`), and the total line's
-/// words for them (none without sheets).
+/// One table row per region cut or unchanged (`<stem>/<name>`), with the
+/// numbers, warnings and notes of its `--json` object, and the total
+/// line's words for them (none without sheets).
 pub(crate) fn region_rows(reports: &[SheetReport]) -> (Vec<table::CutRow>, Option<String>) {
     let mut rows = Vec::new();
     for r in reports {
-        for g in &r.regions {
-            let Ok(c) = &g.cut else { continue };
-            let s = &c.mesh.stats;
-            let numbers = CutNumbers::of_mesh(s, c.mesh.budget, c.mesh.vertex_count());
+        for (g, line) in r.regions.iter().zip(SheetRegionLine::of_sheet(r)) {
+            let (Ok(result), Some(n)) = (&g.cut, &line.numbers) else {
+                continue;
+            };
             rows.push(table::CutRow {
-                layer: format!("{}/{}", r.stem, g.region.name),
-                status: "cut".into(),
-                numbers,
-                warnings: c
-                    .warnings
-                    .iter()
-                    .cloned()
-                    .chain(numbers.warnings(None))
-                    .collect(),
-                notes: c.notes.clone(),
+                layer: line.layer.clone(),
+                status: if r.unchanged { "unchanged" } else { "cut" }.into(),
+                numbers: CutNumbers::of_result(result),
+                warnings: n.warnings.clone(),
+                notes: n.notes.clone(),
             });
         }
     }
     let (count, failed, vertices) = region_counts(reports);
+    let unchanged: usize = reports
+        .iter()
+        .filter(|r| r.unchanged)
+        .map(|r| r.regions.len())
+        .sum();
     let total = (!reports.is_empty()).then(|| {
         format!(
-            "{count} regions of {} sheet(s) cut ({failed} failed), {vertices} vertices",
-            reports.len()
+            "{count} regions of {} sheet(s) ({} cut, {unchanged} unchanged, {failed} failed), {vertices} vertices",
+            reports.len(),
+            count - unchanged
         )
     });
     (rows, total)
@@ -186,13 +246,38 @@ pub(crate) fn check_region(
     print: Print,
     limits: ImageLimits,
 ) -> Result<ExitCode> {
-    if texture_path.is_some() {
-        bail!("--texture is not taken for a region of a sheet\n  hint: check the region mesh against the sheet's PNG");
-    }
     let Some(image_path) = image_path else {
         bail!("a region mesh is checked against its sheet, but no IMAGE was given\n  hint: give the sheet's PNG after the mesh file");
     };
-    let sheet = underdraw::io::load_layer(image_path, &limits)?.alpha;
+    // the sheet's PNG and/or the texture that ships (a texture sheet alone)
+    let bytes = underdraw::io::read_input(image_path)?;
+    let (png, texture) = if underdraw::io::is_texture(&bytes) {
+        if let Some(t) = texture_path {
+            bail!("{}: is given as the shipped texture of {}, which is itself a texture\n  hint: check against the sheet's PNG with --texture, or the texture alone", t.display(), image_path.display());
+        }
+        let t = underdraw::io::decode_texture(image_path, &bytes, &limits)?;
+        (None, Some((image_path, t)))
+    } else {
+        let png = underdraw::io::decode_layer(image_path, &bytes, &limits)?.alpha;
+        let t = match texture_path {
+            Some(p) => Some((p, underdraw::io::load_texture(p, &limits)?)),
+            None => None,
+        };
+        (Some(png), t)
+    };
+    let mip = mesh.filter.mip_levels;
+    let shipped = match &texture {
+        Some((p, t)) => t.levels_for(mip).map_err(|why| {
+            anyhow::anyhow!(
+                "{}: {why}\n  hint: check a mesh cut for the levels the texture holds",
+                p.display()
+            )
+        })?,
+        None => &[],
+    };
+    let sheet = png
+        .clone()
+        .unwrap_or_else(|| shipped.first().cloned().expect("a texture's level 0"));
     let region = match named {
         None => mesh.region.clone().expect("a region key"),
         Some((name, file)) => {
@@ -229,8 +314,9 @@ pub(crate) fn check_region(
             }
         }
     };
-    let report = underdraw::check::check_region_mesh(mesh, &sheet, Some(&region))
-        .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
+    let report =
+        underdraw::check::check_region_mesh_sampled(mesh, png.as_ref(), shipped, Some(&region))
+            .map_err(|e| anyhow::anyhow!("{}: {e}", mesh_path.display()))?;
     let c = &report.contract;
     let code = ExitCode::from(if report.holds() { 0 } else { 1 });
     if print.json {
