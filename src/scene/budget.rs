@@ -36,7 +36,7 @@ use super::file::{MeshSource, Scene};
 use super::prepare::{cut_all, Layer};
 use super::score::mean_fragments;
 use crate::error::{FileError, Setting};
-use crate::frame::{render, Draw};
+use crate::frame::{coverage_into, Draw, RowSums};
 use crate::mesh::LayerMesh;
 use crate::sweep::BUDGETS;
 use rayon::prelude::*;
@@ -120,18 +120,24 @@ pub struct AllocationOutcome {
 /// A round's choice: its exact score, the budgets, the curves it was made from.
 type Round = (Scored, Vec<Option<usize>>, Vec<Vec<CurveEntry>>);
 
-/// Per layer, texel-space weight sums over the camera samples.
+/// Per layer, texel-space weight sums over the camera samples, as row
+/// prefix sums (a candidate's gain sums them over its triangles' spans).
 struct Weights {
     /// sum of vis over the pixels whose centre falls in each texel
-    vis: Vec<Vec<u64>>,
+    vis: Vec<RowSums>,
     /// sum of vis * behind
-    hidden: Vec<Vec<u64>>,
+    hidden: Vec<RowSums>,
 }
 
-fn draw_counts(viewport: [u32; 2], d: Option<Draw>) -> Vec<u32> {
+/// A layer's draw alone (counts per pixel) into `counts`, or a clear
+/// frame when it has none.
+fn draw_counts_into(viewport: [u32; 2], d: Option<Draw>, counts: &mut Vec<u32>) {
     match d {
-        Some(d) => render(viewport, &[d]).counts,
-        None => vec![0; viewport[0] as usize * viewport[1] as usize],
+        Some(d) => coverage_into(viewport, &d, counts),
+        None => {
+            counts.clear();
+            counts.resize(viewport[0] as usize * viewport[1] as usize, 0);
+        }
     }
 }
 
@@ -145,33 +151,35 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
         .map(|l| vec![0; (l.mesh.size[0] * l.mesh.size[1]) as usize])
         .collect();
     let mut hidden_sum = vis_sum.clone();
+    // per-pixel buffers, made once and reused at every camera sample
+    // (fresh ones per sample cost more in page faults than in drawing)
+    let mut maps: Vec<(Vec<u32>, Vec<u32>)> = vec![(Vec::new(), Vec::new()); n];
+    let mut vis: Vec<Vec<bool>> = vec![vec![false; vw * vh]; n];
+    let mut behind: Vec<Vec<u32>> = vec![vec![0; vw * vh]; n];
+    let mut nearer = vec![false; vw * vh];
+    let mut acc = vec![0u32; vw * vh];
     for cam in scene.camera_positions() {
         // each layer's opaque and covering pixels, alone
-        let maps: Vec<(Vec<u32>, Vec<u32>)> = (0..n)
-            .into_par_iter()
-            .map(|i| {
-                let one =
-                    |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
-                (
-                    draw_counts(vp, one(Part::Opaque)),
-                    draw_counts(vp, one(Part::Cover)),
-                )
-            })
-            .collect();
+        maps.par_iter_mut().enumerate().for_each(|(i, (o, c))| {
+            let one =
+                |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
+            draw_counts_into(vp, one(Part::Opaque), o);
+            draw_counts_into(vp, one(Part::Cover), c);
+        });
         // front to back: is the pixel free of nearer opaque meshes?
-        let mut nearer = vec![false; vw * vh];
-        let mut vis: Vec<Vec<bool>> = vec![Vec::new(); n];
+        nearer.fill(false);
         for i in (0..n).rev() {
-            vis[i] = nearer.iter().map(|&b| !b).collect();
+            for (v, &b) in vis[i].iter_mut().zip(&nearer) {
+                *v = !b;
+            }
             for (b, &o) in nearer.iter_mut().zip(&maps[i].0) {
                 *b |= o > 0;
             }
         }
         // back to front: fragments the layers behind would shade
-        let mut behind: Vec<Vec<u32>> = vec![Vec::new(); n];
-        let mut acc = vec![0u32; vw * vh];
+        acc.fill(0);
         for i in 0..n {
-            behind[i] = acc.clone();
+            behind[i].copy_from_slice(&acc);
             for ((a, &o), &c) in acc.iter_mut().zip(&maps[i].0).zip(&maps[i].1) {
                 *a = if o > 0 { c } else { *a + c };
             }
@@ -212,32 +220,31 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
                 }
             });
     }
+    // as row sums, each layer's plain sums dropped as its row sums are made
+    let sums = |v: Vec<Vec<u64>>| -> Vec<RowSums> {
+        v.into_iter()
+            .zip(layers)
+            .map(|(v, l)| RowSums::new(l.mesh.size, &v))
+            .collect()
+    };
     Weights {
-        vis: vis_sum,
-        hidden: hidden_sum,
+        vis: sums(vis_sum),
+        hidden: sums(hidden_sum),
     }
 }
 
-/// A candidate mesh's gain against the layer's rectangle, summed over the samples.
-fn gain(mesh: &LayerMesh, vis: &[u64], hidden: &[u64]) -> f64 {
-    let flat = |indices: &[u32]| {
-        (!indices.is_empty()).then(|| Draw {
-            layer: String::new(),
-            blend: false,
-            depth: 0.5,
-            depth_test: false,
-            depth_write: false,
-            positions: mesh.positions.clone(),
-            indices: indices.to_vec(),
-        })
+/// A candidate mesh's gain against the layer's rectangle, summed over the
+/// samples: the weights under its covering triangles (each texel once per
+/// triangle covering it, as drawn without depth test) and under its opaque
+/// ones, summed over the triangles' row spans.
+fn gain(mesh: &LayerMesh, vis: &RowSums, hidden: &RowSums) -> f64 {
+    let under = |sums: &RowSums, indices: &[u32]| {
+        sums.covered(&mesh.positions, indices)
+            .unwrap_or_else(|e| panic!("a cut mesh draws: {e}"))
     };
-    let mut cover = mesh.opaque.indices.clone();
-    cover.extend(&mesh.blended.indices);
-    let opaque = draw_counts(mesh.size, flat(&mesh.opaque.indices));
-    let cover = draw_counts(mesh.size, flat(&cover));
-    let rect: u64 = vis.iter().sum();
-    let own: u64 = cover.iter().zip(vis).map(|(&c, &v)| c as u64 * v).sum();
-    let hides: u64 = opaque.iter().zip(hidden).map(|(&o, &h)| o as u64 * h).sum();
+    let rect = vis.total();
+    let own = under(vis, &mesh.opaque.indices) + under(vis, &mesh.blended.indices);
+    let hides = under(hidden, &mesh.opaque.indices);
     rect as f64 - own as f64 + hides as f64
 }
 
@@ -335,6 +342,8 @@ pub fn allocate_scene(
         .collect();
     let even_score = score(&even_choice);
     let mut reference = even_choice.clone();
+    let mut scored: Vec<(Vec<Option<usize>>, Scored)> =
+        vec![(even_choice.clone(), even_score.clone())];
     let mut rounds = Vec::new();
     // (exact score, budgets, curves) of the best round so far
     let mut best: Option<Round> = None;
@@ -374,7 +383,13 @@ pub fn allocate_scene(
         for (k, &i) in free.iter().enumerate() {
             choice[i] = Some(curves[k][pick[k]].budget);
         }
-        let s = score(&choice);
+        // a choice already scored (the even spread, or the last round's
+        // when this round repeats it) is not rendered again
+        let s = match scored.iter().find(|(c, _)| *c == choice) {
+            Some((_, s)) => s.clone(),
+            None => score(&choice),
+        };
+        scored.push((choice.clone(), s.clone()));
         rounds.push(s.clone());
         if best.as_ref().is_none_or(|b| s.fragments < b.0.fragments) {
             best = Some((s, choice.clone(), curves));
