@@ -33,15 +33,19 @@
 use super::allocate::{allocate, CurvePoint};
 use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
-use super::prepare::{cut_all, Layer};
+use super::prepare::{source_name, Layer, LayerAlpha};
 use super::score::mean_fragments;
+use crate::cut::cut_budgets;
 use crate::error::{FileError, Setting};
 use crate::frame::{coverage_into, Draw, RowSums};
 use crate::mesh::LayerMesh;
+use crate::settings::CutSettings;
 use crate::sweep::BUDGETS;
 use rayon::prelude::*;
 use serde::Serialize;
+use std::collections::HashMap;
 use std::path::PathBuf;
+use std::sync::Arc;
 
 /// Choices made, each scored exactly.
 const ROUNDS: usize = 2;
@@ -248,6 +252,38 @@ fn gain(mesh: &LayerMesh, vis: &RowSums, hidden: &RowSums) -> f64 {
     rect as f64 - own as f64 + hides as f64
 }
 
+/// Every distinct cut of `jobs` (image, settings), keyed as
+/// [`super::prepare::cut_all`] keys them, each layer's budgets cut from one
+/// analysis of it ([`cut_budgets`]): exactly the cuts of `cut_all`.
+fn cut_curves(
+    jobs: &[(PathBuf, CutSettings)],
+    maps: &HashMap<PathBuf, Arc<LayerAlpha>>,
+) -> HashMap<(PathBuf, CutSettings), (LayerMesh, Vec<String>)> {
+    // the budgets of each (image, settings but the budget), in first-seen order
+    let mut curves: Vec<((&PathBuf, CutSettings), Vec<usize>)> = Vec::new();
+    for (path, s) in jobs {
+        let base = CutSettings { budget: 0, ..*s };
+        match curves.iter_mut().find(|(k, _)| *k == (path, base)) {
+            Some((_, budgets)) if budgets.contains(&s.budget) => {}
+            Some((_, budgets)) => budgets.push(s.budget),
+            None => curves.push(((path, base), vec![s.budget])),
+        }
+    }
+    curves
+        .par_iter()
+        .flat_map_iter(|((path, base), budgets)| {
+            let alpha = &maps[*path];
+            let outs = cut_budgets(alpha.sampled(base), &source_name(path), base, budgets);
+            budgets.iter().zip(outs).map(move |(&budget, out)| {
+                (
+                    ((*path).clone(), CutSettings { budget, ..*base }),
+                    (out.mesh, out.notes),
+                )
+            })
+        })
+        .collect()
+}
+
 fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
     FileError::new(
         &scene.path,
@@ -299,25 +335,35 @@ pub fn allocate_scene(
     budgets.dedup();
     // every candidate cut, each distinct one once
     let setting = |i: usize, budget: usize| match layers[i].spec.mesh {
-        MeshSource::Cut(s) => (
-            layers[i].spec.image.clone(),
-            crate::settings::CutSettings { budget, ..s },
-        ),
+        MeshSource::Cut(s) => (layers[i].spec.image.clone(), CutSettings { budget, ..s }),
         MeshSource::File(_) | MeshSource::Region(_) => {
             unreachable!("free layers are cut on the fly")
         }
     };
-    let jobs: Vec<(PathBuf, crate::settings::CutSettings)> = free
+    // a layer's cut at its own settings was made when the scene was read:
+    // it is not cut again
+    let own: HashMap<(PathBuf, CutSettings), &LayerMesh> = free
+        .iter()
+        .filter_map(|&i| match layers[i].spec.mesh {
+            MeshSource::Cut(s) => Some(((layers[i].spec.image.clone(), s), &layers[i].mesh)),
+            MeshSource::File(_) | MeshSource::Region(_) => None,
+        })
+        .collect();
+    let jobs: Vec<(PathBuf, CutSettings)> = free
         .iter()
         .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
         .map(|(i, b)| setting(i, b))
+        .filter(|job| !own.contains_key(job))
         .collect();
     let maps = layers
         .iter()
         .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
         .collect();
-    let cuts = cut_all(&jobs, &maps);
-    let candidate = |i: usize, b: usize| &cuts[&setting(i, b)].0;
+    let cuts = cut_curves(&jobs, &maps);
+    let candidate = |i: usize, b: usize| {
+        let key = setting(i, b);
+        own.get(&key).copied().unwrap_or_else(|| &cuts[&key].0)
+    };
     let assign = |choice: &[Option<usize>]| -> Vec<&LayerMesh> {
         (0..layers.len())
             .map(|i| match choice[i] {
