@@ -454,7 +454,13 @@ impl<'a> Fitter<'a> {
                 }
             }
         }
+        // the queue held a candidate per vertex of the exact outlines: give
+        // its memory back, as several variants wait with their greedy fits
+        // done (the order of a later queue does not depend on its capacity)
         self.heap.clear();
+        self.heap.shrink_to_fit();
+        // and the kept containment answers (a cache: no result depends on it)
+        *self.triangle_answers.get_mut() = Default::default();
     }
 
     /// The second half of [`Fitter::fit`], after [`Fitter::fit_greedy`] at
