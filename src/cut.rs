@@ -218,14 +218,70 @@ pub fn cut_layer(map: &AlphaMap, source: &str, settings: &CutSettings) -> CutOut
 pub fn cut_sampled(sampled: Sampled, source: &str, settings: &CutSettings) -> CutOutcome {
     let outlines = fit_regions(prepare_regions(sampled, settings), settings.budget);
     finish(outlines, source, settings, &|mesh: &LayerMesh| {
-        let report =
-            check_mesh_sampled(mesh, sampled.source, sampled.shipped).map_err(|e| e.to_string())?;
-        if report.holds() {
-            Ok(())
-        } else {
-            Err(report.violations().join("; "))
-        }
+        sampled_check(mesh, sampled)
     })
+}
+
+/// A layer's cuts at several budgets from one analysis (a budget curve, as
+/// `sweep` and the scene allocation need): stage 1 ([`prepare_regions`],
+/// which does not depend on the budget) runs once, then each budget is
+/// fitted from the shared regions, triangulated and checked (in parallel).
+/// `result[i]` is exactly [`cut_sampled`] with `settings.budget =
+/// budgets[i]`.
+///
+/// ```
+/// use underdraw::{alpha::{AlphaMap, Sampled}, cut::{cut_budgets, cut_sampled}};
+/// use underdraw::settings::CutSettings;
+/// // a soft disc: its cuts grow with the budget
+/// let alpha = (0..64 * 64)
+///     .map(|i| {
+///         let (x, y) = ((i % 64) as f64 - 31.5, (i / 64) as f64 - 31.5);
+///         (255.0 * (28.0 - (x * x + y * y).sqrt()).clamp(0.0, 1.0)) as u8
+///     })
+///     .collect();
+/// let map = AlphaMap::from_raw(64, 64, alpha);
+/// let base = CutSettings::default();
+/// let curve = cut_budgets(Sampled::source(&map), "disc.png", &base, &[8, 32]);
+/// for (out, budget) in curve.iter().zip([8, 32]) {
+///     let one = cut_sampled(Sampled::source(&map), "disc.png", &CutSettings { budget, ..base });
+///     assert_eq!(out.mesh, one.mesh);
+/// }
+/// ```
+pub fn cut_budgets(
+    sampled: Sampled,
+    source: &str,
+    base: &CutSettings,
+    budgets: &[usize],
+) -> Vec<CutOutcome> {
+    use rayon::prelude::*;
+    let regions = prepare_regions(sampled, base);
+    budgets
+        .par_iter()
+        .map(|&budget| {
+            let settings = CutSettings { budget, ..*base };
+            let fit = fit_outlines(regions.safe.clone(), &regions.cover, budget);
+            let outlines = Outlines {
+                fit,
+                stats: regions.stats,
+                size: regions.size,
+            };
+            finish(outlines, source, &settings, &|mesh: &LayerMesh| {
+                sampled_check(mesh, sampled)
+            })
+        })
+        .collect()
+}
+
+/// [`cut_sampled`]'s self-check: the independent [`crate::check`] on what
+/// the GPU samples, its violations joined.
+fn sampled_check(mesh: &LayerMesh, sampled: Sampled) -> Result<(), String> {
+    let report =
+        check_mesh_sampled(mesh, sampled.source, sampled.shipped).map_err(|e| e.to_string())?;
+    if report.holds() {
+        Ok(())
+    } else {
+        Err(report.violations().join("; "))
+    }
 }
 
 /// Cuts regions that were analyzed elsewhere: `safe` and `cover` on the

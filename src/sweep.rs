@@ -14,9 +14,8 @@
 
 use crate::alpha::AlphaMap;
 use crate::alpha::Sampled;
-use crate::cut::cut_sampled;
+use crate::cut::cut_budgets;
 use crate::settings::CutSettings;
-use rayon::prelude::*;
 use serde::Serialize;
 
 /// The budgets a sweep tries.
@@ -42,7 +41,8 @@ pub struct SweepPoint {
     pub notes: Vec<String>,
 }
 
-/// Cuts a layer at each budget (in parallel), with the other settings of
+/// Cuts a layer at each budget (from one analysis, in parallel:
+/// [`crate::cut::cut_budgets`]), with the other settings of
 /// `base`; one point per budget, in the order of `budgets`.
 ///
 /// ```
@@ -79,10 +79,11 @@ pub fn sweep_sampled(
 ) -> Vec<SweepPoint> {
     let map = sampled.level0();
     let rect_area = map.width as f64 * map.height as f64;
-    budgets
-        .par_iter()
-        .map(|&budget| {
-            let out = cut_sampled(sampled, source, &CutSettings { budget, ..*base });
+    // one analysis of the layer, each budget fitted from it
+    cut_budgets(sampled, source, base, budgets)
+        .into_iter()
+        .zip(budgets)
+        .map(|(out, &budget)| {
             let s = &out.mesh.stats;
             // + 0.0 turns an empty sum's -0 into 0
             let (opaque_area, covered_area) = (s.opaque_area + 0.0, s.covered_area + 0.0);

@@ -102,6 +102,12 @@ pub fn print_scene(s: &SceneTimes) {
         s.score_n.ms / s.decode.ms,
         busy(&s.score_n)
     );
+    println!(
+        "allocation of a vertex total of {} (allocate_scene), {} threads, once: {:>9.1} ms",
+        super::scene::VERTEX_TOTAL,
+        s.threads,
+        s.allocate_ms
+    );
 }
 
 /// Prints the batch benchmark.

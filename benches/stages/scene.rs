@@ -14,6 +14,7 @@ use rayon::ThreadPool;
 use std::path::Path;
 use underdraw::io::write_atomic;
 use underdraw::mesh::LayerMesh;
+use underdraw::scene::budget::allocate_scene;
 use underdraw::scene::draws::Strategy;
 use underdraw::scene::file::load_scene;
 use underdraw::scene::prepare::prepare_layers;
@@ -21,6 +22,9 @@ use underdraw::scene::score::{score_frames, summarize};
 
 /// Camera samples of the scene.
 pub const SAMPLES: u32 = 32;
+
+/// The vertex total the allocation benchmark splits over the eight layers.
+pub const VERTEX_TOTAL: usize = 400;
 
 /// What the scoring benchmark measured.
 pub struct SceneTimes {
@@ -34,6 +38,11 @@ pub struct SceneTimes {
     pub score_n: Timed,
     /// Threads of the second pool.
     pub threads: usize,
+    /// Choosing budgets for a vertex total of [`VERTEX_TOTAL`]
+    /// (`allocate_scene`: every layer cut at every candidate budget, the
+    /// weights and gains of each round, each choice scored), once, on
+    /// the second pool.
+    pub allocate_ms: f64,
     /// Frames rendered per scoring (strategies x samples).
     pub frames: usize,
     /// Total texels of the eight layers.
@@ -108,12 +117,17 @@ pub fn run(dir: &Path, runs: usize, one: &ThreadPool, many: &ThreadPool) -> Scen
     };
     let score_1 = one.install(|| median_ms(runs, score));
     let score_n = many.install(|| median_ms(runs, score));
+    let t = std::time::Instant::now();
+    many.install(|| std::hint::black_box(allocate_scene(&scene, &layers, VERTEX_TOTAL)))
+        .unwrap_or_else(|e| panic!("{e}"));
+    let allocate_ms = t.elapsed().as_secs_f64() * 1e3;
     SceneTimes {
         decode,
         cut_ms,
         score_1,
         score_n,
         threads: many.current_num_threads(),
+        allocate_ms,
         frames: Strategy::ALL.len() * cams.len(),
         texels,
     }

@@ -195,7 +195,13 @@ pub struct Fitter<'a> {
     /// two rankings of large edits weigh differently.
     watch_cap: bool,
     cap_diverged: bool,
+    /// Containment answers of tall triangles ([`Fitter::triangle_allowed`]):
+    /// the regions never change, so an answer holds for the whole fit.
+    triangle_answers: std::cell::RefCell<PointMap3<bool>>,
 }
+
+/// A map keyed by a triangle's three lattice points and a class.
+pub(crate) type PointMap3<V> = HashMap<([Point; 3], u8), V, foldhash::fast::FixedState>;
 
 impl<'a> Fitter<'a> {
     /// Starts from exact rings of the safe region (`opaque`) and of the
@@ -234,6 +240,7 @@ impl<'a> Fitter<'a> {
             share_credit: true,
             watch_cap: false,
             cap_diverged: false,
+            triangle_answers: Default::default(),
         };
         let rects = &opaque.rects;
         for (class, rings) in [(Class::Opaque, opaque_rings), (Class::Cover, cover_rings)] {
@@ -447,7 +454,13 @@ impl<'a> Fitter<'a> {
                 }
             }
         }
+        // the queue held a candidate per vertex of the exact outlines: give
+        // its memory back, as several variants wait with their greedy fits
+        // done (the order of a later queue does not depend on its capacity)
         self.heap.clear();
+        self.heap.shrink_to_fit();
+        // and the kept containment answers (a cache: no result depends on it)
+        *self.triangle_answers.get_mut() = Default::default();
     }
 
     /// The second half of [`Fitter::fit`], after [`Fitter::fit_greedy`] at

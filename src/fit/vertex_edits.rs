@@ -4,6 +4,10 @@
 use super::geom::{in_closed_polygon, segments_touch, triangle_row_spans};
 use super::*;
 
+/// Triangles spanning at least this many lattice rows have their
+/// containment answer kept ([`Fitter::triangle_allowed`]).
+const TALL_TRIANGLE_ROWS: i64 = 8;
+
 impl Fitter<'_> {
     pub(super) fn class_of(&self, v: u32) -> Class {
         self.rings[self.verts[v as usize].ring as usize].class
@@ -84,6 +88,31 @@ impl Fitter<'_> {
     /// Triangle (u, v, w) of region growth must lie in the safe region
     /// (opaque) and region loss must avoid the must-cover region (cover).
     pub(super) fn triangle_allowed(&self, class: Class, tri: &[Point; 3], delta: i64) -> bool {
+        let (ymin, ymax) = (
+            tri[0][1].min(tri[1][1]).min(tri[2][1]),
+            tri[0][1].max(tri[1][1]).max(tri[2][1]),
+        );
+        let kind = match (class, delta.signum()) {
+            (Class::Opaque, 1) => 0u8,
+            (Class::Cover, -1) => 1,
+            _ => return true,
+        };
+        // a tall triangle's row walk costs more than a look-up; the
+        // regions never change, so a triangle's answer is kept
+        if ymax - ymin < TALL_TRIANGLE_ROWS {
+            return self.triangle_allowed_walk(class, tri, delta);
+        }
+        let key = (*tri, kind);
+        if let Some(&answer) = self.triangle_answers.borrow().get(&key) {
+            return answer;
+        }
+        let answer = self.triangle_allowed_walk(class, tri, delta);
+        self.triangle_answers.borrow_mut().insert(key, answer);
+        answer
+    }
+
+    /// [`Fitter::triangle_allowed`], walking the triangle's rows.
+    fn triangle_allowed_walk(&self, class: Class, tri: &[Point; 3], delta: i64) -> bool {
         match (class, delta.signum()) {
             (Class::Opaque, 1) => triangle_row_spans(tri, |y, x0, x1| {
                 y >= 0

@@ -35,12 +35,17 @@
 //! [`spans::measure`] computes the same numbers (every [`DrawStats`] and the
 //! most fragments at one pixel) without per-pixel buffers, from runs of
 //! equal depth and count per row; scoring uses it, images use [`render`].
+//! [`coverage`] gives one draw's per-pixel counts into a reused buffer, and
+//! sums of per-pixel weights over a triangle list's coverage, exactly as
+//! `render` counts them (the scene allocation's weights and gains).
 
+pub mod coverage;
 pub mod spans;
 
 #[cfg(test)]
 mod measure_props;
 
+pub use coverage::{coverage_into, RowSums};
 pub use spans::{measure, FrameStats, SpanBuffer};
 
 use crate::raster::{QuadTracker, Triangle};

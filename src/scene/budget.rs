@@ -33,15 +33,19 @@
 use super::allocate::{allocate, CurvePoint};
 use super::draws::{copy_origins, layer_depth, layer_draw, Part, Strategy};
 use super::file::{MeshSource, Scene};
-use super::prepare::{cut_all, cut_regions_at, Layer};
+use super::prepare::{cut_regions_at, source_name, Layer, LayerAlpha};
 use super::score::mean_fragments;
+use crate::cut::cut_budgets;
 use crate::error::{FileError, Setting};
-use crate::frame::{render, Draw};
+use crate::frame::{coverage_into, Draw, RowSums};
 use crate::mesh::LayerMesh;
+use crate::settings::CutSettings;
 use crate::sweep::BUDGETS;
 use rayon::prelude::*;
 use serde::Serialize;
+use std::collections::HashMap;
 use std::path::PathBuf;
+use std::sync::Arc;
 
 /// Choices made, each scored exactly.
 const ROUNDS: usize = 2;
@@ -120,18 +124,24 @@ pub struct AllocationOutcome {
 /// A round's choice: its exact score, the budgets, the curves it was made from.
 type Round = (Scored, Vec<Option<usize>>, Vec<Vec<CurveEntry>>);
 
-/// Per layer, texel-space weight sums over the camera samples.
+/// Per layer, texel-space weight sums over the camera samples, as row
+/// prefix sums (a candidate's gain sums them over its triangles' spans).
 struct Weights {
     /// sum of vis over the pixels whose centre falls in each texel
-    vis: Vec<Vec<u64>>,
+    vis: Vec<RowSums>,
     /// sum of vis * behind
-    hidden: Vec<Vec<u64>>,
+    hidden: Vec<RowSums>,
 }
 
-fn draw_counts(viewport: [u32; 2], d: Option<Draw>) -> Vec<u32> {
+/// A layer's draw alone (counts per pixel) into `counts`, or a clear
+/// frame when it has none.
+fn draw_counts_into(viewport: [u32; 2], d: Option<Draw>, counts: &mut Vec<u32>) {
     match d {
-        Some(d) => render(viewport, &[d]).counts,
-        None => vec![0; viewport[0] as usize * viewport[1] as usize],
+        Some(d) => coverage_into(viewport, &d, counts),
+        None => {
+            counts.clear();
+            counts.resize(viewport[0] as usize * viewport[1] as usize, 0);
+        }
     }
 }
 
@@ -145,33 +155,35 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
         .map(|l| vec![0; (l.mesh.size[0] * l.mesh.size[1]) as usize])
         .collect();
     let mut hidden_sum = vis_sum.clone();
+    // per-pixel buffers, made once and reused at every camera sample
+    // (fresh ones per sample cost more in page faults than in drawing)
+    let mut maps: Vec<(Vec<u32>, Vec<u32>)> = vec![(Vec::new(), Vec::new()); n];
+    let mut vis: Vec<Vec<bool>> = vec![vec![false; vw * vh]; n];
+    let mut behind: Vec<Vec<u32>> = vec![vec![0; vw * vh]; n];
+    let mut nearer = vec![false; vw * vh];
+    let mut acc = vec![0u32; vw * vh];
     for cam in scene.camera_positions() {
         // each layer's opaque and covering pixels, alone
-        let maps: Vec<(Vec<u32>, Vec<u32>)> = (0..n)
-            .into_par_iter()
-            .map(|i| {
-                let one =
-                    |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
-                (
-                    draw_counts(vp, one(Part::Opaque)),
-                    draw_counts(vp, one(Part::Cover)),
-                )
-            })
-            .collect();
+        maps.par_iter_mut().enumerate().for_each(|(i, (o, c))| {
+            let one =
+                |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
+            draw_counts_into(vp, one(Part::Opaque), o);
+            draw_counts_into(vp, one(Part::Cover), c);
+        });
         // front to back: is the pixel free of nearer opaque meshes?
-        let mut nearer = vec![false; vw * vh];
-        let mut vis: Vec<Vec<bool>> = vec![Vec::new(); n];
+        nearer.fill(false);
         for i in (0..n).rev() {
-            vis[i] = nearer.iter().map(|&b| !b).collect();
+            for (v, &b) in vis[i].iter_mut().zip(&nearer) {
+                *v = !b;
+            }
             for (b, &o) in nearer.iter_mut().zip(&maps[i].0) {
                 *b |= o > 0;
             }
         }
         // back to front: fragments the layers behind would shade
-        let mut behind: Vec<Vec<u32>> = vec![Vec::new(); n];
-        let mut acc = vec![0u32; vw * vh];
+        acc.fill(0);
         for i in 0..n {
-            behind[i] = acc.clone();
+            behind[i].copy_from_slice(&acc);
             for ((a, &o), &c) in acc.iter_mut().zip(&maps[i].0).zip(&maps[i].1) {
                 *a = if o > 0 { c } else { *a + c };
             }
@@ -212,33 +224,64 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
                 }
             });
     }
+    // as row sums, each layer's plain sums dropped as its row sums are made
+    let sums = |v: Vec<Vec<u64>>| -> Vec<RowSums> {
+        v.into_iter()
+            .zip(layers)
+            .map(|(v, l)| RowSums::new(l.mesh.size, &v))
+            .collect()
+    };
     Weights {
-        vis: vis_sum,
-        hidden: hidden_sum,
+        vis: sums(vis_sum),
+        hidden: sums(hidden_sum),
     }
 }
 
-/// A candidate mesh's gain against the layer's rectangle, summed over the samples.
-fn gain(mesh: &LayerMesh, vis: &[u64], hidden: &[u64]) -> f64 {
-    let flat = |indices: &[u32]| {
-        (!indices.is_empty()).then(|| Draw {
-            layer: String::new(),
-            blend: false,
-            depth: 0.5,
-            depth_test: false,
-            depth_write: false,
-            positions: mesh.positions.clone(),
-            indices: indices.to_vec(),
-        })
+/// A candidate mesh's gain against the layer's rectangle, summed over the
+/// samples: the weights under its covering triangles (each texel once per
+/// triangle covering it, as drawn without depth test) and under its opaque
+/// ones, summed over the triangles' row spans.
+fn gain(mesh: &LayerMesh, vis: &RowSums, hidden: &RowSums) -> f64 {
+    let under = |sums: &RowSums, indices: &[u32]| {
+        sums.covered(&mesh.positions, indices)
+            .unwrap_or_else(|e| panic!("a cut mesh draws: {e}"))
     };
-    let mut cover = mesh.opaque.indices.clone();
-    cover.extend(&mesh.blended.indices);
-    let opaque = draw_counts(mesh.size, flat(&mesh.opaque.indices));
-    let cover = draw_counts(mesh.size, flat(&cover));
-    let rect: u64 = vis.iter().sum();
-    let own: u64 = cover.iter().zip(vis).map(|(&c, &v)| c as u64 * v).sum();
-    let hides: u64 = opaque.iter().zip(hidden).map(|(&o, &h)| o as u64 * h).sum();
+    let rect = vis.total();
+    let own = under(vis, &mesh.opaque.indices) + under(vis, &mesh.blended.indices);
+    let hides = under(hidden, &mesh.opaque.indices);
     rect as f64 - own as f64 + hides as f64
+}
+
+/// Every distinct cut of `jobs` (image, settings), keyed as
+/// [`super::prepare::cut_all`] keys them, each layer's budgets cut from one
+/// analysis of it ([`cut_budgets`]): exactly the cuts of `cut_all`.
+fn cut_curves(
+    jobs: &[(PathBuf, CutSettings)],
+    maps: &HashMap<PathBuf, Arc<LayerAlpha>>,
+) -> HashMap<(PathBuf, CutSettings), (LayerMesh, Vec<String>)> {
+    // the budgets of each (image, settings but the budget), in first-seen order
+    let mut curves: Vec<((&PathBuf, CutSettings), Vec<usize>)> = Vec::new();
+    for (path, s) in jobs {
+        let base = CutSettings { budget: 0, ..*s };
+        match curves.iter_mut().find(|(k, _)| *k == (path, base)) {
+            Some((_, budgets)) if budgets.contains(&s.budget) => {}
+            Some((_, budgets)) => budgets.push(s.budget),
+            None => curves.push(((path, base), vec![s.budget])),
+        }
+    }
+    curves
+        .par_iter()
+        .flat_map_iter(|((path, base), budgets)| {
+            let alpha = &maps[*path];
+            let outs = cut_budgets(alpha.sampled(base), &source_name(path), base, budgets);
+            budgets.iter().zip(outs).map(move |(&budget, out)| {
+                (
+                    ((*path).clone(), CutSettings { budget, ..*base }),
+                    (out.mesh, out.notes),
+                )
+            })
+        })
+        .collect()
 }
 
 fn too_small(scene: &Scene, total: usize, need: usize) -> FileError {
@@ -292,33 +335,42 @@ pub fn allocate_scene(
     budgets.dedup();
     // every candidate cut, each distinct one once
     let setting = |i: usize, budget: usize| match layers[i].spec.mesh {
-        MeshSource::Cut(s) => (
-            layers[i].spec.image.clone(),
-            crate::settings::CutSettings { budget, ..s },
-        ),
+        MeshSource::Cut(s) => (layers[i].spec.image.clone(), CutSettings { budget, ..s }),
         MeshSource::File(_) | MeshSource::Region(_) => {
             unreachable!("free layers are cut on the fly (regions by cut_regions_at)")
         }
     };
-    let jobs: Vec<(PathBuf, crate::settings::CutSettings)> = free
+    // a layer's cut at its own settings was made when the scene was read:
+    // it is not cut again
+    let own: HashMap<(PathBuf, CutSettings), &LayerMesh> = free
+        .iter()
+        .filter_map(|&i| match layers[i].spec.mesh {
+            MeshSource::Cut(s) => Some(((layers[i].spec.image.clone(), s), &layers[i].mesh)),
+            MeshSource::File(_) | MeshSource::Region(_) => None,
+        })
+        .collect();
+    let jobs: Vec<(PathBuf, CutSettings)> = free
         .iter()
         .filter(|&&i| !layers[i].is_region())
         .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
         .map(|(i, b)| setting(i, b))
+        .filter(|job| !own.contains_key(job))
         .collect();
     let maps = layers
         .iter()
         .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
         .collect();
-    let cuts = cut_all(&jobs, &maps);
+    let cuts = cut_curves(&jobs, &maps);
     // regions of a sprite sheet: cut on the whole sheet, stretched as drawn
     let region_cuts = cut_regions_at(layers, &free, &budgets, even)?;
     // a region has no cut below what its pieces need
     let cut_at = |i: usize, b: usize| !layers[i].is_region() || region_cuts.contains_key(&(i, b));
     let candidate = |i: usize, b: usize| {
-        region_cuts
-            .get(&(i, b))
-            .unwrap_or_else(|| &cuts[&setting(i, b)].0)
+        if let Some(m) = region_cuts.get(&(i, b)) {
+            return m;
+        }
+        let key = setting(i, b);
+        own.get(&key).copied().unwrap_or_else(|| &cuts[&key].0)
     };
     let assign = |choice: &[Option<usize>]| -> Vec<&LayerMesh> {
         (0..layers.len())
@@ -344,6 +396,8 @@ pub fn allocate_scene(
         .collect();
     let even_score = score(&even_choice);
     let mut reference = even_choice.clone();
+    let mut scored: Vec<(Vec<Option<usize>>, Scored)> =
+        vec![(even_choice.clone(), even_score.clone())];
     let mut rounds = Vec::new();
     // (exact score, budgets, curves) of the best round so far
     let mut best: Option<Round> = None;
@@ -384,7 +438,13 @@ pub fn allocate_scene(
         for (k, &i) in free.iter().enumerate() {
             choice[i] = Some(curves[k][pick[k]].budget);
         }
-        let s = score(&choice);
+        // a choice already scored (the even spread, or the last round's
+        // when this round repeats it) is not rendered again
+        let s = match scored.iter().find(|(c, _)| *c == choice) {
+            Some((_, s)) => s.clone(),
+            None => score(&choice),
+        };
+        scored.push((choice.clone(), s.clone()));
         rounds.push(s.clone());
         if best.as_ref().is_none_or(|b| s.fragments < b.0.fragments) {
             best = Some((s, choice.clone(), curves));
