@@ -15,7 +15,8 @@
 //!   (the eight directions cover this already for axis and diagonal edges);
 //! * where nothing of these gains, the edge from `v` to its successor `w`
 //!   moving as a whole: shifted (both ends by the same `d`) or turned (the
-//!   ends by `d` and `-d`), `d` along the eight directions, 1, 2 or 4 units
+//!   ends by `d` and `-d`), `d` along the eight directions, 1, 2 or 4 units,
+//!   or both ends sliding 1 or 2 steps along their other edges' lines
 //!   (a tangent edge of a covering polygon turns about its touching point
 //!   this way, which single moves cannot do when each half alone loses);
 //!   made as two single moves in a row, each tested against the state it
@@ -56,24 +57,29 @@
 //! joint move would still gain `14` and keep the position count; the
 //! single move would need a spare position.
 //!
-//! Bounds and pruning: each pass weighs at most `16 * budget` vertices
+//! Bounds and pruning: each pass weighs at most `32 * budget` vertices
 //! (a vertex is queued again only when it or a neighbour moved), each
 //! against at most 68 target points (40 steps, 8 knight steps, 20 slides;
 //! twice as many at a shared position, with its partner's slides), and an edge
-//! move at 48 offset pairs of which only the six largest gains are tested
+//! move at 64 offset pairs of which only the twelve largest gains are tested
 //! for containment; a target is tested for containment only when its area
 //! gain beats the best so far. What this gives up: moves farther than 16
 //! units or off these lines (reached, if at all, by several moves in a
-//! row); edge moves farther than 4 units or other than a shift or a turn,
-//! and of edges with a shared end; moves of three or more neighbouring
-//! vertices at once; joint moves of more than the two vertices at one
-//! shared position. The search is a hill climb: it ends in a local
-//! optimum of these moves.
+//! row); edge moves farther than 4 units or other than a shift, a turn or a
+//! slide of both ends along their lines, and of edges with a shared end;
+//! moves of three or more neighbouring vertices at once; joint moves of
+//! more than the two vertices at one shared position. The search is a
+//! hill climb: it ends in a local optimum of these moves.
 
 use super::*;
 
+/// Vertex weighings of the local improvement, per vertex of budget.
+const IMPROVE_WEIGHINGS: usize = 32;
+
 /// Step lengths of the direction and slide moves, in half texels.
 const STEPS: [i64; 5] = [1, 2, 4, 8, 16];
+/// Edge moves tested for containment, largest gain first.
+const EDGE_TRIES: usize = 12;
 /// The eight lattice directions.
 const DIRECTIONS: [[i64; 2]; 8] = [
     [1, 0],
@@ -302,9 +308,28 @@ impl Fitter<'_> {
                 }
             }
         }
+        // both ends sliding along their other edges (an edge turning about
+        // a point between its ends while its neighbours keep their lines)
+        let dir = |from: Point, to: Point| {
+            let (dx, dy) = (to[0] - from[0], to[1] - from[1]);
+            let g = gcd(dx, dy).max(1);
+            [dx / g, dy / g]
+        };
+        let (dv, dw) = (dir(pu, pv), dir(px, pw));
+        for a in [-2, -1, 1, 2] {
+            for b in [-2, -1, 1, 2] {
+                let qv = [pv[0] + a * dv[0], pv[1] + a * dv[1]];
+                let qw = [pw[0] + b * dw[0], pw[1] + b * dw[1]];
+                let delta = chain(pu, qv, qw, px) - old;
+                let gain = -sign * delta;
+                if gain > 0 && (area2 + delta).signum() == area2.signum() {
+                    tried.push((gain, qv, qw));
+                }
+            }
+        }
         // largest gain first; the first allowed one is made
         tried.sort_by_key(|t| std::cmp::Reverse(t.0));
-        for (_, qv, qw) in tried.into_iter().take(6) {
+        for (_, qv, qw) in tried.into_iter().take(EDGE_TRIES) {
             if self.move_gain(v, qv).is_none() || !self.move_allowed(v, qv) {
                 continue;
             }
@@ -316,6 +341,16 @@ impl Fitter<'_> {
             self.apply_move(v, pv);
         }
         None
+    }
+
+    /// After [`Fitter::spend_rest`]: the local moves of this module
+    /// (at most [`IMPROVE_WEIGHINGS`] weighings per vertex of budget), and
+    /// when any vertex moved, the fitter's insertions, exchanges and moves
+    /// once more. Every step only gains.
+    pub(super) fn improve_and_spend(&mut self, budget: usize) {
+        if self.improve_locally(IMPROVE_WEIGHINGS * budget) {
+            self.refine(budget, 4 * budget);
+        }
     }
 
     /// Local moves while they gain (see the module docs), neighbours
