@@ -436,6 +436,17 @@ pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option
     if outer.is_empty() || outer.len() > max_islands {
         return None;
     }
+    // a polygon with its corners on the outline that holds the island
+    // keeps every corner of the island's convex hull: where the hulls
+    // together have more corners than `kmax`, no count is reachable, and
+    // the chord tests are not run
+    let corners: usize = outer
+        .iter()
+        .map(|r| super::island_edits::convex_hull(r.points.clone()).len())
+        .sum();
+    if corners > kmax {
+        return None;
+    }
     let outside = CellRows::outside(&cover.runs);
     Some(
         outer
