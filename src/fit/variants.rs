@@ -123,7 +123,7 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     // the wider local moves (`improve`), on the chosen fit only (on every
     // variant they cost about 40% more time for a few tenths of a percent
     // on a few layers); they only gain, so no variant's result is lost
-    best.improve_and_spend(budget);
+    best.improve_chosen(budget);
     debug_assert!(best.vertices() <= budget);
     best.result()
 }
