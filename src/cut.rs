@@ -361,7 +361,7 @@ fn finish(
     if s.vertices + 2 < settings.budget && (s.opaque_capture() < 0.99 || s.excess_share() > 0.01) {
         notes.push(format!(
             "stopped at {} of {} vertices: no further vertex the fitter tried gains area \
-             (a hole given up whole is not rebuilt, nor an island whose largest rectangle does not fit)",
+             (an island or a hole given up whole comes back only as a rectangle, where one fits)",
             s.vertices, settings.budget
         ));
     }

@@ -190,33 +190,54 @@ fn disc_meshes_approach_the_regular_polygons() {
 }
 
 /// At the budgets artists use (8 to 32), the fit comes within 1% of the
-/// classical bounds: opaque area at least 99% of the inscribed regular
-/// n-gon of the safe radius, covered area at most 101% of the
-/// circumscribed regular m-gon of the must-cover radius (classical result,
-/// as above; n and m are the cut's own outline vertex counts).
-#[test]
-#[ignore = "not met yet: at budgets 12 and 16 the covering octagon is 1.3% over the circumscribed one (single-vertex moves cannot turn a tangent edge); run with --ignored"]
-fn disc_meshes_at_small_budgets_are_within_one_percent() {
+/// classical bounds (classical result, as above; n and m are the cut's own
+/// outline vertex counts): the ratios of opaque area to the inscribed
+/// regular n-gon of the safe radius and of covered area to the
+/// circumscribed regular m-gon of the must-cover radius, per budget.
+fn small_budget_ratios() -> Vec<(usize, usize, f64, usize, f64)> {
     let map = disc();
-    let mut lines = Vec::new();
-    let mut failures = Vec::new();
-    for budget in [8, 12, 16, 24, 32] {
-        let mesh = cut(&map, budget);
-        let s = &mesh.stats;
-        let (n, m) = (s.opaque_outline_vertices, s.cover_outline_vertices);
-        let best_opaque = inscribed_regular(n.max(3), R_SAFE);
-        let best_cover = circumscribed_regular(m.max(3), R_COVER);
-        let (ro, rc) = (s.opaque_area / best_opaque, s.covered_area / best_cover);
-        lines.push(format!(
-            "budget {budget}: {} vertices, n = {n} ({ro:.4} of inscribed), m = {m} ({rc:.4} of circumscribed)",
-            s.vertices
-        ));
-        if n < 3 || ro < 0.99 || rc > 1.01 {
-            failures.push(lines.last().unwrap().clone());
-        }
+    [8, 12, 16, 24, 32]
+        .into_iter()
+        .map(|budget| {
+            let mesh = cut(&map, budget);
+            let s = &mesh.stats;
+            let (n, m) = (s.opaque_outline_vertices, s.cover_outline_vertices);
+            let best_opaque = inscribed_regular(n.max(3), R_SAFE);
+            let best_cover = circumscribed_regular(m.max(3), R_COVER);
+            eprintln!(
+                "budget {budget}: {} vertices, n = {n} ({:.4} of inscribed), m = {m} ({:.4} of circumscribed)",
+                s.vertices,
+                s.opaque_area / best_opaque,
+                s.covered_area / best_cover
+            );
+            (budget, n, s.opaque_area / best_opaque, m, s.covered_area / best_cover)
+        })
+        .collect()
+}
+
+/// The opaque half: at 8 to 32 vertices the opaque area is at least 99% of
+/// the inscribed regular n-gon of the safe radius.
+#[test]
+fn opaque_disc_meshes_at_small_budgets_are_within_one_percent() {
+    for (budget, n, ro, _, _) in small_budget_ratios() {
+        assert!(
+            n >= 3 && ro >= 0.99,
+            "budget {budget}: n = {n}, {ro:.4} of the inscribed regular n-gon"
+        );
     }
-    eprintln!("{}", lines.join("\n"));
-    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// The covering half: at 8 to 32 vertices the covered area is at most 101%
+/// of the circumscribed regular m-gon of the must-cover radius.
+#[test]
+#[ignore = "not met yet: at budgets 12 and 16 the covering octagon is 1.34% over the circumscribed one, after the local improvement's edge shifts, turns and slides (measured 2026-12-03); run with --ignored"]
+fn covering_disc_meshes_at_small_budgets_are_within_one_percent() {
+    for (budget, _, _, m, rc) in small_budget_ratios() {
+        assert!(
+            m >= 3 && rc <= 1.01,
+            "budget {budget}: m = {m}, {rc:.4} of the circumscribed regular m-gon"
+        );
+    }
 }
 
 /// A hard-edged disc drawn with `nearest`: its safe-opaque and must-cover

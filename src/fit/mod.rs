@@ -28,6 +28,7 @@
 mod geom;
 mod grid;
 mod holes;
+mod improve;
 mod island_edits;
 mod queue;
 mod rects;
@@ -471,7 +472,9 @@ impl<'a> Fitter<'a> {
         // budget the insertions could not spend: opaque islands the greedy
         // edits dropped whole come back as their largest rectangles while
         // they fit, and the rest is spent again
-        if self.rebuild_dropped_islands(budget) {
+        let islands = self.rebuild_dropped_islands(budget);
+        // and covering holes filled whole come back as rectangles
+        if self.rebuild_filled_holes(budget) || islands {
             self.refine(budget, 4 * budget);
         }
         debug_assert!(self.distinct <= budget);

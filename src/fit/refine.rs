@@ -16,8 +16,11 @@
 //! When the insertions leave budget unused, opaque islands the greedy edits
 //! dropped whole come back as their largest rectangles (four vertices each,
 //! inside the safe region by construction) where they fit and touch no
-//! other opaque ring, and the rest is spent again. Holes given up whole are
-//! not rebuilt.
+//! other opaque ring, and covering holes filled whole come back as
+//! rectangles clear of the must-cover region (tested exactly) where they fit
+//! inside their island and touch no other covering ring; then the rest is
+//! spent again. A wider search of vertex moves, run once on the chosen
+//! fit, lives in `improve`.
 
 use super::geom::segments_touch;
 use super::island_edits::rect_points;
@@ -311,7 +314,7 @@ impl Fitter<'_> {
     }
 
     /// Moves vertex `v` to `q` (see [`Self::eval_move`]).
-    fn apply_move(&mut self, v: u32, q: Point) {
+    pub(super) fn apply_move(&mut self, v: u32, q: Point) {
         let (u, w, r, pv) = {
             let vv = &self.verts[v as usize];
             (vv.prev, vv.next, vv.ring, vv.p)
@@ -408,6 +411,108 @@ impl Fitter<'_> {
         }
         self.heap.clear();
         any
+    }
+
+    /// Brings back covering holes the greedy edits filled whole, each as a
+    /// rectangle in the hole's last outline (its bounding box, shrunk by
+    /// one unit a side until both its triangles avoid the must-cover
+    /// region: the exact test of the greedy edits), largest first, while
+    /// its new positions fit in the budget, no covering vertex lies in it
+    /// and no covering edge touches it, and it lies inside its island's
+    /// outer ring and outside the island's other holes. Whether any came
+    /// back. (A hole cuts area off the covering outline: the objective
+    /// only gains.)
+    pub(super) fn rebuild_filled_holes(&mut self, budget: usize) -> bool {
+        let mut filled: Vec<(i64, u32, [i64; 4])> = Vec::new();
+        for r in 0..self.rings.len() as u32 {
+            let ring = &self.rings[r as usize];
+            if ring.alive || !ring.hole || ring.class != Class::Cover {
+                continue;
+            }
+            if !self.comps[ring.comp as usize].alive {
+                continue;
+            }
+            let mut ids = Vec::new();
+            self.ring_vertices_into(r, &mut ids);
+            let pts = ids.iter().map(|&v| self.verts[v as usize].p);
+            let mut b = [i64::MAX, i64::MAX, i64::MIN, i64::MIN];
+            for p in pts {
+                b = [
+                    b[0].min(p[0]),
+                    b[1].min(p[1]),
+                    b[2].max(p[0]),
+                    b[3].max(p[1]),
+                ];
+            }
+            while b[2] - b[0] >= 2 && b[3] - b[1] >= 2 {
+                let c = rect_points(b);
+                let free = [[c[0], c[1], c[2]], [c[0], c[2], c[3]]]
+                    .iter()
+                    .all(|t| self.triangle_allowed(Class::Cover, t, -1));
+                if free {
+                    filled.push(((b[2] - b[0]) * (b[3] - b[1]), r, b));
+                    break;
+                }
+                b = [b[0] + 1, b[1] + 1, b[2] - 1, b[3] - 1];
+            }
+        }
+        // largest first; the ring's index breaks ties
+        filled.sort_unstable_by_key(|&(a, r, _)| (Reverse(a), r));
+        let mut any = false;
+        for (_, r, b) in filled {
+            let c = self.rings[r as usize].comp;
+            let corners = rect_points(b);
+            let added = corners.iter().filter(|&&p| self.refs_at(p) == 0).count();
+            if self.distinct + added > budget || !self.hole_fits(c, b) {
+                continue;
+            }
+            // a hole runs counter-clockwise on screen (the region on its right)
+            let mut ring: Vec<Point> = corners.to_vec();
+            ring.reverse();
+            self.add_ring(Class::Cover, true, c, &ring);
+            self.comps[c as usize].version += 1;
+            any = true;
+        }
+        self.heap.clear();
+        any
+    }
+
+    /// Whether the closed rectangle `r` holds no covering vertex, meets no
+    /// covering edge, and lies inside island `c`'s outer ring and outside
+    /// its holes (with no edge met, one corner decides).
+    fn hole_fits(&self, c: u32, r: [i64; 4]) -> bool {
+        let (lo, hi) = ([r[0], r[1]], [r[2], r[3]]);
+        let grid = &self.grids[Class::Cover as usize];
+        let inside = |p: Point| p[0] >= r[0] && p[0] <= r[2] && p[1] >= r[1] && p[1] <= r[3];
+        let corners = rect_points(r);
+        let clear = grid.vertices_in(lo, hi, |v| {
+            !self.verts[v as usize].alive || !inside(self.verts[v as usize].p)
+        }) && grid.edges_in(lo, hi, |a, b| {
+            let (va, vb) = (&self.verts[a as usize], &self.verts[b as usize]);
+            if !va.alive || !vb.alive || va.next != b {
+                return true;
+            }
+            (0..4).all(|k| !segments_touch(corners[k], corners[(k + 1) % 4], va.p, vb.p))
+        });
+        if !clear {
+            return false;
+        }
+        let mut ids = Vec::new();
+        let mut in_outer = false;
+        for q in self.comp_rings(c).collect::<Vec<_>>() {
+            ids.clear();
+            self.ring_vertices_into(q, &mut ids);
+            let poly: Vec<Point> = ids.iter().map(|&v| self.verts[v as usize].p).collect();
+            let within = geom::in_closed_polygon(corners[0], &poly);
+            if self.rings[q as usize].hole {
+                if within {
+                    return false;
+                }
+            } else {
+                in_outer = within;
+            }
+        }
+        in_outer
     }
 
     /// Whether the closed rectangle `r` meets no alive opaque ring.

@@ -7,14 +7,17 @@
 //! cited from memory). Twice a polygon's area is the sum of its edges'
 //! cross products (shoelace), so it is additive over the chords of a path.
 //!
-//! The cut uses the opaque class only ([`opaque_curves`], split across the
-//! islands by an exact knapsack in [`split_opaque`]; the covering rings
-//! come from the greedy edits, see `variants`): with candidates on the
-//! traced outline, a covering polygon must keep every corner of the
-//! outline's convex hull, which a rugged outline has more of than a small
-//! budget. The covering chord test ([`CellRows::outside`]) and the
-//! minimising program are kept and tested for a candidate set off the
-//! outline, which is not built yet.
+//! The cut uses both classes: the opaque curves ([`opaque_curves`]) split
+//! across the islands by an exact knapsack ([`split_opaque`]), paired with
+//! covering rings from the greedy edits and, as a separate variant, with
+//! the covering curves ([`cover_curves`], one ring per island, holes
+//! filled) split by their own knapsack ([`split_cover`]) for every count
+//! the opaque rings leave room for: the pairing with the largest objective
+//! is refined. With candidates on the traced outline, a covering polygon
+//! must keep every corner of the outline's convex hull, so on a rugged
+//! outline with more hull corners than the budget the covering curve has
+//! no polygon at small k and the greedy covering rings are used; candidates
+//! off the outline (where extended hull edges meet) are not built yet.
 //!
 //! Candidates and what their pruning gives up: the candidates of a ring are
 //! its own traced corners without collinear ones, thinned to at most
@@ -72,8 +75,6 @@ impl CellRows {
             height: h,
         }
     }
-    /// (The cut does not use it yet: see the module docs.)
-    #[allow(dead_code)]
     /// The complement of the region, with a frame of free cells around the
     /// image (the must-cover region: chords must not enter its interior;
     /// staying inside the image is tested on the end points).
@@ -425,6 +426,90 @@ pub fn split_opaque(items: &[Item], budget: usize) -> Option<(i64, Vec<Ring>)> {
     }
     rings.reverse();
     apart(&rings).then_some((total, rings))
+}
+
+/// The covering curves of the must-cover region's outer rings up to `kmax`
+/// vertices each (holes are left out: a covering island without its holes
+/// only covers more), or `None` when there are more than `max_islands`.
+pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option<Vec<Item>> {
+    let outer: Vec<&Ring> = cover.rings.iter().filter(|r| !r.hole).collect();
+    if outer.is_empty() || outer.len() > max_islands {
+        return None;
+    }
+    // a polygon with its corners on the outline that holds the island
+    // keeps every corner of the island's convex hull: where the hulls
+    // together have more corners than `kmax`, no count is reachable, and
+    // the chord tests are not run
+    let corners: usize = outer
+        .iter()
+        .map(|r| super::island_edits::convex_hull(r.points.clone()).len())
+        .sum();
+    if corners > kmax {
+        return None;
+    }
+    let outside = CellRows::outside(&cover.runs);
+    Some(
+        outer
+            .iter()
+            .map(|r| Item {
+                curve: ring_curve(&r.points, &outside, false, kmax),
+                component: r.component,
+            })
+            .collect(),
+    )
+}
+
+/// For every total vertex count `b` up to `budget` (counted per ring), the
+/// covering rings of smallest total area with one ring per island (an
+/// exact knapsack over the curves; no island may be left out), with twice
+/// their area; only totals whose rings are pairwise apart (checked).
+pub fn split_cover(items: &[Item], budget: usize) -> Vec<(usize, i64, Vec<Ring>)> {
+    const NONE: i64 = i64::MAX;
+    let mut value = vec![NONE; budget + 1];
+    value[0] = 0;
+    let mut choice: Vec<Vec<usize>> = Vec::new();
+    for it in items {
+        let mut next = vec![NONE; budget + 1];
+        let mut pick = vec![0usize; budget + 1];
+        for b in 0..=budget {
+            if value[b] == NONE {
+                continue;
+            }
+            for (k, c) in it.curve.iter().enumerate() {
+                if let Some((a2, _)) = c {
+                    if b + k <= budget && value[b] + a2 < next[b + k] {
+                        next[b + k] = value[b] + a2;
+                        pick[b + k] = k;
+                    }
+                }
+            }
+        }
+        value = next;
+        choice.push(pick);
+    }
+    let mut out = Vec::new();
+    for total in 0..=budget {
+        if value[total] == NONE {
+            continue;
+        }
+        let mut b = total;
+        let mut rings = Vec::new();
+        for (i, it) in items.iter().enumerate().rev() {
+            let k = choice[i][b];
+            b -= k;
+            let (_, pts) = it.curve[k].clone().expect("chosen k has a polygon");
+            rings.push(Ring {
+                points: pts,
+                hole: false,
+                component: it.component,
+            });
+        }
+        rings.reverse();
+        if apart(&rings) {
+            out.push((total, value[total], rings));
+        }
+    }
+    out
 }
 
 /// Whether the rings are pairwise apart: no edges touch and none lies
