@@ -210,6 +210,11 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         }
         let c = run(&["check", file.to_str().unwrap(), sheet.to_str().unwrap()]);
         status(&c, 0, &format!("check the panel exported at {size:?}"));
+        let said = String::from_utf8_lossy(&c.stdout);
+        assert!(
+            said.contains(&format!("drawn stretched to {} x {}", size[0], size[1])),
+            "check says at what size the panel was drawn: {said}"
+        );
         let mut bad: serde_json::Value =
             serde_json::from_slice(&std::fs::read(&file).unwrap()).unwrap();
         let x = bad["positions"][0].as_f64().unwrap();

@@ -323,6 +323,7 @@ pub(crate) fn check_region(
         let v = serde_json::json!({
             "holds": report.holds(),
             "region": {"sheet": region.sheet, "rect": region.rect},
+            "stretched_to": report.stretched_to,
             "opaque_area": c.opaque_area,
             "safe_area": c.safe_area,
             "covered_area": c.covered_area,
@@ -343,7 +344,12 @@ pub(crate) fn check_region(
     let [x, y, w, h] = region.rect;
     let what = match (&region.frames, &region.slices) {
         (Some(f), _) => format!(" and {} frames", f.len()),
-        (_, Some(_)) => " as a nine-slice panel".to_string(),
+        (_, Some(_)) => match report.stretched_to {
+            Some([sw, sh]) => format!(
+                " as a nine-slice panel drawn stretched to {sw} x {sh} (brought back to its own size through its slice anchors)"
+            ),
+            None => " as a nine-slice panel".to_string(),
+        },
         _ => String::new(),
     };
     println!(
