@@ -275,10 +275,16 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
                             continue;
                         }
                         let (row, trow) = (y * vw, ty as usize * w as usize);
+                        let (vis_row, behind_row) =
+                            (&vis[i][row..row + vw], &behind[i][row..row + vw]);
+                        let (vs_row, hs_row) = (
+                            &mut vs[trow..trow + w as usize],
+                            &mut hs[trow..trow + w as usize],
+                        );
                         for &(x, tx) in &cols {
-                            if vis[i][row + x] {
-                                vs[trow + tx] += 1;
-                                hs[trow + tx] += behind[i][row + x] as u64;
+                            if vis_row[x] {
+                                vs_row[tx] += 1;
+                                hs_row[tx] += behind_row[x] as u64;
                             }
                         }
                     }
@@ -421,9 +427,14 @@ pub fn allocate_scene(
         .iter()
         .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
         .collect();
-    let cuts = cut_curves(&jobs, &maps);
-    // regions of a sprite sheet: cut on the whole sheet, stretched as drawn
-    let region_cuts = cut_regions_at(layers, &free, &budgets, even)?;
+    // regions of a sprite sheet: cut on the whole sheet, stretched as drawn;
+    // alongside the other layers' curves, so that the regions' many small
+    // cuts fill the time a thread would wait for the last large one
+    let (cuts, region_cuts) = rayon::join(
+        || cut_curves(&jobs, &maps),
+        || cut_regions_at(layers, &free, &budgets, even),
+    );
+    let region_cuts = region_cuts?;
     // a region has no cut below what its pieces need
     let cut_at = |i: usize, b: usize| !layers[i].is_region() || region_cuts.contains_key(&(i, b));
     let candidate = |i: usize, b: usize| {
