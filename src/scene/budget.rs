@@ -466,7 +466,14 @@ pub fn allocate_scene(
     let even_choice: Vec<Option<usize>> = (0..layers.len())
         .map(|i| layers[i].alpha.is_some().then_some(even))
         .collect();
-    let even_score = score(&even_choice);
+    // the even spread's exact score and the first round's weights (drawn
+    // against the even spread) side by side: the weights' passes in
+    // depth order run on one thread
+    let (even_score, even_weights) = rayon::join(
+        || score(&even_choice),
+        || weights(scene, layers, &assign(&even_choice)),
+    );
+    let mut even_weights = Some(even_weights);
     let mut reference = even_choice.clone();
     let mut scored: Vec<(Vec<Option<usize>>, Scored)> =
         vec![(even_choice.clone(), even_score.clone())];
@@ -474,7 +481,10 @@ pub fn allocate_scene(
     // (exact score, budgets, curves) of the best round so far
     let mut best: Option<Round> = None;
     for _ in 0..ROUNDS {
-        let w = weights(scene, layers, &assign(&reference));
+        let w = match even_weights.take() {
+            Some(w) => w, // the first round's reference is the even spread
+            None => weights(scene, layers, &assign(&reference)),
+        };
         let samples = cams.len() as f64;
         let curves: Vec<Vec<CurveEntry>> = free
             .par_iter()
