@@ -24,37 +24,74 @@ use crate::raster::Triangle;
 /// # Panics
 /// If the draw fails [`Draw::validate`], as `render` does.
 pub fn coverage_into(viewport: [u32; 2], draw: &Draw, counts: &mut Vec<u32>) {
+    counts.clear();
+    coverage_rows_into(viewport, draw, counts, 0..0);
+}
+
+/// As [`coverage_into`], for a caller that keeps `counts` from one draw to
+/// the next and reads only the rows a draw touched: `counts` is either
+/// empty or the viewport's size and zero outside the rows `dirty` (what
+/// the last call returned), and only those rows are cleared before
+/// drawing. Returns the rows the draw may have written: every other row
+/// of `counts` is zero afterwards, and the whole buffer is exactly
+/// `render(viewport, &[draw]).counts`.
+///
+/// # Panics
+/// If the draw fails [`Draw::validate`], as `render` does.
+pub fn coverage_rows_into(
+    viewport: [u32; 2],
+    draw: &Draw,
+    counts: &mut Vec<u32>,
+    dirty: std::ops::Range<usize>,
+) -> std::ops::Range<usize> {
     if let Err(e) = draw.validate() {
         panic!("coverage_into: draw 0: {e}");
     }
     let w = viewport[0] as usize;
-    counts.clear();
-    counts.resize(w * viewport[1] as usize, 0);
+    let h = viewport[1] as usize;
+    if counts.len() != w * h {
+        counts.clear();
+        counts.resize(w * h, 0);
+    } else {
+        let rows = dirty.start.min(h)..dirty.end.min(h);
+        if rows.start < rows.end {
+            counts[rows.start * w..rows.end * w].fill(0);
+        }
+    }
     // A cleared depth buffer holds 1.0 (far). With the depth test (LESS),
     // a draw at depth 1.0 shades nothing; with depth write too, a pixel
     // passes once (the stored depth is then the draw's own, which fails
     // LESS); otherwise every triangle covering a pixel shades it.
     if draw.depth_test && !(draw.depth < 1.0) {
-        return;
+        return 0..0;
     }
     let cap = if draw.depth_test && draw.depth_write {
         1
     } else {
         u32::MAX
     };
+    let (mut lo, mut hi) = (usize::MAX, 0usize);
     for t in draw.indices.chunks_exact(3) {
         let (a, b, c) = (draw.vertex(t[0]), draw.vertex(t[1]), draw.vertex(t[2]));
         let Some(tri) = Triangle::new(a, b, c, viewport) else {
             continue;
         };
         for (y, span) in tri.row_spans() {
-            let row = y as usize * w;
+            let y = y as usize;
+            lo = lo.min(y);
+            hi = hi.max(y + 1);
+            let row = y * w;
             for n in &mut counts[row + span.start as usize..row + span.end as usize] {
                 if *n < cap {
                     *n += 1;
                 }
             }
         }
+    }
+    if lo < hi {
+        lo..hi
+    } else {
+        0..0
     }
 }
 
@@ -219,6 +256,30 @@ mod tests {
         };
         coverage_into([8, 8], &d, &mut counts);
         assert_eq!(counts, render([8, 8], &[d]).counts);
+    }
+
+    /// One buffer kept across many draws on one viewport, only the rows
+    /// the last draw touched cleared: every frame equals `render`'s, and
+    /// the rows outside the returned range are zero.
+    #[test]
+    fn a_buffer_kept_across_draws_clears_only_the_touched_rows() {
+        let mut rng = Lcg(5);
+        let (w, h) = (33, 29);
+        let mut counts = Vec::new();
+        let mut rows = 0..0;
+        let mut narrow = 0;
+        for _ in 0..2000 {
+            let d = random_draw(&mut rng, w, h);
+            rows = coverage_rows_into([w, h], &d, &mut counts, rows);
+            assert_eq!(counts, render([w, h], std::slice::from_ref(&d)).counts);
+            let outside = counts[..rows.start * w as usize]
+                .iter()
+                .chain(&counts[rows.end * w as usize..]);
+            assert!(outside.into_iter().all(|&c| c == 0), "{d:?}");
+            narrow += (rows.len() < h as usize) as usize;
+        }
+        // most draws leave rows untouched, or the clearing would go untested
+        assert!(narrow > 500, "{narrow}");
     }
 
     #[test]

@@ -45,7 +45,7 @@ pub mod spans;
 #[cfg(test)]
 mod measure_props;
 
-pub use coverage::{coverage_into, RowSums};
+pub use coverage::{coverage_into, coverage_rows_into, RowSums};
 pub use spans::{measure, FrameStats, SpanBuffer};
 
 use crate::raster::{QuadTracker, Triangle};

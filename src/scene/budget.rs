@@ -37,13 +37,14 @@ use super::prepare::{cut_regions_at, source_name, Layer, LayerAlpha};
 use super::score::mean_fragments;
 use crate::cut::cut_budgets;
 use crate::error::{FileError, Setting};
-use crate::frame::{coverage_into, Draw, RowSums};
+use crate::frame::{coverage_rows_into, Draw, RowSums};
 use crate::mesh::LayerMesh;
 use crate::settings::CutSettings;
 use crate::sweep::BUDGETS;
 use rayon::prelude::*;
 use serde::Serialize;
 use std::collections::HashMap;
+use std::ops::Range;
 use std::path::PathBuf;
 use std::sync::Arc;
 
@@ -134,15 +135,48 @@ struct Weights {
 }
 
 /// A layer's draw alone (counts per pixel) into `counts`, or a clear
-/// frame when it has none.
-fn draw_counts_into(viewport: [u32; 2], d: Option<Draw>, counts: &mut Vec<u32>) {
+/// frame when it has none; `counts` is zero outside the rows `dirty`
+/// (or empty), and the rows written are returned
+/// ([`coverage_rows_into`]).
+fn draw_counts_into(
+    viewport: [u32; 2],
+    d: Option<Draw>,
+    counts: &mut Vec<u32>,
+    dirty: Range<usize>,
+) -> Range<usize> {
     match d {
-        Some(d) => coverage_into(viewport, &d, counts),
+        Some(d) => coverage_rows_into(viewport, &d, counts, dirty),
         None => {
-            counts.clear();
-            counts.resize(viewport[0] as usize * viewport[1] as usize, 0);
+            let (w, h) = (viewport[0] as usize, viewport[1] as usize);
+            if counts.len() != w * h {
+                counts.clear();
+                counts.resize(w * h, 0);
+            } else {
+                counts[dirty.start.min(h) * w..dirty.end.min(h) * w].fill(0);
+            }
+            0..0
         }
     }
+}
+
+/// The smallest range of rows holding both `a` and `b`.
+fn hull(a: &Range<usize>, b: &Range<usize>) -> Range<usize> {
+    match (a.is_empty(), b.is_empty()) {
+        (true, _) => b.clone(),
+        (_, true) => a.clone(),
+        _ => a.start.min(b.start)..a.end.max(b.end),
+    }
+}
+
+/// The pixel rectangle `[x0, x1) x [y0, y1)` a copy of a layer at origin
+/// `o` (drawn `s` times its texel size `[w, h]`) spans on a viewport of
+/// `vw` x `vh` pixels.
+fn copy_pixels(o: [f64; 2], s: f64, [w, h]: [u32; 2], vw: usize, vh: usize) -> [usize; 4] {
+    let x0 = o[0].max(0.0).floor() as usize;
+    let x1 = (o[0] + s * w as f64).ceil().clamp(0.0, vw as f64) as usize;
+    let y0 = o[1].max(0.0).floor() as usize;
+    let y1 = (o[1] + s * h as f64).ceil().clamp(0.0, vh as f64) as usize;
+    [x0, x1, y0, y1]
 }
 
 /// The weights of every layer against the reference `meshes`.
@@ -156,35 +190,65 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
         .collect();
     let mut hidden_sum = vis_sum.clone();
     // per-pixel buffers, made once and reused at every camera sample
-    // (fresh ones per sample cost more in page faults than in drawing)
+    // (fresh ones per sample cost more in page faults than in drawing);
+    // each draw's buffers are cleared and walked only over the rows it
+    // touched, and each layer's vis and behind only over the rows its
+    // copies span (the only ones read)
     let mut maps: Vec<(Vec<u32>, Vec<u32>)> = vec![(Vec::new(), Vec::new()); n];
+    let mut touched: Vec<(Range<usize>, Range<usize>)> = vec![(0..0, 0..0); n];
     let mut vis: Vec<Vec<bool>> = vec![vec![false; vw * vh]; n];
     let mut behind: Vec<Vec<u32>> = vec![vec![0; vw * vh]; n];
     let mut nearer = vec![false; vw * vh];
     let mut acc = vec![0u32; vw * vh];
     for cam in scene.camera_positions() {
         // each layer's opaque and covering pixels, alone
-        maps.par_iter_mut().enumerate().for_each(|(i, (o, c))| {
-            let one =
-                |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
-            draw_counts_into(vp, one(Part::Opaque), o);
-            draw_counts_into(vp, one(Part::Cover), c);
-        });
+        maps.par_iter_mut()
+            .zip(touched.par_iter_mut())
+            .enumerate()
+            .for_each(|(i, ((o, c), (ro, rc)))| {
+                let one =
+                    |part| layer_draw(&layers[i].spec, meshes[i], part, layer_depth(i, n), vp, cam);
+                *ro = draw_counts_into(vp, one(Part::Opaque), o, ro.clone());
+                *rc = draw_counts_into(vp, one(Part::Cover), c, rc.clone());
+            });
+        // each layer's copies, and the rows they span
+        let copies: Vec<Vec<[usize; 4]>> = layers
+            .iter()
+            .map(|l| {
+                copy_origins(&l.spec, l.mesh.size, vp, cam)
+                    .into_iter()
+                    .map(|o| copy_pixels(o, l.spec.scale, l.mesh.size, vw, vh))
+                    .collect()
+            })
+            .collect();
+        let spans: Vec<Range<usize>> = copies
+            .iter()
+            .map(|c| c.iter().fold(0..0, |r, p| hull(&r, &(p[2]..p[3]))))
+            .collect();
         // front to back: is the pixel free of nearer opaque meshes?
         nearer.fill(false);
         for i in (0..n).rev() {
-            for (v, &b) in vis[i].iter_mut().zip(&nearer) {
+            let rows = spans[i].start * vw..spans[i].end * vw;
+            for (v, &b) in vis[i][rows.clone()].iter_mut().zip(&nearer[rows]) {
                 *v = !b;
             }
-            for (b, &o) in nearer.iter_mut().zip(&maps[i].0) {
+            let rows = touched[i].0.start * vw..touched[i].0.end * vw;
+            for (b, &o) in nearer[rows.clone()].iter_mut().zip(&maps[i].0[rows]) {
                 *b |= o > 0;
             }
         }
         // back to front: fragments the layers behind would shade
         acc.fill(0);
         for i in 0..n {
-            behind[i].copy_from_slice(&acc);
-            for ((a, &o), &c) in acc.iter_mut().zip(&maps[i].0).zip(&maps[i].1) {
+            let rows = spans[i].start * vw..spans[i].end * vw;
+            behind[i][rows.clone()].copy_from_slice(&acc[rows]);
+            let both = hull(&touched[i].0, &touched[i].1);
+            let rows = both.start * vw..both.end * vw;
+            for ((a, &o), &c) in acc[rows.clone()]
+                .iter_mut()
+                .zip(&maps[i].0[rows.clone()])
+                .zip(&maps[i].1[rows])
+            {
                 *a = if o > 0 { c } else { *a + c };
             }
         }
@@ -195,12 +259,9 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
             .for_each(|(i, (vs, hs))| {
                 let spec = &layers[i].spec;
                 let [w, h] = layers[i].mesh.size;
-                for o in copy_origins(spec, [w, h], vp, cam) {
+                let o_all = copy_origins(spec, [w, h], vp, cam);
+                for (o, &[x0, x1, y0, y1]) in o_all.iter().zip(&copies[i]) {
                     let s = spec.scale;
-                    let x0 = o[0].max(0.0).floor() as usize;
-                    let x1 = (o[0] + s * w as f64).ceil().clamp(0.0, vw as f64) as usize;
-                    let y0 = o[1].max(0.0).floor() as usize;
-                    let y1 = (o[1] + s * h as f64).ceil().clamp(0.0, vh as f64) as usize;
                     // the texel column under each pixel centre of the copy's rows
                     let cols: Vec<(usize, usize)> = (x0..x1)
                         .filter_map(|x| {
@@ -214,10 +275,16 @@ fn weights(scene: &Scene, layers: &[Layer], meshes: &[&LayerMesh]) -> Weights {
                             continue;
                         }
                         let (row, trow) = (y * vw, ty as usize * w as usize);
+                        let (vis_row, behind_row) =
+                            (&vis[i][row..row + vw], &behind[i][row..row + vw]);
+                        let (vs_row, hs_row) = (
+                            &mut vs[trow..trow + w as usize],
+                            &mut hs[trow..trow + w as usize],
+                        );
                         for &(x, tx) in &cols {
-                            if vis[i][row + x] {
-                                vs[trow + tx] += 1;
-                                hs[trow + tx] += behind[i][row + x] as u64;
+                            if vis_row[x] {
+                                vs_row[tx] += 1;
+                                hs_row[tx] += behind_row[x] as u64;
                             }
                         }
                     }
@@ -360,9 +427,14 @@ pub fn allocate_scene(
         .iter()
         .filter_map(|l| l.alpha.clone().map(|a| (l.spec.image.clone(), a)))
         .collect();
-    let cuts = cut_curves(&jobs, &maps);
-    // regions of a sprite sheet: cut on the whole sheet, stretched as drawn
-    let region_cuts = cut_regions_at(layers, &free, &budgets, even)?;
+    // regions of a sprite sheet: cut on the whole sheet, stretched as drawn;
+    // alongside the other layers' curves, so that the regions' many small
+    // cuts fill the time a thread would wait for the last large one
+    let (cuts, region_cuts) = rayon::join(
+        || cut_curves(&jobs, &maps),
+        || cut_regions_at(layers, &free, &budgets, even),
+    );
+    let region_cuts = region_cuts?;
     // a region has no cut below what its pieces need
     let cut_at = |i: usize, b: usize| !layers[i].is_region() || region_cuts.contains_key(&(i, b));
     let candidate = |i: usize, b: usize| {
@@ -394,7 +466,14 @@ pub fn allocate_scene(
     let even_choice: Vec<Option<usize>> = (0..layers.len())
         .map(|i| layers[i].alpha.is_some().then_some(even))
         .collect();
-    let even_score = score(&even_choice);
+    // the even spread's exact score and the first round's weights (drawn
+    // against the even spread) side by side: the weights' passes in
+    // depth order run on one thread
+    let (even_score, even_weights) = rayon::join(
+        || score(&even_choice),
+        || weights(scene, layers, &assign(&even_choice)),
+    );
+    let mut even_weights = Some(even_weights);
     let mut reference = even_choice.clone();
     let mut scored: Vec<(Vec<Option<usize>>, Scored)> =
         vec![(even_choice.clone(), even_score.clone())];
@@ -402,7 +481,10 @@ pub fn allocate_scene(
     // (exact score, budgets, curves) of the best round so far
     let mut best: Option<Round> = None;
     for _ in 0..ROUNDS {
-        let w = weights(scene, layers, &assign(&reference));
+        let w = match even_weights.take() {
+            Some(w) => w, // the first round's reference is the even spread
+            None => weights(scene, layers, &assign(&reference)),
+        };
         let samples = cams.len() as f64;
         let curves: Vec<Vec<CurveEntry>> = free
             .par_iter()

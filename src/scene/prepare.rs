@@ -11,7 +11,7 @@
 //! `mip_levels` of the file, [`Texture::levels_for`]); a layer asking for
 //! levels the file does not hold is refused, naming the layer and the file.
 
-use super::file::{LayerSpec, MeshSource, Scene};
+use super::file::{LayerSpec, MeshSource, RegionLayer, Scene};
 use crate::alpha::{AlphaMap, Sampled};
 use crate::cut::cut_sampled;
 use crate::error::FileError;
@@ -76,29 +76,128 @@ impl Layer {
 /// region cannot be cut at (below what a nine-slice panel's pieces need)
 /// has no entry; the error is returned only when the region cannot be cut
 /// at `required` (the even share of the vertex total).
+///
+/// The cuts are exactly those of [`Layer::region_cut_at`], made with less
+/// work: the sheet is analysed once per image and settings (the analysis
+/// does not depend on the budget), and layers drawing the same region with
+/// the same settings (a panel drawn at several sizes) share one cut per
+/// budget, each layer stretching its copy to its own size.
 pub fn cut_regions_at(
     layers: &[Layer],
     free: &[usize],
     budgets: &[usize],
     required: usize,
 ) -> Result<HashMap<(usize, usize), LayerMesh>, FileError> {
-    let jobs: Vec<(usize, usize)> = free
+    use super::region::{cut_unstretched, find_region, stretch_region_mesh};
+    use crate::sheet::regions::SheetRegion;
+    use crate::sheet::SheetAnalysis;
+    // each region layer (with its sheet) and its region, found once
+    let located: Vec<(
+        usize,
+        &RegionLayer,
+        &LayerAlpha,
+        Result<SheetRegion, FileError>,
+    )> = free
         .iter()
-        .filter(|&&i| layers[i].is_region())
-        .flat_map(|&i| budgets.iter().map(move |&b| (i, b)))
+        .filter_map(|&i| match (&layers[i].spec.mesh, &layers[i].alpha) {
+            (MeshSource::Region(r), Some(sheet)) => Some((
+                i,
+                r,
+                &**sheet,
+                find_region(&layers[i].spec.image, sheet.level0(), r),
+            )),
+            _ => None,
+        })
         .collect();
-    let cuts: Vec<((usize, usize), Result<LayerMesh, FileError>)> = jobs
+    // the sheet's analysis per image and settings (budget aside)
+    let mut analysis_keys: Vec<(&Path, CutSettings, &LayerAlpha)> = Vec::new();
+    for &(i, r, sheet, _) in &located {
+        let key = (
+            layers[i].spec.image.as_path(),
+            CutSettings {
+                budget: 0,
+                ..r.settings
+            },
+        );
+        if !analysis_keys.iter().any(|k| (k.0, k.1) == key) {
+            analysis_keys.push((key.0, key.1, sheet));
+        }
+    }
+    let analyses: Vec<SheetAnalysis> = analysis_keys
         .par_iter()
-        .filter_map(|&(i, b)| layers[i].region_cut_at(b).map(|m| ((i, b), m)))
+        .map(|&(_, s, sheet)| SheetAnalysis::new(sheet.level0(), &s))
+        .collect();
+    // one cut per image, region and settings, before stretching
+    type CutKey<'a> = (&'a Path, &'a Path, &'a str, CutSettings);
+    let mut cut_keys: Vec<(CutKey, usize, &SheetRegion, usize)> = Vec::new();
+    for (k, (i, r, _, region)) in located.iter().enumerate() {
+        let Ok(region) = region else { continue };
+        let image = layers[*i].spec.image.as_path();
+        let a = analysis_keys
+            .iter()
+            .position(|x| {
+                x.0 == image
+                    && x.1
+                        == CutSettings {
+                            budget: 0,
+                            ..r.settings
+                        }
+            })
+            .expect("every located layer's analysis was made");
+        for &b in budgets {
+            let key = (
+                image,
+                r.regions.as_path(),
+                r.name.as_str(),
+                CutSettings {
+                    budget: b,
+                    ..r.settings
+                },
+            );
+            if !cut_keys.iter().any(|c| c.0 == key) {
+                cut_keys.push((key, k, region, a));
+            }
+        }
+    }
+    let cuts: Vec<Result<(LayerMesh, Vec<String>), FileError>> = cut_keys
+        .par_iter()
+        .map(|&((image, _, _, settings), k, region, a)| {
+            let (_, r, sheet, _) = &located[k];
+            let r = RegionLayer {
+                settings,
+                ..(*r).clone()
+            };
+            cut_unstretched(image, sheet.level0(), &analyses[a], region, &r)
+        })
         .collect();
     let mut out = HashMap::new();
-    for ((i, b), m) in cuts {
-        match m {
-            Ok(m) => {
-                out.insert((i, b), m);
+    for (i, r, _, region) in &located {
+        for &b in budgets {
+            let m = region.clone().and_then(|region| {
+                let image = layers[*i].spec.image.as_path();
+                let settings = CutSettings {
+                    budget: b,
+                    ..r.settings
+                };
+                let c = cut_keys
+                    .iter()
+                    .position(|c| c.0 == (image, r.regions.as_path(), r.name.as_str(), settings))
+                    .expect("every located layer's cut was made");
+                let (mut mesh, _) = cuts[c].clone()?;
+                let r = RegionLayer {
+                    settings,
+                    ..(*r).clone()
+                };
+                stretch_region_mesh(&mut mesh, &region, &r);
+                Ok(mesh)
+            });
+            match m {
+                Ok(m) => {
+                    out.insert((*i, b), m);
+                }
+                Err(e) if b == required => return Err(e),
+                Err(_) => {}
             }
-            Err(e) if b == required => return Err(e),
-            Err(_) => {}
         }
     }
     Ok(out)

@@ -77,11 +77,30 @@ pub fn cut_region_layer(
 ) -> Result<(LayerMesh, Vec<String>), FileError> {
     let region = find_region(image, sheet, r)?;
     let analysis = SheetAnalysis::new(sheet, &r.settings);
+    let (mut mesh, mut notes) = cut_unstretched(image, sheet, &analysis, &region, r)?;
+    if let Some(note) = stretch_region_mesh(&mut mesh, &region, r) {
+        notes.push(note);
+    }
+    Ok((mesh, notes))
+}
+
+/// Cuts `region` (found for the region layer `r`) of the sheet `image`
+/// (alpha `sheet`, analysed under `r`'s settings as `analysis`, whose
+/// budget does not matter) at `r`'s budget, not yet stretched: the same
+/// for every layer drawing that region with those settings, whatever its
+/// `size`. Its notes are the cut's and the padding warnings.
+pub fn cut_unstretched(
+    image: &Path,
+    sheet: &AlphaMap,
+    analysis: &SheetAnalysis,
+    region: &SheetRegion,
+    r: &RegionLayer,
+) -> Result<(LayerMesh, Vec<String>), FileError> {
     let cut = cut_region(
         sheet,
         &source_name(image),
-        &analysis,
-        &region,
+        analysis,
+        region,
         &r.settings,
         false,
     )
@@ -92,16 +111,26 @@ pub fn cut_region_layer(
             "check the region's rectangle and the cut settings",
         )
     })?;
-    let mut notes: Vec<String> = cut.notes.into_iter().chain(cut.warnings).collect();
-    let mut mesh = cut.mesh;
-    if let (Some(size), RegionKind::Sliced(insets)) = (r.size, &region.kind) {
-        stretch_mesh(&mut mesh, *insets, size);
-        notes.push(format!(
-            "nine-slice region {:?} ({} x {}) drawn stretched to {} x {}",
-            r.name, region.rect.w, region.rect.h, size[0], size[1]
-        ));
-    }
-    Ok((mesh, notes))
+    let notes: Vec<String> = cut.notes.into_iter().chain(cut.warnings).collect();
+    Ok((cut.mesh, notes))
+}
+
+/// Stretches a nine-slice `region`'s mesh to the layer `r`'s `size` when
+/// it gives one, returning the note saying so; leaves any other mesh as it
+/// is.
+pub fn stretch_region_mesh(
+    mesh: &mut LayerMesh,
+    region: &SheetRegion,
+    r: &RegionLayer,
+) -> Option<String> {
+    let (Some(size), RegionKind::Sliced(insets)) = (r.size, &region.kind) else {
+        return None;
+    };
+    stretch_mesh(mesh, *insets, size);
+    Some(format!(
+        "nine-slice region {:?} ({} x {}) drawn stretched to {} x {}",
+        r.name, region.rect.w, region.rect.h, size[0], size[1]
+    ))
 }
 
 /// Where a panel's texel coordinate `t` along one axis (of a region `n`
