@@ -14,10 +14,13 @@
 //! filled) split by their own knapsack ([`split_cover`]) for every count
 //! the opaque rings leave room for: the pairing with the largest objective
 //! is refined. With candidates on the traced outline, a covering polygon
-//! must keep every corner of the outline's convex hull, so on a rugged
-//! outline with more hull corners than the budget the covering curve has
-//! no polygon at small k and the greedy covering rings are used; candidates
-//! off the outline (where extended hull edges meet) are not built yet.
+//! must keep every corner of the outline's convex hull, so each island's
+//! covering curve also runs over candidates off the outline (hull corners
+//! and the lattice points just outside where extended hull edges meet;
+//! see `off_outline` for them and their pruning): per count the smaller
+//! of the two areas is kept. Those candidates are ordered by angle about
+//! the hull's mean corner and only chords passing it on their left are
+//! tried, so each polygon turns once around the island.
 //!
 //! Candidates and what their pruning gives up: the candidates of a ring are
 //! its own traced corners without collinear ones, thinned to at most
@@ -41,6 +44,8 @@
 //! removed); islands with holes are not handled (the caller passes the
 //! region with its holes opened).
 
+mod off_outline;
+
 use super::geom::{orient, segments_touch};
 use super::Prepared;
 use crate::mask::RowRuns;
@@ -50,6 +55,11 @@ use crate::outline::{Point, Ring};
 pub const MAX_CANDIDATES: usize = 160;
 /// Start vertices tried per ring (besides the extreme points).
 const SPREAD_STARTS: usize = 4;
+/// Start vertices tried (besides the extreme points) over the candidates
+/// off the outline: there the best polygon for a count goes through the
+/// meeting points of lines about as far apart as its edges are long, so
+/// more starts are spread around.
+const OFF_OUTLINE_STARTS: usize = 12;
 /// Rings with at most this many candidates try every start.
 const SMALL_RING: usize = 24;
 
@@ -258,7 +268,30 @@ pub fn ring_curve(
     maximise: bool,
     kmax: usize,
 ) -> Vec<Option<(i64, Vec<Point>)>> {
-    let v = candidates(points, MAX_CANDIDATES);
+    curve_over(
+        &candidates(points, MAX_CANDIDATES),
+        cells,
+        maximise,
+        kmax,
+        SPREAD_STARTS,
+        None,
+    )
+}
+
+/// [`ring_curve`] over the candidates `v` (in ring order), trying the
+/// extreme candidates and `spread` more spread around as start vertices.
+/// With `around` (a sum of `count` points, their mean strictly inside the
+/// region), only chords that pass that mean on their left are tried: the
+/// polygon then turns once around it (for candidates not on the ring, whose
+/// order alone does not keep a polygon from folding back).
+fn curve_over(
+    v: &[Point],
+    cells: &CellRows,
+    maximise: bool,
+    kmax: usize,
+    spread: usize,
+    around: Option<(Point, i64)>,
+) -> Vec<Option<(i64, Vec<Point>)>> {
     let n = v.len();
     let kmax = kmax.min(n);
     let mut curve: Vec<Option<(i64, Vec<Point>)>> = vec![None; kmax + 1];
@@ -271,8 +304,19 @@ pub fn ring_curve(
         for j in i + 1..n {
             let ok = (!cover || (cells.in_image(v[i]) && cells.in_image(v[j])))
                 && cells.holds_segment(v[i], v[j]);
-            valid[i * n + j] = ok;
-            valid[j * n + i] = ok;
+            let left = |p: Point, q: Point| match around {
+                None => true,
+                Some((sum, count)) => {
+                    let d = [(q[0] - p[0]) as i128, (q[1] - p[1]) as i128];
+                    let w = [
+                        (sum[0] - p[0] * count) as i128,
+                        (sum[1] - p[1] * count) as i128,
+                    ];
+                    d[0] * w[1] - d[1] * w[0] > 0
+                }
+            };
+            valid[i * n + j] = ok && left(v[i], v[j]);
+            valid[j * n + i] = ok && left(v[j], v[i]);
         }
     }
     let better = |a: i64, b: i64| if maximise { a > b } else { a < b };
@@ -290,7 +334,7 @@ pub fn ring_curve(
     if n <= SMALL_RING {
         starts.extend(0..n);
     } else {
-        starts.extend((0..SPREAD_STARTS).map(|s| s * n / SPREAD_STARTS));
+        starts.extend((0..spread).map(|s| s * n / spread));
     }
     starts.sort_unstable();
     starts.dedup();
@@ -437,23 +481,37 @@ pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option
         return None;
     }
     // a polygon with its corners on the outline that holds the island
-    // keeps every corner of the island's convex hull: where the hulls
-    // together have more corners than `kmax`, no count is reachable, and
-    // the chord tests are not run
-    let corners: usize = outer
-        .iter()
-        .map(|r| super::island_edits::convex_hull(r.points.clone()).len())
-        .sum();
-    if corners > kmax {
-        return None;
-    }
+    // keeps every corner of the island's convex hull: where the hull has
+    // more corners than `kmax`, no count is reachable with candidates on
+    // the outline, and only the candidates off the outline are tried
     let outside = CellRows::outside(&cover.runs);
     Some(
         outer
             .iter()
-            .map(|r| Item {
-                curve: ring_curve(&r.points, &outside, false, kmax),
-                component: r.component,
+            .map(|r| {
+                let hull = super::island_edits::convex_hull(r.points.clone());
+                let mut curve = if hull.len() <= kmax {
+                    ring_curve(&r.points, &outside, false, kmax)
+                } else {
+                    Vec::new()
+                };
+                let off = off_outline::cover_candidates(&hull, outside.width, outside.height);
+                let sum = hull.iter().fold([0, 0], |s, p| [s[0] + p[0], s[1] + p[1]]);
+                let around = Some((sum, hull.len() as i64));
+                let off = curve_over(&off, &outside, false, kmax, OFF_OUTLINE_STARTS, around);
+                if curve.len() < off.len() {
+                    curve.resize(off.len(), None);
+                }
+                for (k, c) in off.into_iter().enumerate() {
+                    let Some((a2, _)) = &c else { continue };
+                    if curve[k].as_ref().is_none_or(|(b2, _)| a2 < b2) {
+                        curve[k] = c;
+                    }
+                }
+                Item {
+                    curve,
+                    component: r.component,
+                }
             })
             .collect(),
     )
@@ -726,5 +784,82 @@ mod tests {
             .map(|p| ring.iter().position(|q| q == p).unwrap())
             .collect();
         assert!(pos.windows(2).all(|w| w[0] < w[1]));
+    }
+}
+
+#[cfg(test)]
+mod cover_tests {
+    use super::*;
+    use crate::mask::Mask;
+
+    /// Whether point (x, y) is inside the polygon (crossing parity; the
+    /// points tested are cell centres, never on a lattice edge).
+    fn inside(poly: &[Point], x: f64, y: f64) -> bool {
+        let mut odd = false;
+        for i in 0..poly.len() {
+            let (a, b) = (poly[i], poly[(i + 1) % poly.len()]);
+            let (ax, ay, bx, by) = (a[0] as f64, a[1] as f64, b[0] as f64, b[1] as f64);
+            if (ay > y) != (by > y) && x < ax + (y - ay) * (bx - ax) / (by - ay) {
+                odd = !odd;
+            }
+        }
+        odd
+    }
+
+    /// A worked example: a digital disc of radius 50 (the cells whose
+    /// centre is within 50 of the centre). Its convex hull has 48 corners,
+    /// so a covering polygon with corners on the outline needs at least 48;
+    /// with the meeting points of hull-edge lines as candidates every count
+    /// from 4 up is reached, and from 8 to 32 corners the covering area is
+    /// within 1% of the regular k-gon circumscribed about the circle of
+    /// radius 50 + sqrt(2)/2 that holds every cell (classical geometry: of
+    /// the k-gons around a circle the regular one has the least area, and
+    /// it is a cover here). Each polygon is simple, its chords hold, and it
+    /// holds every cell of the disc (tested cell by cell here).
+    #[test]
+    fn covering_disc_needs_corners_off_the_outline() {
+        let (size, r) = (120usize, 50.0f64);
+        let mut m = Mask::new(size, size, false);
+        for y in 0..size {
+            for x in 0..size {
+                let (dx, dy) = (x as f64 + 0.5 - 60.0, y as f64 + 0.5 - 60.0);
+                if dx * dx + dy * dy <= r * r {
+                    m.set(x, y, true);
+                }
+            }
+        }
+        let prepared = super::super::Prepared::from_runs(m.row_runs(), false);
+        let outline = &prepared.rings[0].points;
+        let hull = super::super::island_edits::convex_hull(outline.clone());
+        assert_eq!(hull.len(), 48);
+        let outside = CellRows::outside(&prepared.runs);
+        let on_outline = ring_curve(outline, &outside, false, 32);
+        assert!(on_outline.iter().all(|c| c.is_none()), "needs 48 corners");
+        let items = cover_curves(&prepared, 32, 8).expect("one island");
+        let curve = &items[0].curve;
+        let rc = r + std::f64::consts::SQRT_2 / 2.0;
+        for (k, c) in curve.iter().enumerate().skip(4) {
+            let (a2, poly) = c.as_ref().unwrap_or_else(|| panic!("k {k}: no polygon"));
+            assert_eq!(poly.len(), k);
+            assert_eq!(*a2, crate::outline::twice_area(poly));
+            assert!(is_simple(poly));
+            assert!((0..k).all(|i| outside.holds_segment(poly[i], poly[(i + 1) % k])));
+            for y in 0..size {
+                for x in 0..size {
+                    if m.get(x, y) {
+                        assert!(inside(poly, x as f64 + 0.5, y as f64 + 0.5), "k {k}");
+                    }
+                }
+            }
+            let circumscribed = k as f64 * rc * rc * (std::f64::consts::PI / k as f64).tan();
+            let ratio = *a2 as f64 / 2.0 / circumscribed;
+            if k >= 8 {
+                assert!(
+                    ratio <= 1.01,
+                    "k {k}: {ratio:.4} of the circumscribed k-gon"
+                );
+            }
+        }
+        assert_eq!(curve.len(), 33);
     }
 }
