@@ -356,43 +356,20 @@ impl Fitter<'_> {
     /// weighed again after each; at most `limit` weighings. Whether any
     /// vertex moved.
     pub(super) fn improve_locally(&mut self, limit: usize) -> bool {
-        let mut queue: std::collections::VecDeque<u32> = (0..self.verts.len() as u32)
-            .filter(|&v| self.verts[v as usize].alive)
-            .collect();
-        let mut queued: Vec<bool> = vec![true; self.verts.len()];
         let mut targets = Vec::new();
-        let mut moved = false;
-        let mut weighed = 0;
-        while let Some(v) = queue.pop_front() {
-            queued[v as usize] = false;
-            weighed += 1;
-            if weighed > limit {
-                break;
-            }
-            let mut again = vec![v];
-            if let Some((_, partner, q)) = self.eval_local_move(v, &mut targets) {
-                self.apply_move(v, q);
+        self.move_while_gaining(limit, |f, v| {
+            if let Some((_, partner, q)) = f.eval_local_move(v, &mut targets) {
+                f.apply_move(v, q);
+                let mut again = vec![v];
                 if let Some(x) = partner {
-                    self.apply_move(x, q);
+                    f.apply_move(x, q);
                     again.push(x);
                 }
-            } else if let Some(w) = self.try_edge_move(v) {
-                again.push(w);
+                Some(again)
             } else {
-                continue;
+                f.try_edge_move(v).map(|w| vec![v, w])
             }
-            moved = true;
-            for y in again {
-                let (u, w) = (self.verts[y as usize].prev, self.verts[y as usize].next);
-                for z in [u, y, w] {
-                    if !queued[z as usize] {
-                        queued[z as usize] = true;
-                        queue.push_back(z);
-                    }
-                }
-            }
-        }
-        moved
+        })
     }
 }
 

@@ -341,6 +341,22 @@ impl Fitter<'_> {
     /// Vertex moves while they gain, neighbours re-weighed after each
     /// (at most `limit` weighings).
     fn improve_by_moves(&mut self, limit: usize) -> bool {
+        self.move_while_gaining(limit, |f, v| {
+            let (_, q) = f.eval_move(v, 16)?;
+            f.apply_move(v, q);
+            Some(vec![v])
+        })
+    }
+
+    /// The work list of the local moves: every live vertex weighed in turn
+    /// by `step`, which makes its move and returns the vertices it moved
+    /// (`None`: no move gains); each moved vertex and its two neighbours are
+    /// weighed again. At most `limit` weighings. Whether any vertex moved.
+    pub(super) fn move_while_gaining(
+        &mut self,
+        limit: usize,
+        mut step: impl FnMut(&mut Self, u32) -> Option<Vec<u32>>,
+    ) -> bool {
         let mut queue: std::collections::VecDeque<u32> = (0..self.verts.len() as u32)
             .filter(|&v| self.verts[v as usize].alive)
             .collect();
@@ -353,14 +369,16 @@ impl Fitter<'_> {
             if weighed > limit {
                 break;
             }
-            if let Some((_, q)) = self.eval_move(v, 16) {
-                self.apply_move(v, q);
-                moved = true;
-                let (u, w) = (self.verts[v as usize].prev, self.verts[v as usize].next);
-                for x in [u, v, w] {
-                    if !queued[x as usize] {
-                        queued[x as usize] = true;
-                        queue.push_back(x);
+            let Some(again) = step(self, v) else {
+                continue;
+            };
+            moved = true;
+            for y in again {
+                let (u, w) = (self.verts[y as usize].prev, self.verts[y as usize].next);
+                for z in [u, y, w] {
+                    if !queued[z as usize] {
+                        queued[z as usize] = true;
+                        queue.push_back(z);
                     }
                 }
             }
