@@ -9,7 +9,8 @@
 //! region's rectangle, a stretched panel's drawn size and insets, read
 //! here from the regions file), and each stretched panel's exported mesh
 //! passes `check` against the sheet, while a vertex moved off its anchor's
-//! place fails it.
+//! place fails it. The report page gives a region layer's card no budget
+//! plot, as `scene --help` says.
 
 mod common;
 mod sheet_support;
@@ -88,6 +89,50 @@ fn covered(p: [[f64; 2]; 3]) -> u64 {
     n
 }
 
+/// The card of layer `name` on the report page `html`.
+fn card<'a>(html: &'a str, name: &str) -> &'a str {
+    let start = html
+        .find(&format!("<section class=\"card\" data-layer=\"{name}\""))
+        .unwrap_or_else(|| panic!("no card for {name}"));
+    let end = html[start..].find("</section>").expect("the card ends") + start;
+    &html[start..end]
+}
+
+/// The report page of the region scene: a region layer's card has no
+/// budget plot (its alpha is the whole sheet's: no sweep of it) and no
+/// knee, and `scene --help` says so instead of promising a plot on every
+/// card.
+fn report_cards_say_what_they_give(page: &Path) {
+    let html = std::fs::read_to_string(page.join("index.html")).unwrap();
+    for name in ["play", "panel-0", "panel-1", "panel-2"] {
+        assert!(
+            !page.join(format!("{name}.plot.svg")).exists(),
+            "{name}: a budget plot was written"
+        );
+        let c = card(&html, name);
+        assert!(
+            !c.contains(".plot.svg"),
+            "{name}: the card shows a plot: {c}"
+        );
+        assert!(
+            c.contains("<tr><td>knee (80% of the largest saving)</td><td>-</td></tr>"),
+            "{name}: the card gives a knee: {c}"
+        );
+    }
+    let help = run(&["scene", "--help"]);
+    status(&help, 0, "scene --help");
+    let said = text(&help.stdout)
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(
+        said.contains(
+            "a region of a sprite sheet and a layer read from a mesh file have no budget plot"
+        ),
+        "scene --help promises a plot on every card: {said}"
+    );
+}
+
 #[test]
 fn region_layers_and_stretched_panels_score_as_shipped() {
     let dir = TempDir::new("scene-region");
@@ -106,7 +151,7 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         "camera": {"travel": 0, "samples": 1}, "layers": layers});
     let path = dir.path("ui.scene.json");
     std::fs::write(&path, serde_json::to_vec_pretty(&scene).unwrap()).unwrap();
-    let (out, export) = (dir.path("out"), dir.path("export"));
+    let (out, export, page) = (dir.path("out"), dir.path("export"), dir.path("page"));
     let o = run(&[
         "--json",
         "scene",
@@ -117,8 +162,11 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         export.to_str().unwrap(),
         "--dump-frame",
         "0",
+        "--report",
+        page.to_str().unwrap(),
     ]);
     status(&o, 0, "scene with region layers");
+    report_cards_say_what_they_give(&page);
     let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert!(
         report.to_string().contains("panel-2"),

@@ -26,8 +26,10 @@ pub(crate) struct SceneArgs {
     vertex_total: Option<usize>,
     /// Also write a self-contained web page report, `DIR/index.html`, with
     /// its images beside it: the strategies, the heatmaps side by side, and
-    /// a card per layer (preview, budget plot from a sweep, numbers,
-    /// warnings).
+    /// a card per layer: its numbers and warnings, its preview (for a layer
+    /// drawn from a PNG) and, for a layer cut from its own image, its
+    /// budget plot from a sweep with the knee (a region of a sprite sheet
+    /// and a layer read from a mesh file have no budget plot).
     #[arg(long, value_name = "DIR")]
     report: Option<PathBuf>,
     /// Also write, for an engine, every layer's `<name>.mesh.json` and glTF
