@@ -336,3 +336,76 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         assert_eq!(got, want, "panel drawn {size:?}: scored vs rasterized here");
     }
 }
+
+/// A scene layer asking for a region the regions file does not have (or a
+/// stretch a plain region cannot take): the error names the scene file and
+/// the layer that asked, the regions file and the names it has, and what
+/// to do (the project's rule for bad input: the file, what is wrong, what
+/// to do), and the run fails with exit status 2.
+#[test]
+fn a_missing_region_names_the_scene_file_and_the_layer() {
+    let dir = TempDir::new("scene-region-missing");
+    for f in ["ui-sheet.png", "ui-sheet.regions.json"] {
+        std::fs::copy(root().join("demo-sheets").join(f), dir.path(f)).unwrap();
+    }
+    let regions = dir.path("ui-sheet.regions.json");
+    let names: Vec<String> =
+        serde_json::from_slice::<serde_json::Value>(&std::fs::read(&regions).unwrap()).unwrap()
+            ["regions"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r["name"].as_str().unwrap().to_string())
+            .collect();
+    assert!(!names.iter().any(|n| n == "panl"));
+    let cases = [
+        // a misspelt region name
+        (
+            serde_json::json!({"name": "dialog", "image": "ui-sheet.png", "region": "panl",
+                "size": [96, 64], "cut": {"budget": 24}, "parallax": 0.0}),
+            vec!["\"panl\"", "is not in the regions file"],
+        ),
+        // a size for a region without slices
+        (
+            serde_json::json!({"name": "dialog", "image": "ui-sheet.png",
+                "region": "button-play", "size": [200, 40], "parallax": 0.0}),
+            vec!["\"button-play\"", "no \"slices\""],
+        ),
+    ];
+    for (k, (layer, says)) in cases.into_iter().enumerate() {
+        let scene = serde_json::json!({"viewport": [640, 360],
+            "camera": {"travel": 0, "samples": 1},
+            "layers": [{"name": "play", "image": "ui-sheet.png", "region": "button-play",
+                        "parallax": 0.0}, layer]});
+        let path = dir.path(&format!("case-{k}.scene.json"));
+        std::fs::write(&path, serde_json::to_vec_pretty(&scene).unwrap()).unwrap();
+        let o = run(&[
+            "scene",
+            path.to_str().unwrap(),
+            "--out",
+            dir.path(&format!("out-{k}")).to_str().unwrap(),
+        ]);
+        status(&o, 2, &format!("case {k}"));
+        let err = text(&o.stderr);
+        // the scene file first, then the layer, as the scene file's other
+        // errors name them
+        assert!(
+            err.contains(&format!("{}: layers[1] (\"dialog\"): ", path.display())),
+            "case {k}: the scene file and the layer: {err}"
+        );
+        assert!(
+            err.contains(&regions.display().to_string()),
+            "case {k}: the regions file: {err}"
+        );
+        for s in says {
+            assert!(err.contains(s), "case {k}: {s:?} in {err}");
+        }
+        assert!(err.contains("hint: "), "case {k}: what to do: {err}");
+        if k == 0 {
+            // the names the file has, so the user can pick one
+            for n in &names {
+                assert!(err.contains(n.as_str()), "case 0: name {n} in {err}");
+            }
+        }
+    }
+}

@@ -142,6 +142,10 @@ pub struct RegionLayer {
     /// used instead of cutting it: as `cut --regions` writes it, or as
     /// `scene --export` writes it (a panel already stretched to `size`).
     pub mesh: Option<PathBuf>,
+    /// The scene file that asks for the region, and the layer's place in
+    /// it (`layers[i] ("name")`, as the scene file's errors name a layer):
+    /// a region the regions file cannot give is reported there.
+    pub asked_by: (PathBuf, String),
 }
 
 /// One layer of a scene, paths resolved against the scene file's folder.
@@ -417,6 +421,7 @@ pub fn parse_scene(path: &Path, text: &str) -> Result<Scene, FileError> {
                     regions,
                     size: l.size,
                     mesh,
+                    asked_by: (path.to_path_buf(), at.clone()),
                 }),
                 position: l.position,
                 scale: l.scale,

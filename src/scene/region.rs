@@ -24,41 +24,56 @@ use crate::sheet::regions::{load_regions, RegionKind, SheetRegion};
 use crate::sheet::{clip, cut_region, SheetAnalysis};
 use std::path::Path;
 
-/// The region named by `r` in its regions file.
+/// The region named by `r` in its regions file. A name the file does not
+/// have, or a `size` the region cannot be drawn at, is the asking layer's
+/// error: it names the scene file and the layer, the regions file and what
+/// it has, and what to do.
 pub fn find_region(
     image: &Path,
     sheet: &AlphaMap,
     r: &RegionLayer,
 ) -> Result<SheetRegion, FileError> {
     let regions = load_regions(&r.regions, (sheet.width, sheet.height))?;
+    let (scene, at) = &r.asked_by;
     let Some(region) = regions.iter().find(|g| g.name == r.name) else {
         let names: Vec<&str> = regions.iter().map(|g| g.name.as_str()).collect();
         return Err(FileError::new(
-            &r.regions,
+            scene,
             format!(
-                "has no region named {:?} (asked for by a layer drawing {})",
+                "{at}: region {:?} is not in the regions file {} (of the sheet {}), which has: {}",
                 r.name,
-                image.display()
+                r.regions.display(),
+                image.display(),
+                names.join(", ")
             ),
-            format!("give one of its regions: {}", names.join(", ")),
+            format!(
+                "give the layer's \"region\" one of those names, or add a region {:?} to {}",
+                r.name,
+                r.regions.display()
+            ),
         ));
     };
     if let Some([w, h]) = r.size {
         let RegionKind::Sliced([left, top, right, bottom]) = region.kind else {
             return Err(FileError::new(
-                &r.regions,
-                format!("region {:?} has no \"slices\", but the scene gives it a \"size\" to be stretched to", r.name),
-                "give the region \"slices\" in the regions file, or remove the layer's \"size\"",
+                scene,
+                format!(
+                    "{at}: gives a \"size\" to stretch region {:?} to, but the region has no \"slices\" in the regions file {}",
+                    r.name,
+                    r.regions.display()
+                ),
+                "remove the layer's \"size\", or give the region \"slices\" in the regions file",
             ));
         };
         if w < left + right || h < top + bottom {
             return Err(FileError::new(
-                &r.regions,
+                scene,
                 format!(
-                    "region {:?} cannot be drawn {w} x {h}: its corners alone take {} x {}",
+                    "{at}: region {:?} cannot be drawn {w} x {h}: its corners alone take {} x {} (slices in the regions file {})",
                     r.name,
                     left + right,
-                    top + bottom
+                    top + bottom,
+                    r.regions.display()
                 ),
                 "give the layer a \"size\" at least as large as the panel's corners",
             ));
