@@ -265,3 +265,108 @@ fn a_texture_that_cannot_serve_a_sheet_is_refused_with_what_to_do() {
     status(&o, 2, "preview of a texture sheet");
     assert!(text(&o.stderr).contains("--texture"), "{}", text(&o.stderr));
 }
+
+/// The padding warnings of a `--texture` cut count the padding in what
+/// ships: a texture whose level 0 leaves a faint alpha (3) in the PNG's
+/// transparent padding beside a region, as block compression can, puts a
+/// neighbour's texels within bilinear's half-texel reach, so that side
+/// warns with the texture's padding (0) beside the PNG's (counted up to
+/// the reach: at least 1); the PNG cut alone does not warn. Reference: the padding counted here from the texels
+/// (`sheet_support::padding_of`, for the side beside the faint column),
+/// and the reach as the trade states it (half a texel for bilinear at level
+/// 0; common practice, no source).
+#[test]
+fn padding_warnings_count_what_the_texture_ships() {
+    let dir = TempDir::new("sheet-ktx2-padding");
+    let (s0, _, boxes) = write_inputs(&dir.0);
+    let [x, y, w, h] = boxes[0];
+    // the shipped level 0: the sheet's, with the column right of s0
+    // (padding, transparent in the PNG) faintly visible along s0's rows
+    let mut shipped = s0.alpha.clone();
+    for yy in y..y + h {
+        let t = &mut shipped[(yy * s0.w + x + w) as usize];
+        assert_eq!(*t, 0, "the PNG's padding is transparent");
+        *t = 3;
+    }
+    let tex = Sheet {
+        w: s0.w,
+        h: s0.h,
+        alpha: shipped.clone(),
+        boxes: Vec::new(),
+    };
+    // s0's right side: 2 lines in the PNG, 0 in the texture (the faint
+    // column is beside it), counted from the texels
+    let right = |sheet: &Sheet| {
+        let (x1, band) = (x + w, 1i64);
+        let strip = Sheet {
+            w: sheet.w,
+            h: sheet.h,
+            alpha: (0..sheet.h)
+                .flat_map(|yy| (0..sheet.w).map(move |xx| (xx, yy)))
+                .map(|(xx, yy)| match xx >= x1 {
+                    true => sheet.alpha[(yy * sheet.w + xx) as usize],
+                    false => 0,
+                })
+                .collect(),
+            boxes: Vec::new(),
+        };
+        sheet_support::padding_of(&strip, boxes[0], band)
+    };
+    assert_eq!((right(&s0), right(&tex)), (2, 0));
+    let ktx = dir.path("faint.ktx2");
+    std::fs::write(&ktx, rgba8_ktx2(&[(s0.w, s0.h, shipped)])).unwrap();
+    let (png, regions) = (dir.path("sheet.png"), dir.path("sheet.regions.json"));
+    let cut = |out: &str, extra: &[&str]| {
+        let out = dir.path(out);
+        let mut a = vec![
+            "--json",
+            "cut",
+            png.to_str().unwrap(),
+            "--regions",
+            regions.to_str().unwrap(),
+            "--out",
+            out.to_str().unwrap(),
+            "--budget",
+            "24",
+        ];
+        a.extend_from_slice(extra);
+        let o = run(&a);
+        status(&o, 0, &format!("cut {extra:?}"));
+        let rows: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+        rows.as_array()
+            .unwrap()
+            .iter()
+            .map(|r| {
+                let w: Vec<String> = r["warnings"]
+                    .as_array()
+                    .unwrap()
+                    .iter()
+                    .map(|s| s.as_str().unwrap().to_string())
+                    .filter(|s| s.contains("padding"))
+                    .collect();
+                (r["region"].as_str().unwrap().to_string(), w)
+            })
+            .collect::<Vec<_>>()
+    };
+    // the PNG alone: 2 texels everywhere, over the 0.5 bilinear reaches
+    for (name, w) in cut("png", &[]) {
+        assert!(w.is_empty(), "{name}: {w:?}");
+    }
+    // with the texture: s0's right side is short, in the texture
+    let with = cut("tex", &["--texture", ktx.to_str().unwrap()]);
+    for (name, w) in with {
+        if name == "s0" {
+            assert_eq!(w.len(), 1, "{w:?}");
+            assert!(
+                w[0].contains(
+                    "padding of 0 texel(s) on the right in the shipped texture's level 0 (at least 1 in the PNG)"
+                ),
+                "{w:?}"
+            );
+        } else {
+            // s1 lies beyond s0's faint column: 1 line of the texture's
+            // padding is left on its left side, over the reach
+            assert!(w.is_empty(), "{name}: {w:?}");
+        }
+    }
+}

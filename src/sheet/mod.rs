@@ -158,7 +158,10 @@ pub fn cut_region(
         analysis,
         settings,
     };
-    let warnings = padding::warnings(sheet, region, settings);
+    // the padding as sampled: with a texture shipped for the PNG, its
+    // decoded level 0 too
+    let shipped = analysis.shipped.first().filter(|_| analysis.with_source);
+    let warnings = padding::warnings(sheet, shipped, region, settings);
     let (mesh, notes, per) = match &region.kind {
         RegionKind::Plain => {
             let out = place.cut(&[region.rect], settings.budget)?;

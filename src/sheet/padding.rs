@@ -11,6 +11,14 @@
 //! visible texel beyond it, over the rectangle's span widened by the reach
 //! (the corners count); the sheet's edge (without wrapping) is no
 //! neighbour: clamping reads the region's own edge texels.
+//!
+//! The bleeding happens in the texture the GPU samples: with a shipped
+//! texture given for the sheet's PNG, a texel counts as visible when the
+//! PNG or the texture's decoded level 0 shows it (block compression can
+//! leave alpha in a PNG's transparent padding), and a side whose padding
+//! is shorter in the texture says so beside the PNG's. The reach is the
+//! box rule's from level 0 at every mip level; a texture's own higher
+//! levels are not searched for padding.
 
 use super::regions::{Rect, RegionKind, SheetRegion};
 use crate::alpha::AlphaMap;
@@ -89,23 +97,49 @@ pub fn padding_around(
 }
 
 /// The padding warnings of a region (each frame of an animation), empty
-/// when every side's padding reaches the filter's reach.
-pub fn warnings(sheet: &AlphaMap, region: &SheetRegion, settings: &CutSettings) -> Vec<String> {
+/// when every side's padding reaches the filter's reach. `sheet` is the
+/// alpha the sheet is cut from (its PNG, or a texture sheet's level 0);
+/// `shipped`, the level 0 of a texture shipped for that PNG, whose visible
+/// texels count too.
+pub fn warnings(
+    sheet: &AlphaMap,
+    shipped: Option<&AlphaMap>,
+    region: &SheetRegion,
+    settings: &CutSettings,
+) -> Vec<String> {
     let need = reach(settings);
     let cap = need.ceil() as u32;
     let frames = match &region.kind {
         RegionKind::Frames(f) => f.clone(),
         _ => vec![region.rect],
     };
+    let (min, wrap) = (settings.alpha.visible_min, settings.wrap);
     let mut out = Vec::new();
     for (k, f) in frames.iter().enumerate() {
-        let pad = padding_around(sheet, *f, settings.alpha.visible_min, settings.wrap, cap);
-        let short: Vec<String> = pad
-            .iter()
-            .zip(SIDES)
-            .filter_map(|(p, side)| match p {
-                Some(n) if (*n as f64) < need => Some(format!("{n} texel(s) on the {side}")),
-                _ => None,
+        let pad = padding_around(sheet, *f, min, wrap, cap);
+        let shipped_pad = shipped.map(|t| padding_around(t, *f, min, wrap, cap));
+        let short: Vec<String> = (0..4)
+            .filter_map(|i| {
+                let (p, t) = (pad[i], shipped_pad.map(|s| s[i]));
+                // the padding the GPU samples: the fewer lines of the two
+                let n = match (p, t.flatten()) {
+                    (Some(a), Some(b)) => a.min(b),
+                    (a, b) => a.or(b)?,
+                };
+                if n as f64 >= need {
+                    return None;
+                }
+                let side = SIDES[i];
+                Some(match p {
+                    Some(a) if a > n => {
+                        let png = match a == cap {
+                            true => format!("at least {a}"),
+                            false => a.to_string(),
+                        };
+                        format!("{n} texel(s) on the {side} in the shipped texture's level 0 ({png} in the PNG)")
+                    }
+                    _ => format!("{n} texel(s) on the {side}"),
+                })
             })
             .collect();
         if short.is_empty() {
