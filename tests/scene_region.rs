@@ -101,9 +101,31 @@ fn card<'a>(html: &'a str, name: &str) -> &'a str {
 /// The report page of the region scene: a region layer's card has no
 /// budget plot (its alpha is the whole sheet's: no sweep of it) and no
 /// knee, and `scene --help` says so instead of promising a plot on every
-/// card.
-fn report_cards_say_what_they_give(page: &Path) {
+/// card; a stretched panel's card says its capture and excess are at the
+/// region's own size (`regions`: the regions file), not the drawn one.
+fn report_cards_say_what_they_give(page: &Path, regions: &Path) {
     let html = std::fs::read_to_string(page.join("index.html")).unwrap();
+    let file: serde_json::Value = serde_json::from_slice(&std::fs::read(regions).unwrap()).unwrap();
+    let rect = file["regions"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|r| r["name"] == "panel")
+        .unwrap()["rect"]
+        .clone();
+    let (w, h) = (rect[2].as_u64().unwrap(), rect[3].as_u64().unwrap());
+    for (k, (size, _)) in PANELS.iter().enumerate() {
+        // the page escapes the apostrophe as XML does
+        let c = card(&html, &format!("panel-{k}")).replace("&apos;", "'");
+        let says = format!(
+            "drawn stretched to {} x {}: its opaque capture and excess are given at the region's {w} x {h}",
+            size[0], size[1]
+        );
+        assert!(
+            c.contains(&says),
+            "panel-{k}: the card does not say at what size its numbers are: {c}"
+        );
+    }
     for name in ["play", "panel-0", "panel-1", "panel-2"] {
         assert!(
             !page.join(format!("{name}.plot.svg")).exists(),
@@ -166,7 +188,7 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         page.to_str().unwrap(),
     ]);
     status(&o, 0, "scene with region layers");
-    report_cards_say_what_they_give(&page);
+    report_cards_say_what_they_give(&page, &dir.path("ui-sheet.regions.json"));
     let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert!(
         report.to_string().contains("panel-2"),

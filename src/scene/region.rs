@@ -131,8 +131,9 @@ pub fn cut_unstretched(
 }
 
 /// Stretches a nine-slice `region`'s mesh to the layer `r`'s `size` when
-/// it gives one, returning the note saying so; leaves any other mesh as it
-/// is.
+/// it gives one, returning the note saying so (and that the mesh's numbers,
+/// its stats, stay those of the region's own size); leaves any other mesh
+/// as it is.
 pub fn stretch_region_mesh(
     mesh: &mut LayerMesh,
     region: &SheetRegion,
@@ -142,9 +143,10 @@ pub fn stretch_region_mesh(
         return None;
     };
     stretch_mesh(mesh, *insets, size);
+    let (w, h) = (region.rect.w, region.rect.h);
     Some(format!(
-        "nine-slice region {:?} ({} x {}) drawn stretched to {} x {}",
-        r.name, region.rect.w, region.rect.h, size[0], size[1]
+        "nine-slice region {:?} ({w} x {h}) drawn stretched to {} x {}: its opaque capture and excess are given at the region's {w} x {h}, the fragments saved as drawn",
+        r.name, size[0], size[1]
     ))
 }
 
