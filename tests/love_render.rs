@@ -153,6 +153,164 @@ fn max_channel_diff(a: &Rgba<u8>, b: &Rgba<u8>) -> u8 {
     (0..4).map(|c| a[c].abs_diff(b[c])).max().unwrap()
 }
 
+/// `underdraw scene SCENE --out OUT [--export EXPORT] --dump-frame 1
+/// --quiet`: the model's frame at camera sample 1 dumped into `out`.
+fn dump_scene(scene: &Path, out: &Path, export: Option<&Path>) {
+    use std::ffi::OsStr;
+    let mut args: Vec<&OsStr> = vec![
+        OsStr::new("scene"),
+        scene.as_os_str(),
+        OsStr::new("--out"),
+        out.as_os_str(),
+    ];
+    if let Some(e) = export {
+        args.extend([OsStr::new("--export"), e.as_os_str()]);
+    }
+    args.extend(["--dump-frame", "1", "--quiet"].map(OsStr::new));
+    run_underdraw(&args);
+}
+
+/// The model's frame as [`dump_scene`] dumped it into `out`: its draws
+/// under the split and rect strategies, the split counts PNG as written,
+/// and the split frame's opaque pass alone with its per-pixel counts.
+struct ModelFrame {
+    viewport: [u32; 2],
+    split: Vec<Draw>,
+    rect: Vec<Draw>,
+    counts: image::ImageBuffer<image::Luma<u16>, Vec<u16>>,
+    opaque: Vec<Draw>,
+    opaque_counts: Vec<u32>,
+}
+
+fn model_frame(out: &Path) -> ModelFrame {
+    let mut dump = load_frame_dump(&out.join("frame-1.json")).unwrap();
+    let viewport = dump.viewport;
+    let mut draws = |s: &str| dump.strategies.remove(s).unwrap().draws;
+    let (split, rect) = (draws("split"), draws("rect"));
+    let counts = image::open(out.join("counts-1-split.png"))
+        .unwrap()
+        .to_luma16();
+    let opaque: Vec<Draw> = split.iter().filter(|d| d.depth_write).cloned().collect();
+    let opaque_counts = replay(viewport, &opaque);
+    ModelFrame {
+        viewport,
+        split,
+        rect,
+        counts,
+        opaque,
+        opaque_counts,
+    }
+}
+
+/// LÖVE's two frames of `export` at `camera`, the split way and the plain
+/// way, written as `split-K.png` and `plain-K.png` in `dir`: the frames
+/// (checked to be the viewport's size) and what LÖVE said for each.
+fn love_frames(
+    dir: &TempDir,
+    export: &Path,
+    camera: f64,
+    k: usize,
+    viewport: [u32; 2],
+) -> ([RgbaImage; 2], [String; 2]) {
+    let split_png = dir.path(&format!("split-{k}.png"));
+    let plain_png = dir.path(&format!("plain-{k}.png"));
+    let said = [
+        love_frame(export, camera, &split_png, false),
+        love_frame(export, camera, &plain_png, true),
+    ];
+    let frames = [read_rgba(&split_png), read_rgba(&plain_png)];
+    for f in &frames {
+        assert_eq!(f.dimensions(), (viewport[0], viewport[1]));
+    }
+    (frames, said)
+}
+
+/// LÖVE said it drew `split` draw calls the split way and `plain` the
+/// plain way, at `camera` (`said`: what it said for each).
+fn assert_draw_calls(said: &[String; 2], camera: f64, split: usize, plain: usize) {
+    assert!(
+        said[0].contains(&format!(": split, camera {camera}, {split} draw calls")),
+        "LÖVE said {:?}, the model places {split} copies",
+        said[0]
+    );
+    assert!(
+        said[1].contains(&format!(": plain, camera {camera}, {plain} draw calls")),
+        "LÖVE said {:?}, the model needs {plain} draws",
+        said[1]
+    );
+}
+
+/// The plain frame's draw calls: each rectangle copy of a layer (4
+/// vertices) times its pieces (`pieces`: 1, or a nine-slice panel's
+/// pieces of non-zero size).
+fn plain_draw_calls(rect: &[Draw], pieces: impl Fn(&str) -> usize) -> usize {
+    rect.iter()
+        .map(|d| d.positions.len() / 2 / 4 * pieces(&d.layer))
+        .sum()
+}
+
+/// The camera moved the picture: the first two frames differ at more than
+/// a tenth of a quarter of their pixels.
+fn assert_camera_moved(frames: &[RgbaImage]) {
+    let moved = frames[0]
+        .pixels()
+        .zip(frames[1].pixels())
+        .filter(|(a, b)| a != b)
+        .count();
+    assert!(moved > frames[0].len() / 4 / 10, "{moved}");
+}
+
+/// Keeps `frames` for a person to look at, as
+/// `target/test-artifacts/PREFIX-K.png`.
+fn keep_frames(frames: &[RgbaImage], prefix: &str) {
+    let keep = Path::new(env!("CARGO_TARGET_TMPDIR"))
+        .parent()
+        .unwrap()
+        .join("test-artifacts");
+    fs::create_dir_all(&keep).unwrap();
+    for (k, f) in frames.iter().enumerate() {
+        f.save(keep.join(format!("{prefix}-{k}.png"))).unwrap();
+    }
+}
+
+/// A LÖVE program folder `dir/program`: `main.lua` is `main` after a line
+/// setting `UNDERDRAW_DIR` to the loader's folder, `conf.lua` is `conf`
+/// when given.
+fn love_program(dir: &TempDir, main: &str, conf: Option<&str>) -> PathBuf {
+    let program = dir.path("program");
+    fs::create_dir_all(&program).unwrap();
+    if let Some(c) = conf {
+        fs::write(program.join("conf.lua"), c).unwrap();
+    }
+    let main = format!(
+        "UNDERDRAW_DIR = {:?}\n{main}",
+        root().join("integrations/love").display().to_string()
+    );
+    fs::write(program.join("main.lua"), main).unwrap();
+    program
+}
+
+/// `love PROGRAM ARGS...` without a display (a program whose conf.lua
+/// opens no window); checks it succeeded and returns its stdout.
+fn love_windowless<I, S>(program: &Path, args: I) -> String
+where
+    I: IntoIterator<Item = S>,
+    S: AsRef<std::ffi::OsStr>,
+{
+    let o = Command::new("love")
+        .arg(program)
+        .args(args)
+        .output()
+        .expect("run love");
+    let stdout = String::from_utf8_lossy(&o.stdout).to_string();
+    assert!(
+        o.status.success(),
+        "{stdout}{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    stdout
+}
+
 /// The demo scene with its layers read from the exported meshes and the
 /// camera's only sample at `camera`, so `--dump-frame 0` dumps the frame
 /// LÖVE draws (the same meshes, placements and depths as the export). A
@@ -213,6 +371,21 @@ struct Comparison {
     /// many of them differ at all.
     opaque_only: usize,
     opaque_diff: usize,
+}
+
+impl Comparison {
+    /// Split and plain agree within [`TOLERANCE`] everywhere, and exactly
+    /// where only the opaque pass shades.
+    fn assert_agree(&self, camera: f64) {
+        assert_eq!(
+            self.over, 0,
+            "camera {camera}: split and plain differ by more than {TOLERANCE}/255"
+        );
+        assert_eq!(
+            self.opaque_diff, 0,
+            "camera {camera}: split and plain differ where only the opaque pass shades"
+        );
+    }
 }
 
 /// Compares `split` and `plain` pixel by pixel; `counts` is the model's
@@ -310,64 +483,19 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         let scene = dir.path(&format!("at-{k}.scene.json"));
         scene_at(&export, camera, &scene);
         let out = dir.path(&format!("model-{k}"));
-        run_underdraw(&[
-            "scene".as_ref(),
-            scene.as_os_str(),
-            "--out".as_ref(),
-            out.as_os_str(),
-            "--dump-frame".as_ref(),
-            "1".as_ref(),
-            "--quiet".as_ref(),
-        ]);
-        let dump = load_frame_dump(&out.join("frame-1.json")).unwrap();
-        let viewport = dump.viewport;
-        let split_draws = &dump.strategies["split"].draws;
-        let rect_draws = &dump.strategies["rect"].draws;
-        // counts PNG as written by the dump, and the opaque pass alone
-        let counts = image::open(out.join("counts-1-split.png"))
-            .unwrap()
-            .to_luma16();
-        let opaque: Vec<Draw> = split_draws
-            .iter()
-            .filter(|d| d.depth_write)
-            .cloned()
-            .collect();
-        let opaque_counts = replay(viewport, &opaque);
-        let rect_counts = replay(viewport, rect_draws);
+        dump_scene(&scene, &out, None);
+        let model = model_frame(&out);
+        let viewport = model.viewport;
+        let rect_counts = replay(viewport, &model.rect);
 
-        // LÖVE's two frames
-        let split_png = dir.path(&format!("split-{k}.png"));
-        let plain_png = dir.path(&format!("plain-{k}.png"));
-        let said_split = love_frame(&export, camera, &split_png, false);
-        let said_plain = love_frame(&export, camera, &plain_png, true);
-        // LÖVE drew as many layer copies as the model places (a nine-slice
-        // panel's plain draw is nine pieces)
-        let mut rect_vertices = vertices.clone();
-        rect_vertices.values_mut().for_each(|v| *v = 4);
-        let want_split = copies(split_draws, &vertices);
-        let want_plain: usize = rect_draws
-            .iter()
-            .map(|d| copies(std::slice::from_ref(d), &rect_vertices) * pieces[&d.layer])
-            .sum();
-        assert!(
-            said_split.contains(&format!(
-                ": split, camera {}, {want_split} draw calls",
-                camera
-            )),
-            "LÖVE said {said_split:?}, the model places {want_split} copies"
-        );
-        assert!(
-            said_plain.contains(&format!(
-                ": plain, camera {}, {want_plain} draw calls",
-                camera
-            )),
-            "LÖVE said {said_plain:?}, the model places {want_plain} copies"
-        );
-        let split = read_rgba(&split_png);
-        let plain = read_rgba(&plain_png);
-        assert_eq!(split.dimensions(), (viewport[0], viewport[1]));
-        assert_eq!(plain.dimensions(), split.dimensions());
+        // LÖVE's two frames, and as many layer copies drawn as the model
+        // places (a nine-slice panel's plain draw is nine pieces)
+        let ([split, plain], said) = love_frames(&dir, &export, camera, k, viewport);
+        let want_split = copies(&model.split, &vertices);
+        let want_plain = plain_draw_calls(&model.rect, |l| pieces[l]);
+        assert_draw_calls(&said, camera, want_split, want_plain);
 
+        let c = compare(&split, &plain, &model.counts, &model.opaque_counts);
         let Comparison {
             max_diff,
             where_max,
@@ -375,7 +503,7 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
             over,
             opaque_only,
             opaque_diff,
-        } = compare(&split, &plain, &counts, &opaque_counts);
+        } = c;
         // not blank: a real frame has many colours
         let distinct: HashSet<[u8; 4]> = split.pixels().map(|p| p.0).collect();
         assert!(
@@ -424,31 +552,10 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
         assert!(opaque_only > 100_000, "camera {camera}: {opaque_only}");
         split_frames.push(split);
         println!("{}", report.last().unwrap());
-        assert_eq!(
-            over, 0,
-            "camera {camera}: split and plain differ by more than {TOLERANCE}/255"
-        );
-        assert_eq!(
-            opaque_diff, 0,
-            "camera {camera}: split and plain differ where only the opaque pass shades"
-        );
+        c.assert_agree(camera);
     }
-    // the camera moved the picture
-    let moved = split_frames[0]
-        .pixels()
-        .zip(split_frames[1].pixels())
-        .filter(|(a, b)| a != b)
-        .count();
-    assert!(moved > split_frames[0].len() as usize / 4 / 10, "{moved}");
-    // keep the frames for a person to look at
-    let keep = Path::new(env!("CARGO_TARGET_TMPDIR"))
-        .parent()
-        .unwrap()
-        .join("test-artifacts");
-    fs::create_dir_all(&keep).unwrap();
-    for (k, f) in split_frames.iter().enumerate() {
-        f.save(keep.join(format!("love-split-{k}.png"))).unwrap();
-    }
+    assert_camera_moved(&split_frames);
+    keep_frames(&split_frames, "love-split");
     println!("{}", report.join("\n"));
 }
 
@@ -567,14 +674,7 @@ fn the_lua_json_decoder_agrees_with_serde_json() {
         return;
     }
     let dir = TempDir::new("love-json");
-    let program = dir.path("program");
-    fs::create_dir_all(&program).unwrap();
-    fs::write(program.join("conf.lua"), DECODE_PROGRAM).unwrap();
-    let main = format!(
-        "UNDERDRAW_DIR = {:?}\n{DECODE_MAIN}",
-        root().join("integrations/love").display().to_string()
-    );
-    fs::write(program.join("main.lua"), main).unwrap();
+    let program = love_program(&dir, DECODE_MAIN, Some(DECODE_PROGRAM));
     let good = [
         r#"{"format": "underdraw.layer", "size": [2048, 1024], "x": -0.5, "y": 1.06e0}"#,
         r#"[1, -2, 3.25, 1e-7, 2.5E+3, 0, -0.0, 1234567890123, 0.1]"#,
@@ -606,17 +706,7 @@ fn the_lua_json_decoder_agrees_with_serde_json() {
     for (i, text) in good.iter().chain(&bad).enumerate() {
         fs::write(program.join(format!("case-{i}.json")), text).unwrap();
     }
-    let o = Command::new("love")
-        .arg(&program)
-        .arg(&program)
-        .output()
-        .expect("run love");
-    let stdout = String::from_utf8_lossy(&o.stdout);
-    assert!(
-        o.status.success(),
-        "{stdout}{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    let stdout = love_windowless(&program, [&program]);
     let lines: Vec<&str> = stdout
         .lines()
         .filter(|l| l.starts_with("ok ") || l.starts_with("error "))

@@ -44,17 +44,9 @@ function love.load(args)
 end
 "#;
 
-/// underdraw.lua's place_panel puts a panel's vertices where the nine-slice
-/// rule puts them (computed here from the vertices' positions as cut, not
-/// from their anchors) at three sizes and the panel's own, and refuses a
-/// size smaller than the corners; frame_uvs moves the uvs onto each
-/// frame's rectangle of the sheet.
-#[test]
-fn love_places_panels_and_frames_by_the_rules() {
-    if !have("love", "--version") {
-        return;
-    }
-    let dir = TempDir::new("love-place");
+/// The demo sheet's regions cut by `underdraw cut --regions` (the default
+/// cut settings) into `dir/cut`; returns that folder.
+fn cut_demo_sheet(dir: &TempDir) -> PathBuf {
     let (png, regions) = sheet();
     let cut = dir.path("cut");
     run_underdraw(&[
@@ -66,6 +58,21 @@ fn love_places_panels_and_frames_by_the_rules() {
         cut.as_os_str(),
         "--quiet".as_ref(),
     ]);
+    cut
+}
+
+/// underdraw.lua's place_panel puts a panel's vertices where the nine-slice
+/// rule puts them (computed here from the vertices' positions as cut, not
+/// from their anchors) at three sizes and the panel's own, and refuses a
+/// size smaller than the corners; frame_uvs moves the uvs onto each
+/// frame's rectangle of the sheet.
+#[test]
+fn love_places_panels_and_frames_by_the_rules() {
+    if !have("love", "--version") {
+        return;
+    }
+    let dir = TempDir::new("love-place");
+    let cut = cut_demo_sheet(&dir);
     // the demo panel's vertices in the middle slices all sit on the slice
     // lines (offset 0), where any stretch factor places them alike: add
     // vertices inside them (used by no triangle) so the factor shows
@@ -74,14 +81,7 @@ fn love_places_panels_and_frames_by_the_rules() {
     add_middle_vertices(&mut panel);
     fs::write(&panel_path, serde_json::to_vec(&panel).unwrap()).unwrap();
     let spark_path = cut.join("ui-sheet/spark.mesh.json");
-    let program = dir.path("program");
-    fs::create_dir_all(&program).unwrap();
-    fs::write(program.join("conf.lua"), super::DECODE_PROGRAM).unwrap();
-    let main = format!(
-        "UNDERDRAW_DIR = {:?}\n{PLACE_MAIN}",
-        root().join("integrations/love").display().to_string()
-    );
-    fs::write(program.join("main.lua"), main).unwrap();
+    let program = love_program(&dir, PLACE_MAIN, Some(super::DECODE_PROGRAM));
     // the panel as a stretched scene layer exports it (its positions at
     // 200 x 90, its anchors as cut): placing starts from either the same
     let mut stretched: underdraw::mesh::LayerMesh =
@@ -137,19 +137,12 @@ fn add_middle_vertices(panel: &mut Value) {
 /// (`panel_path`) and against the frames' rectangles.
 fn place_and_check(program: &Path, placed: &Path, panel_path: &Path, spark_path: &Path) {
     let sizes: [[u32; 2]; 5] = [[48, 48], [200, 90], [70, 260], [24, 31], [23, 60]];
-    let o = Command::new("love")
-        .arg(program)
-        .arg(placed)
-        .arg(spark_path)
-        .args(sizes.iter().map(|[w, h]| format!("{w}x{h}")))
-        .output()
-        .expect("run love");
-    let stdout = String::from_utf8_lossy(&o.stdout);
-    assert!(
-        o.status.success(),
-        "{stdout}{}",
-        String::from_utf8_lossy(&o.stderr)
-    );
+    let mut args = vec![
+        placed.as_os_str().to_owned(),
+        spark_path.as_os_str().to_owned(),
+    ];
+    args.extend(sizes.iter().map(|[w, h]| format!("{w}x{h}").into()));
+    let stdout = love_windowless(program, args);
     let lines: Vec<&str> = stdout.lines().collect();
     let numbers = |l: &str, skip: usize| -> Vec<f64> {
         l.split(' ')
@@ -307,24 +300,9 @@ fn love_draws_resized_panels_and_frames_by_the_rules() {
     }
     const MARGIN: f64 = 4.0;
     let dir = TempDir::new("love-resize");
-    let (png, regions) = sheet();
-    let cut = dir.path("cut");
-    run_underdraw(&[
-        "cut".as_ref(),
-        png.as_os_str(),
-        "--regions".as_ref(),
-        regions.as_os_str(),
-        "--out".as_ref(),
-        cut.as_os_str(),
-        "--quiet".as_ref(),
-    ]);
-    let program = dir.path("program");
-    fs::create_dir_all(&program).unwrap();
-    let main = format!(
-        "UNDERDRAW_DIR = {:?}\n{RESIZE_MAIN}",
-        root().join("integrations/love").display().to_string()
-    );
-    fs::write(program.join("main.lua"), main).unwrap();
+    let png = sheet().0;
+    let cut = cut_demo_sheet(&dir);
+    let program = love_program(&dir, RESIZE_MAIN, None);
     let frames_dir = dir.path("frames");
     fs::create_dir_all(&frames_dir).unwrap();
     let panel_path = cut.join("ui-sheet/panel.mesh.json");

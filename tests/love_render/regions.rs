@@ -161,17 +161,7 @@ fn love_draws_sheet_regions_split_as_plain() {
             dir.path(&format!("out-{k}")),
             dir.path(&format!("export-{k}")),
         );
-        run_underdraw(&[
-            "scene".as_ref(),
-            scene.as_os_str(),
-            "--out".as_ref(),
-            out.as_os_str(),
-            "--export".as_ref(),
-            export.as_os_str(),
-            "--dump-frame".as_ref(),
-            "1".as_ref(),
-            "--quiet".as_ref(),
-        ]);
+        dump_scene(&scene, &out, Some(&export));
         let list = json(&export.join("draw-list.json"));
         let meshes: HashMap<String, Value> = list["layers"]
             .as_array()
@@ -188,55 +178,21 @@ fn love_draws_sheet_regions_split_as_plain() {
             .collect();
         assert!(meshes["panel-wide"]["region"]["slice_positions"].is_array());
 
-        let dump = load_frame_dump(&out.join("frame-1.json")).unwrap();
-        let viewport = dump.viewport;
-        let split_draws = &dump.strategies["split"].draws;
-        let rect_draws = &dump.strategies["rect"].draws;
-        let counts = image::open(out.join("counts-1-split.png"))
-            .unwrap()
-            .to_luma16();
-        let opaque: Vec<Draw> = split_draws
-            .iter()
-            .filter(|d| d.depth_write)
-            .cloned()
-            .collect();
-        let opaque_counts = replay(viewport, &opaque);
-
-        let split_png = dir.path(&format!("split-{k}.png"));
-        let plain_png = dir.path(&format!("plain-{k}.png"));
-        let said_split = love_frame(&export, camera, &split_png, false);
-        let said_plain = love_frame(&export, camera, &plain_png, true);
-        let want_split = copies(split_draws, &vertices);
-        let rect_vertices: HashMap<String, usize> =
-            vertices.keys().map(|n| (n.clone(), 4)).collect();
+        let model = model_frame(&out);
+        let viewport = model.viewport;
+        let ([split, plain], said) = love_frames(&dir, &export, camera, k, viewport);
         // a panel's plain draw is nine pieces, one draw call each
-        let want_plain: usize = rect_draws
-            .iter()
-            .map(|d| {
-                copies(std::slice::from_ref(d), &rect_vertices) * plain_pieces(&meshes[&d.layer])
-            })
-            .sum();
-        assert!(
-            said_split.contains(&format!(
-                ": split, camera {camera}, {want_split} draw calls"
-            )),
-            "LÖVE said {said_split:?}, the model places {want_split} copies"
-        );
+        let want_split = copies(&model.split, &vertices);
+        let want_plain = plain_draw_calls(&model.rect, |l| plain_pieces(&meshes[l]));
+        assert_draw_calls(&said, camera, want_split, want_plain);
         // the sheet's region layers share one texture, the sky has its own
         assert!(
-            said_split.contains("draw calls, 2 textures"),
-            "LÖVE said {said_split:?}"
+            said[0].contains("draw calls, 2 textures"),
+            "LÖVE said {:?}",
+            said[0]
         );
-        assert!(
-            said_plain.contains(&format!(
-                ": plain, camera {camera}, {want_plain} draw calls"
-            )),
-            "LÖVE said {said_plain:?}, the model needs {want_plain} draws"
-        );
-        let split = read_rgba(&split_png);
-        let plain = read_rgba(&plain_png);
-        assert_eq!(split.dimensions(), (viewport[0], viewport[1]));
-        let c = compare(&split, &plain, &counts, &opaque_counts);
+        let (counts, opaque) = (&model.counts, &model.opaque);
+        let c = compare(&split, &plain, counts, &model.opaque_counts);
 
         // each region layer where its opaque mesh alone shades: LÖVE's
         // split frame is the LINEAR sample of the sheet at the texel the
@@ -300,14 +256,7 @@ fn love_draws_sheet_regions_split_as_plain() {
             c.max_diff, c.where_max, c.differ, c.over, c.opaque_only, c.opaque_diff, region_pixels.join(", ")
         ));
         println!("{}", report.last().unwrap());
-        assert_eq!(
-            c.over, 0,
-            "camera {camera}: split and plain differ by more than {TOLERANCE}/255"
-        );
-        assert_eq!(
-            c.opaque_diff, 0,
-            "camera {camera}: split and plain differ where only the opaque pass shades"
-        );
+        c.assert_agree(camera);
 
         if k == 0 {
             draw_list_keys(&dir, &export, camera, &split);
@@ -315,20 +264,8 @@ fn love_draws_sheet_regions_split_as_plain() {
         split_frames.push(split);
     }
     // the camera moved the sky behind the UI
-    let moved = split_frames[0]
-        .pixels()
-        .zip(split_frames[1].pixels())
-        .filter(|(a, b)| a != b)
-        .count();
-    assert!(moved > split_frames[0].len() as usize / 4 / 10, "{moved}");
-    let keep = Path::new(env!("CARGO_TARGET_TMPDIR"))
-        .parent()
-        .unwrap()
-        .join("test-artifacts");
-    fs::create_dir_all(&keep).unwrap();
-    split_frames[0]
-        .save(keep.join("love-regions-split-0.png"))
-        .unwrap();
+    assert_camera_moved(&split_frames);
+    keep_frames(&split_frames[..1], "love-regions-split");
     println!("{}", report.join("\n"));
 }
 
