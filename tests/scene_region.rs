@@ -2,7 +2,7 @@
 //! button region and the nine-slice panel stretched to three sizes score,
 //! the button's exported mesh passes `check` as a region of the sheet, and
 //! each stretched panel's fragments equal those of its mesh's triangles
-//! placed by their slice anchors (the engine's rule, written here) and
+//! placed by their slice anchors (the engine's rule, in sheet_support) and
 //! rasterized here with the top-left rule at pixel centres (Direct3D 11
 //! rasterization rules, from memory), vertices snapped to 1/256 pixel.
 //! The export carries what an engine needs for a region (the sheet, the
@@ -15,7 +15,7 @@
 mod common;
 mod sheet_support;
 use common::TempDir;
-use sheet_support::{load, run, status, text};
+use sheet_support::{anchored_positions, check, cut_regions, load, run, status, text};
 use std::path::Path;
 use underdraw::mesh::LayerMesh;
 
@@ -29,30 +29,10 @@ fn root() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
 }
 
-/// Positions of a panel mesh drawn `size` texels: column 0 at dx, 1 at
-/// left + dx * (W' - left - right) / (w - left - right), 2 at W' - right +
-/// dx; rows alike (the README's rule for engines).
+/// Positions of a panel mesh drawn `size` texels (the README's rule for
+/// engines, `sheet_support::anchored_positions`).
 fn stretched(m: &LayerMesh, size: [u32; 2]) -> Vec<[f64; 2]> {
-    let r = m.region.as_ref().unwrap();
-    let [l, t, rr, b] = r.slices.unwrap().map(|v| v as f64);
-    let (w, h) = (m.size[0] as f64, m.size[1] as f64);
-    let (tw, th) = (size[0] as f64, size[1] as f64);
-    let place = |k: f32, d: f32, lo: f64, hi: f64, n: f64, to: f64| match k as u32 {
-        0 => d as f64,
-        1 => lo + d as f64 * (to - lo - hi) / (n - lo - hi),
-        _ => to - hi + d as f64,
-    };
-    r.slice_positions
-        .as_ref()
-        .unwrap()
-        .iter()
-        .map(|a| {
-            [
-                place(a[0], a[2], l, rr, w, tw),
-                place(a[1], a[3], t, b, h, th),
-            ]
-        })
-        .collect()
+    anchored_positions(m, size.map(|v| v as f64))
 }
 
 /// Pixel centres covered by triangle `p` (pixels), top-left rule, vertices
@@ -199,28 +179,25 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
     let sheet = dir.path("ui-sheet.png");
     let play = export.join("play.mesh.json");
     assert!(load(&play).region.is_some());
-    let c = run(&["check", play.to_str().unwrap(), sheet.to_str().unwrap()]);
-    status(&c, 0, "check the button region");
+    check(&play, &sheet, &[], 0, "check the button region");
     // the panel as `cut --regions` cuts it, at the scene's budget
     let cut_dir = dir.path("cut");
-    let c = run(&[
-        "cut",
-        sheet.to_str().unwrap(),
-        "--regions",
-        dir.path("ui-sheet.regions.json").to_str().unwrap(),
-        "--out",
-        cut_dir.to_str().unwrap(),
-        "--budget",
-        "24",
-    ]);
-    status(&c, 0, "cut the sheet");
+    cut_regions(
+        &sheet,
+        &dir.path("ui-sheet.regions.json"),
+        &cut_dir,
+        &["--budget", "24"],
+        0,
+        "cut the sheet",
+    );
     let panel = load(&cut_dir.join("ui-sheet/panel.mesh.json"));
-    let c = run(&[
-        "check",
-        cut_dir.join("ui-sheet/panel.mesh.json").to_str().unwrap(),
-        sheet.to_str().unwrap(),
-    ]);
-    status(&c, 0, "check the panel region");
+    check(
+        &cut_dir.join("ui-sheet/panel.mesh.json"),
+        &sheet,
+        &[],
+        0,
+        "check the panel region",
+    );
     // the draw list: the sheet, the region's rectangle, and for a panel
     // drawn stretched its size and insets, as the regions file gives them
     let regions: serde_json::Value =
@@ -278,8 +255,13 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
                 "panel {size:?}, vertex {i}: {got:?} vs {w:?}"
             );
         }
-        let c = run(&["check", file.to_str().unwrap(), sheet.to_str().unwrap()]);
-        status(&c, 0, &format!("check the panel exported at {size:?}"));
+        let c = check(
+            &file,
+            &sheet,
+            &[],
+            0,
+            &format!("check the panel exported at {size:?}"),
+        );
         let said = String::from_utf8_lossy(&c.stdout);
         assert!(
             said.contains(&format!("drawn stretched to {} x {}", size[0], size[1])),
@@ -291,8 +273,13 @@ fn region_layers_and_stretched_panels_score_as_shipped() {
         bad["positions"][0] = serde_json::json!(x + 0.5);
         let tampered = dir.path(&format!("tampered-{k}.mesh.json"));
         std::fs::write(&tampered, serde_json::to_vec(&bad).unwrap()).unwrap();
-        let c = run(&["check", tampered.to_str().unwrap(), sheet.to_str().unwrap()]);
-        status(&c, 1, &format!("check a tampered panel at {size:?}"));
+        check(
+            &tampered,
+            &sheet,
+            &[],
+            1,
+            &format!("check a tampered panel at {size:?}"),
+        );
     }
     // the same scene from mesh files: the exported ones (a panel already
     // stretched) and the panel as `cut --regions` wrote it (stretched when

@@ -12,7 +12,8 @@ mod sheet_support;
 use common::triangles::{inset, triangles};
 use common::{Rng, TempDir};
 use sheet_support::{
-    linear_opaque, load, pack, padding_of, point_in, regions_file, run, save, status, text, Sheet,
+    check, cut_regions, linear_opaque, load, pack, padding_of, point_in, regions_file, run, save,
+    status, text, Sheet,
 };
 
 /// Random points of the opaque triangles, moved to the sheet by `offset`,
@@ -70,22 +71,22 @@ fn packed_sheets_cut_per_region_pass_check_and_warn_on_padding() {
         std::fs::write(&rf, regions_file(&entries)).unwrap();
         for mips in [0u32, 1] {
             let out = dir.path(&format!("out{pad}-{mips}"));
-            let o = run(&[
-                "--json",
-                "cut",
-                png.to_str().unwrap(),
-                "--regions",
-                rf.to_str().unwrap(),
-                "--out",
-                out.to_str().unwrap(),
-                "--budget",
-                "24",
-                "--mip-levels",
-                &mips.to_string(),
-                "--format",
-                "all",
-            ]);
-            status(&o, 0, "cut --regions");
+            let o = cut_regions(
+                &png,
+                &rf,
+                &out,
+                &[
+                    "--json",
+                    "--budget",
+                    "24",
+                    "--mip-levels",
+                    &mips.to_string(),
+                    "--format",
+                    "all",
+                ],
+                0,
+                "cut --regions",
+            );
             let rows: Vec<serde_json::Value> = serde_json::from_slice(&o.stdout).unwrap();
             assert_eq!(rows.len(), sheet.boxes.len());
             let (reach, band) = if mips == 0 { (0.5, 1) } else { (1.5, 2) };
@@ -105,8 +106,7 @@ fn packed_sheets_cut_per_region_pass_check_and_warn_on_padding() {
                     let u = (p[0] as f64 + b[0] as f64) / sheet.w as f64;
                     assert!((uv[0] as f64 - u).abs() < 1e-6, "u of {p:?}");
                 }
-                let c = run(&["check", mesh_path.to_str().unwrap(), png.to_str().unwrap()]);
-                status(&c, 0, &format!("check {name}"));
+                let c = check(&mesh_path, &png, &[], 0, &format!("check {name}"));
                 assert!(text(&c.stdout).contains("contract holds"));
                 if mips == 0 {
                     sampled += sample_opaque(&sheet, &m, [b[0] as f64, b[1] as f64], &mut rng);
@@ -218,15 +218,7 @@ fn bad_regions_files_name_the_region_and_what_to_do() {
         let rf = dir.path(&format!("bad{k}.regions.json"));
         std::fs::write(&rf, regions_file(&[("knob".into(), rest.to_string())])).unwrap();
         let out = dir.path(&format!("out{k}"));
-        let o = run(&[
-            "cut",
-            png.to_str().unwrap(),
-            "--regions",
-            rf.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-        ]);
-        status(&o, 2, phrase);
+        let o = cut_regions(&png, &rf, &out, &[], 2, phrase);
         let e = text(&o.stderr);
         assert!(
             e.contains(phrase) && e.contains("\"knob\"") && e.contains("hint:"),
@@ -243,15 +235,7 @@ fn bad_regions_files_name_the_region_and_what_to_do() {
         regions_file(&[("a".into(), rect.clone()), ("a".into(), rect)]),
     )
     .unwrap();
-    let o = run(&[
-        "cut",
-        png.to_str().unwrap(),
-        "--regions",
-        rf.to_str().unwrap(),
-        "--out",
-        dir.path("o").to_str().unwrap(),
-    ]);
-    status(&o, 2, "duplicate names");
+    let o = cut_regions(&png, &rf, &dir.path("o"), &[], 2, "duplicate names");
     assert!(text(&o.stderr).contains("both named \"a\""));
 }
 
@@ -382,16 +366,7 @@ fn per_frame_names_may_not_clash() {
     )
     .unwrap();
     let out = dir.path("out");
-    let o = run(&[
-        "cut",
-        png.to_str().unwrap(),
-        "--regions",
-        rf.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-        "--per-frame",
-    ]);
-    status(&o, 2, "clashing names");
+    let o = cut_regions(&png, &rf, &out, &["--per-frame"], 2, "clashing names");
     assert!(
         text(&o.stderr).contains("would both write spark.1.mesh.json"),
         "{}",

@@ -8,7 +8,7 @@
 mod common;
 mod sheet_support;
 use common::TempDir;
-use sheet_support::{load, pack, regions_file, run, save, status, text};
+use sheet_support::{check, cut_regions, load, pack, regions_file, run, save, status, text};
 use std::path::Path;
 
 /// Writes `in/ui/atlas.png` (three sprites, 1 texel of padding) with its
@@ -53,12 +53,7 @@ fn verify_region(mesh_path: &Path, sheet: &Path, rect: [u32; 4]) {
             "{mesh_path:?} vertex {k}: uv {got:?}, the sheet address is {want:?}"
         );
     }
-    let o = run(&[
-        "check",
-        mesh_path.to_str().unwrap(),
-        sheet.to_str().unwrap(),
-    ]);
-    status(&o, 0, &format!("check {mesh_path:?}"));
+    check(mesh_path, sheet, &[], 0, &format!("check {mesh_path:?}"));
 }
 
 #[test]
@@ -345,19 +340,16 @@ fn preview_draws_every_regions_meshes_over_the_whole_sheet() {
     let sheet = dir.path("in/ui/atlas.png");
     let regions = dir.path("in/ui/atlas.regions.json");
     let cut = || {
-        run(&[
-            "--json",
-            "cut",
-            sheet.to_str().unwrap(),
-            "--regions",
-            regions.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
+        cut_regions(
+            &sheet,
+            &regions,
+            &out,
+            &["--json", "--preview"],
+            0,
             "--preview",
-        ])
+        )
     };
     let o = cut();
-    status(&o, 0, "--regions --preview");
     let v: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     let preview = out.join("atlas.preview.png");
     assert_eq!(v[0]["sheet_preview"].as_str(), preview.to_str(), "{v:#}");

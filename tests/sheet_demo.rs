@@ -10,7 +10,7 @@ use std::path::{Path, PathBuf};
 mod common;
 mod sheet_support;
 use common::TempDir;
-use sheet_support::{load, padding_of, run, status, text, Sheet};
+use sheet_support::{check, cut_regions, load, padding_of, text, Sheet};
 
 fn demo(name: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -42,29 +42,34 @@ fn demo_sheet_regions_pass_check_and_warn_where_padding_is_short() {
     let mut warned = 0;
     for (budget, mips) in [(16, 0), (48, 0), (48, 1)] {
         let out = dir.path(&format!("out-{budget}-{mips}"));
-        let o = run(&[
-            "--json",
-            "cut",
-            png.to_str().unwrap(),
-            "--regions",
-            rf.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-            "--budget",
-            &budget.to_string(),
-            "--mip-levels",
-            &mips.to_string(),
-            "--format",
-            "all",
-        ]);
-        status(&o, 0, "cut the demo sheet");
+        let o = cut_regions(
+            &png,
+            &rf,
+            &out,
+            &[
+                "--json",
+                "--budget",
+                &budget.to_string(),
+                "--mip-levels",
+                &mips.to_string(),
+                "--format",
+                "all",
+            ],
+            0,
+            "cut the demo sheet",
+        );
         let rows: Vec<serde_json::Value> = serde_json::from_slice(&o.stdout).unwrap();
         let (reach, band) = if mips == 0 { (0.5, 1) } else { (1.5, 2) };
         for r in regions["regions"].as_array().unwrap() {
             let name = r["name"].as_str().unwrap();
             let mesh = out.join(format!("ui-sheet/{name}.mesh.json"));
-            let c = run(&["check", mesh.to_str().unwrap(), png.to_str().unwrap()]);
-            status(&c, 0, &format!("check {name} at {budget}, {mips}"));
+            let c = check(
+                &mesh,
+                &png,
+                &[],
+                0,
+                &format!("check {name} at {budget}, {mips}"),
+            );
             assert!(text(&c.stdout).contains("contract holds"));
             let m = load(&mesh);
             assert!(m.vertex_count() <= budget);

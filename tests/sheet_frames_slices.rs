@@ -10,7 +10,8 @@ mod sheet_support;
 use common::triangles::{inset, triangles, Tri};
 use common::{Rng, TempDir};
 use sheet_support::{
-    linear_opaque, linear_visible, load, point_in, regions_file, run, save, status, text, Sheet,
+    anchored_positions, check, cut_regions, linear_opaque, linear_visible, load, point_in,
+    regions_file, run, save, status, text, Sheet,
 };
 
 const FRAME: u32 = 24;
@@ -91,19 +92,14 @@ fn cut(
     )
     .unwrap();
     let out = dir.path("out");
-    let o = run(&[
-        "--json",
+    let o = cut_regions(
+        &png,
+        &rf,
+        &out,
+        &["--json", "--budget", "40", "--per-frame"],
+        0,
         "cut",
-        png.to_str().unwrap(),
-        "--regions",
-        rf.to_str().unwrap(),
-        "--out",
-        out.to_str().unwrap(),
-        "--budget",
-        "40",
-        "--per-frame",
-    ]);
-    status(&o, 0, "cut");
+    );
     (png, out, serde_json::from_slice(&o.stdout).unwrap())
 }
 
@@ -179,30 +175,6 @@ fn one_mesh_serves_every_frame() {
     assert!(notes.contains("one mesh for 6 frames"), "{notes}");
 }
 
-/// The stretched panel of an engine: each vertex placed from its anchor
-/// (slice column, row, offset), the centre scaled by `s`.
-fn stretch(m: &LayerMesh, size: [f64; 2]) -> Vec<[f64; 2]> {
-    let r = m.region.as_ref().unwrap();
-    let [l, t, rr, b] = r.slices.unwrap().map(|v| v as f64);
-    let (w, h) = (m.size[0] as f64, m.size[1] as f64);
-    let place = |k: f32, d: f32, lo: f64, hi: f64, n: f64, to: f64| match k as u32 {
-        0 => d as f64,
-        1 => lo + d as f64 * (to - lo - hi) / (n - lo - hi),
-        _ => to - hi + d as f64,
-    };
-    r.slice_positions
-        .as_ref()
-        .unwrap()
-        .iter()
-        .map(|a| {
-            [
-                place(a[0], a[2], l, rr, w, size[0]),
-                place(a[1], a[3], t, b, h, size[1]),
-            ]
-        })
-        .collect()
-}
-
 /// The texel of the region a point of the stretched panel shows (the
 /// nine-slice rule: corners unscaled, the centre scaled).
 fn unstretch(p: [f64; 2], slices: [u32; 4], region: [f64; 2], size: [f64; 2]) -> [f64; 2] {
@@ -231,7 +203,7 @@ fn stretched_failures(
     size: [f64; 2],
     rng: &mut Rng,
 ) -> (usize, usize) {
-    let pos = stretch(m, size);
+    let pos = anchored_positions(m, size);
     let slices = m.region.as_ref().unwrap().slices.unwrap();
     let region = [m.size[0] as f64, m.size[1] as f64];
     let uv = |i: u32| {
@@ -302,8 +274,7 @@ fn nine_slice_panel_holds_at_every_stretch() {
     let sheet = spark_and_panel();
     let (png, out, rows) = cut(&dir, &sheet);
     let mesh_path = out.join("fx/panel.mesh.json");
-    let c = run(&["check", mesh_path.to_str().unwrap(), png.to_str().unwrap()]);
-    status(&c, 0, "check panel");
+    let c = check(&mesh_path, &png, &[], 0, "check panel");
     assert!(text(&c.stdout).contains("nine-slice"));
     let m = load(&mesh_path);
     assert!(m.vertex_count() <= 40);

@@ -19,7 +19,8 @@ use common::ktx2::rgba8_ktx2;
 use common::triangles::{triangles, Tri};
 use common::{Rng, TempDir};
 use sheet_support::{
-    linear_opaque, load, pack, point_in, regions_file, run, save, status, text, Sheet,
+    check, cut_regions, linear_opaque, load, pack, point_in, regions_file, run, save, status, text,
+    Sheet,
 };
 use std::path::Path;
 use underdraw::mesh::LayerMesh;
@@ -100,25 +101,12 @@ fn a_ktx2_sheet_is_cut_on_its_own_mip_levels() {
     let (s0, s1, _) = write_inputs(&dir.0);
     let (out, png_out) = (dir.path("out"), dir.path("png-out"));
     let regions = dir.path("sheet.regions.json");
-    let cut = |sheet: &str, out: &Path, extra: &[&str]| {
-        let mut a = vec![
-            "cut",
-            sheet,
-            "--regions",
-            regions.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-            "--mip-levels",
-            "1",
-            "--budget",
-            "24",
-        ];
-        a.extend_from_slice(extra);
-        run(&a)
+    let cut = |sheet: &Path, out: &Path, extra: &[&str], what: &str| {
+        let a = [&["--mip-levels", "1", "--budget", "24"], extra].concat();
+        cut_regions(sheet, &regions, out, &a, 0, what)
     };
     let ktx = dir.path("sheet.ktx2");
-    let o = cut(ktx.to_str().unwrap(), &out, &[]);
-    status(&o, 0, "KTX 2.0 sheet");
+    let o = cut(&ktx, &out, &[], "KTX 2.0 sheet");
     assert!(
         text(&o.stdout).contains("guarantee computed for RGBA8"),
         "{}",
@@ -137,15 +125,13 @@ fn a_ktx2_sheet_is_cut_on_its_own_mip_levels() {
         }
         // the checker takes the texture sheet too
         let mesh = out.join(format!("sheet/s{k}.mesh.json"));
-        let o = run(&["check", mesh.to_str().unwrap(), ktx.to_str().unwrap()]);
-        status(&o, 0, "check on the KTX 2.0 sheet");
+        check(&mesh, &ktx, &[], 0, "check on the KTX 2.0 sheet");
     }
     // the PNG of the same level 0 cut alone (box-filtered level 1) puts
     // opaque triangles where the shipped level 1 is translucent: what the
     // texture's own levels prevent
     let png = dir.path("sheet.png");
-    let o = cut(png.to_str().unwrap(), &png_out, &[]);
-    status(&o, 0, "PNG sheet");
+    let o = cut(&png, &png_out, &[], "PNG sheet");
     let m = load(&png_out.join("sheet/s1.mesh.json"));
     assert!(
         translucent_samples(&m, &s1, 2.0, &mut rng) > 0,
@@ -155,23 +141,18 @@ fn a_ktx2_sheet_is_cut_on_its_own_mip_levels() {
         text(&o.stdout)
     );
     let mesh = png_out.join("sheet/s1.mesh.json");
-    let o = run(&[
-        "check",
-        mesh.to_str().unwrap(),
-        png.to_str().unwrap(),
-        "--texture",
-        ktx.to_str().unwrap(),
-    ]);
-    status(&o, 1, "the PNG's cut checked against the texture");
+    check(
+        &mesh,
+        &png,
+        &["--texture", ktx.to_str().unwrap()],
+        1,
+        "the PNG's cut checked against the texture",
+    );
 
     // the PNG cut with --texture holds on both
     let tex_out = dir.path("tex-out");
-    let o = cut(
-        png.to_str().unwrap(),
-        &tex_out,
-        &["--texture", ktx.to_str().unwrap()],
-    );
-    status(&o, 0, "PNG sheet with --texture");
+    let texture = ["--texture", ktx.to_str().unwrap()];
+    cut(&png, &tex_out, &texture, "PNG sheet with --texture");
     for k in 0..3 {
         let mesh = tex_out.join(format!("sheet/s{k}.mesh.json"));
         let m = load(&mesh);
@@ -182,23 +163,17 @@ fn a_ktx2_sheet_is_cut_on_its_own_mip_levels() {
                 "--texture region s{k}, level {l}"
             );
         }
-        let o = run(&[
-            "check",
-            mesh.to_str().unwrap(),
-            png.to_str().unwrap(),
-            "--texture",
-            ktx.to_str().unwrap(),
-        ]);
-        status(&o, 0, "check with --texture");
-        let o = run(&["check", mesh.to_str().unwrap(), png.to_str().unwrap()]);
-        status(&o, 0, "check on the PNG alone");
+        check(
+            &mesh,
+            &png,
+            &["--texture", ktx.to_str().unwrap()],
+            0,
+            "check with --texture",
+        );
+        check(&mesh, &png, &[], 0, "check on the PNG alone");
     }
     // a new texture cuts the sheet again; the same one skips it
-    let o = cut(
-        png.to_str().unwrap(),
-        &tex_out,
-        &["--texture", ktx.to_str().unwrap()],
-    );
+    let o = cut(&png, &tex_out, &texture, "the same texture");
     assert!(
         text(&o.stdout).contains("(0 cut, 3 unchanged"),
         "{}",
@@ -208,12 +183,7 @@ fn a_ktx2_sheet_is_cut_on_its_own_mip_levels() {
     let n = bytes.len();
     bytes[n - 1] ^= 0x10; // a texel's byte: a new hash
     std::fs::write(&ktx, &bytes).unwrap();
-    let o = cut(
-        png.to_str().unwrap(),
-        &tex_out,
-        &["--texture", ktx.to_str().unwrap()],
-    );
-    status(&o, 0, "changed texture");
+    let o = cut(&png, &tex_out, &texture, "changed texture");
     assert!(
         text(&o.stdout).contains("(3 cut, 0 unchanged"),
         "{}",
@@ -317,21 +287,9 @@ fn padding_warnings_count_what_the_texture_ships() {
     std::fs::write(&ktx, rgba8_ktx2(&[(s0.w, s0.h, shipped)])).unwrap();
     let (png, regions) = (dir.path("sheet.png"), dir.path("sheet.regions.json"));
     let cut = |out: &str, extra: &[&str]| {
-        let out = dir.path(out);
-        let mut a = vec![
-            "--json",
-            "cut",
-            png.to_str().unwrap(),
-            "--regions",
-            regions.to_str().unwrap(),
-            "--out",
-            out.to_str().unwrap(),
-            "--budget",
-            "24",
-        ];
-        a.extend_from_slice(extra);
-        let o = run(&a);
-        status(&o, 0, &format!("cut {extra:?}"));
+        let a = [&["--json", "--budget", "24"], extra].concat();
+        let what = format!("cut {extra:?}");
+        let o = cut_regions(&png, &regions, &dir.path(out), &a, 0, &what);
         let rows: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
         rows.as_array()
             .unwrap()

@@ -31,6 +31,43 @@ pub fn status(out: &Output, code: i32, what: &str) {
     );
 }
 
+/// Runs underdraw with `args` and checks that it exits with `code`
+/// (`what` names the step in a failure); returns its output.
+pub fn run_expect(args: &[&str], code: i32, what: &str) -> Output {
+    let o = run(args);
+    status(&o, code, what);
+    o
+}
+
+/// `underdraw cut SHEET --regions REGIONS --out OUT EXTRA...` (`--json`
+/// among `extra` for the rows as JSON), checked to exit with `code`.
+pub fn cut_regions(
+    sheet: &Path,
+    regions: &Path,
+    out: &Path,
+    extra: &[&str],
+    code: i32,
+    what: &str,
+) -> Output {
+    let mut args = vec![
+        "cut",
+        sheet.to_str().unwrap(),
+        "--regions",
+        regions.to_str().unwrap(),
+        "--out",
+        out.to_str().unwrap(),
+    ];
+    args.extend_from_slice(extra);
+    run_expect(&args, code, what)
+}
+
+/// `underdraw check MESH IMAGE EXTRA...`, checked to exit with `code`.
+pub fn check(mesh: &Path, image: &Path, extra: &[&str], code: i32, what: &str) -> Output {
+    let mut args = vec!["check", mesh.to_str().unwrap(), image.to_str().unwrap()];
+    args.extend_from_slice(extra);
+    run_expect(&args, code, what)
+}
+
 /// A sprite's alpha, `w` x `h`, row-major: its visible texels reach every
 /// side of its box (so the box is its bounding box).
 pub fn sprite(kind: u64, w: u32, h: u32) -> Vec<u8> {
@@ -133,6 +170,33 @@ pub fn regions_file(names_rects: &[(String, String)]) -> String {
 
 pub fn load(p: &Path) -> LayerMesh {
     serde_json::from_slice(&std::fs::read(p).unwrap_or_else(|e| panic!("{p:?}: {e}"))).unwrap()
+}
+
+/// A nine-slice panel mesh's vertex positions when drawn `size` texels,
+/// by the rule for engines (the README's; nine-slice scaling is common
+/// practice, no source): each vertex placed from its `slice_positions`
+/// anchor [column, row, dx, dy]: column 0 at dx, 1 at left + dx * (W' -
+/// left - right) / (w - left - right), 2 at W' - right + dx; rows alike.
+pub fn anchored_positions(m: &LayerMesh, size: [f64; 2]) -> Vec<[f64; 2]> {
+    let r = m.region.as_ref().unwrap();
+    let [l, t, rr, b] = r.slices.unwrap().map(|v| v as f64);
+    let (w, h) = (m.size[0] as f64, m.size[1] as f64);
+    let place = |k: f32, d: f32, lo: f64, hi: f64, n: f64, to: f64| match k as u32 {
+        0 => d as f64,
+        1 => lo + d as f64 * (to - lo - hi) / (n - lo - hi),
+        _ => to - hi + d as f64,
+    };
+    r.slice_positions
+        .as_ref()
+        .unwrap()
+        .iter()
+        .map(|a| {
+            [
+                place(a[0], a[2], l, rr, w, size[0]),
+                place(a[1], a[3], t, b, h, size[1]),
+            ]
+        })
+        .collect()
 }
 
 /// Level 0 of the OpenGL ES 3.0 LINEAR rule (specification section 3.8.10,
