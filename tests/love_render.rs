@@ -422,17 +422,20 @@ fn compare(
     c
 }
 
-/// The bilinear sample of `img` (wrapping in x, clamped in y) at texture
-/// coordinate (u, v), by the OpenGL ES LINEAR rule.
-fn bilinear_wrap_x(img: &RgbaImage, u: f64, v: f64) -> [f64; 4] {
+/// The bilinear sample of `img` at texel coordinate (x, y) (not
+/// normalized), by the OpenGL ES LINEAR rule: REPEAT in x when `wrap_x`,
+/// else CLAMP_TO_EDGE; CLAMP_TO_EDGE in y.
+fn bilinear(img: &RgbaImage, x: f64, y: f64, wrap_x: bool) -> [f64; 4] {
     let (w, h) = (img.width() as i64, img.height() as i64);
-    let (x, y) = (u * w as f64 - 0.5, v * h as f64 - 0.5);
+    let (x, y) = (x - 0.5, y - 0.5);
     let (x0, y0) = (x.floor(), y.floor());
     let (a, b) = (x - x0, y - y0);
     let texel = |i: i64, j: i64| {
-        let i = i.rem_euclid(w);
-        let j = j.clamp(0, h - 1);
-        *img.get_pixel(i as u32, j as u32)
+        let i = match wrap_x {
+            true => i.rem_euclid(w),
+            false => i.clamp(0, w - 1),
+        };
+        *img.get_pixel(i as u32, j.clamp(0, h - 1) as u32)
     };
     let (i0, j0) = (x0 as i64, y0 as i64);
     let mut out = [0.0; 4];
@@ -529,7 +532,7 @@ fn love_draws_the_split_frame_as_the_plain_frame() {
             sky_pixels += 1;
             let tx = (x as f64 + 0.5 - (sx - camera * parallax)) / scale;
             let ty = (y as f64 + 0.5 - sy) / scale;
-            let want = bilinear_wrap_x(&sky, tx / sky.width() as f64, ty / sky.height() as f64);
+            let want = bilinear(&sky, tx, ty, true);
             for c in 0..3 {
                 sky_worst = sky_worst.max((s[c] as f64 - want[c]).abs());
             }

@@ -93,19 +93,7 @@ pub(super) fn stretch(s: f64, n: f64, lo: f64, hi: f64, to: f64) -> f64 {
 /// The bilinear sample of `img` at texel coordinate (x, y) (not
 /// normalized), clamped to the edge (OpenGL ES LINEAR, CLAMP_TO_EDGE).
 pub(super) fn bilinear_clamp(img: &RgbaImage, x: f64, y: f64) -> [f64; 4] {
-    let (w, h) = (img.width() as i64, img.height() as i64);
-    let (x, y) = (x - 0.5, y - 0.5);
-    let (x0, y0) = (x.floor(), y.floor());
-    let (a, b) = (x - x0, y - y0);
-    let texel = |i: i64, j: i64| *img.get_pixel(i.clamp(0, w - 1) as u32, j.clamp(0, h - 1) as u32);
-    let (i0, j0) = (x0 as i64, y0 as i64);
-    let mut out = [0.0; 4];
-    for (c, o) in out.iter_mut().enumerate() {
-        let t = |i, j| texel(i, j)[c] as f64;
-        *o = (1.0 - b) * ((1.0 - a) * t(i0, j0) + a * t(i0 + 1, j0))
-            + b * ((1.0 - a) * t(i0, j0 + 1) + a * t(i0 + 1, j0 + 1));
-    }
-    out
+    bilinear(img, x, y, false)
 }
 
 /// The draw list's region keys as an export that writes them gives them,
