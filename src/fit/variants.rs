@@ -145,6 +145,9 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
             }
         }
     }
+    // rectangles of the safe region on straight opaque edges (`tabs`),
+    // kept only where they end strictly better
+    best.grow_tabs(budget);
     debug_assert!(best.vertices() <= budget);
     best.result()
 }
