@@ -15,10 +15,11 @@
 //! and its largest rectangle (the classical stack method, O(edge length))
 //! is the edge's tab; its end columns are kept off the edge's two vertices.
 //! The [`TAB_TRIES`] largest tabs are each tried on a copy of the fit: the
-//! four vertices inserted, the greedy edits run until the budget holds,
+//! four vertices inserted, the greedy edits run until the budget holds
+//! (without their fallbacks; a copy they cannot bring back is dropped),
 //! the rest of the budget spent and the local moves run; a copy replaces
-//! the fit only when its objective is strictly larger, so tabs never make
-//! a cut worse.
+//! the fit only when its objective is strictly larger (and the tabs after
+//! it are not tried), so tabs never make a cut worse.
 //!
 //! Invariant: the tab's cells are all in the safe region (its histogram
 //! is read from the row runs), no other opaque vertex lies in the closed
@@ -248,16 +249,21 @@ impl Fitter<'_> {
                 at = trial.apply_insert(at, p);
             }
             if trial.distinct > budget {
+                // the greedy edits alone (not their fallbacks: a box, the
+                // islands dropped), cheapest first
                 trial.seed();
-                trial.finish_greedy(budget);
-            }
-            if trial.distinct > budget {
-                continue;
+                trial.run(budget);
+                trial.heap.clear();
+                if trial.distinct > budget {
+                    continue;
+                }
             }
             trial.spend_rest(budget);
             trial.improve_chosen(budget);
             if trial.objective() > self.objective() {
+                // the other tabs were weighed on the fit replaced here
                 *self = trial;
+                break;
             }
         }
     }
