@@ -14,12 +14,13 @@
 //! region reaches outward from it without a gap, by the region's row runs),
 //! and its largest rectangle (the classical stack method, O(edge length))
 //! is the edge's tab; its end columns are kept off the edge's two vertices.
-//! The [`TAB_TRIES`] largest tabs are each tried on a copy of the fit: the
+//! The largest tabs are each tried on a copy of the fit ([`TAB_TRIES`] in
+//! all, the tabs weighed again on the new fit after one is kept): the
 //! four vertices inserted, the greedy edits run until the budget holds
 //! (without their fallbacks; a copy they cannot bring back is dropped),
 //! the rest of the budget spent and the local moves run; a copy replaces
-//! the fit only when its objective is strictly larger (and the tabs after
-//! it are not tried), so tabs never make a cut worse.
+//! the fit only when its objective is strictly larger, so tabs never make
+//! a cut worse.
 //!
 //! Invariant: the tab's cells are all in the safe region (its histogram
 //! is read from the row runs), no other opaque vertex lies in the closed
@@ -35,8 +36,8 @@
 
 use super::*;
 
-/// Tabs tried per cut, largest first.
-const TAB_TRIES: usize = 2;
+/// Tabs tried per cut (largest first, weighed again after each kept).
+const TAB_TRIES: usize = 4;
 
 /// A tab: the edge `u → next(u)` it stands on and its four new points in
 /// ring order, with the twice-area it adds.
@@ -230,42 +231,64 @@ impl Fitter<'_> {
     /// Tries the largest tabs (see the module docs) on copies of this fit
     /// and keeps a copy that ends strictly better.
     pub(super) fn grow_tabs(&mut self, budget: usize) {
+        let mut tries = 0;
+        'rounds: while tries < TAB_TRIES {
+            for tab in self.ranked_tabs() {
+                if tries == TAB_TRIES {
+                    break 'rounds;
+                }
+                tries += 1;
+                if let Some(trial) = self.with_tab(&tab, budget) {
+                    // the other tabs were weighed on the fit replaced
+                    // here: weigh them again on the new one
+                    *self = trial;
+                    continue 'rounds;
+                }
+            }
+            break;
+        }
+    }
+
+    /// Every opaque edge's tab, largest first (ties by the edge's first
+    /// vertex: a fixed order).
+    fn ranked_tabs(&self) -> Vec<Tab> {
         let mut tabs: Vec<Tab> = Vec::new();
+        let mut ids = Vec::new();
         for r in 0..self.rings.len() as u32 {
             let ring = &self.rings[r as usize];
             if !ring.alive || ring.class != Class::Opaque {
                 continue;
             }
-            let mut ids = Vec::new();
+            ids.clear();
             self.ring_vertices_into(r, &mut ids);
-            tabs.extend(ids.into_iter().filter_map(|u| self.edge_tab(u)));
+            tabs.extend(ids.iter().filter_map(|&u| self.edge_tab(u)));
         }
-        // largest first; ties by the edge's first vertex (a fixed order)
         tabs.sort_by_key(|t| (std::cmp::Reverse(t.gain2), t.u));
-        for tab in tabs.into_iter().take(TAB_TRIES) {
-            let mut trial = self.clone();
-            let mut at = tab.u;
-            for p in tab.points {
-                at = trial.apply_insert(at, p);
-            }
+        tabs
+    }
+
+    /// A copy of this fit with `tab` added, brought back to the budget,
+    /// the rest spent and the local moves run; `None` unless it ends
+    /// strictly better.
+    fn with_tab(&self, tab: &Tab, budget: usize) -> Option<Self> {
+        let mut trial = self.clone();
+        let mut at = tab.u;
+        for p in tab.points {
+            at = trial.apply_insert(at, p);
+        }
+        if trial.distinct > budget {
+            // the greedy edits alone (not their fallbacks: a box, the
+            // islands dropped), cheapest first
+            trial.seed();
+            trial.run(budget);
+            trial.heap.clear();
             if trial.distinct > budget {
-                // the greedy edits alone (not their fallbacks: a box, the
-                // islands dropped), cheapest first
-                trial.seed();
-                trial.run(budget);
-                trial.heap.clear();
-                if trial.distinct > budget {
-                    continue;
-                }
-            }
-            trial.spend_rest(budget);
-            trial.improve_chosen(budget);
-            if trial.objective() > self.objective() {
-                // the other tabs were weighed on the fit replaced here
-                *self = trial;
-                break;
+                return None;
             }
         }
+        trial.spend_rest(budget);
+        trial.improve_chosen(budget);
+        (trial.objective() > self.objective()).then_some(trial)
     }
 }
 
