@@ -137,7 +137,7 @@ fn best_chains(xs: &[usize], limit: &[f64], h: f64, opaque: bool, kmax: usize) -
             for t in 1..kmax {
                 if let Some(a) = best[t][i] {
                     let cand = a + area;
-                    if best[t + 1][j].map_or(true, |b| better(cand, b)) {
+                    if best[t + 1][j].is_none_or(|b| better(cand, b)) {
                         best[t + 1][j] = Some(cand);
                     }
                 }
@@ -202,13 +202,21 @@ fn reference_savings(map: &AlphaMap, wrap_x: bool, budgets: &[usize]) -> Vec<f64
         .map(|&k| {
             let mut best = f64::NEG_INFINITY;
             // the cover chain alone (no opaque polygon), or both sharing the bottom corners
-            for tc in 2..=k.saturating_sub(2) {
-                let Some(c) = covering[tc] else { continue };
+            for (tc, c) in covering
+                .iter()
+                .enumerate()
+                .take(k.saturating_sub(1))
+                .skip(2)
+            {
+                let Some(c) = *c else { continue };
                 best = best.max(rect - c);
-                for to in 2..=k.saturating_sub(2 + tc) {
-                    if let Some(o) = opaque[to] {
-                        best = best.max(o + rect - c);
-                    }
+                for o in opaque
+                    .iter()
+                    .take(k.saturating_sub(1 + tc))
+                    .skip(2)
+                    .flatten()
+                {
+                    best = best.max(o + rect - c);
                 }
             }
             best
