@@ -296,6 +296,69 @@ impl Fitter<'_> {
 mod tests {
     use super::*;
 
+    /// The column heights beyond a lattice line, read from the row runs,
+    /// against the cells one by one, in all four directions, on random
+    /// masks (a height counts the safe cells standing without a gap).
+    #[test]
+    fn heights_match_the_cells() {
+        let mut rng = crate::test_rng::Lcg(2122);
+        for case in 0..300 {
+            let (w, h) = (1 + rng.below(9) as usize, 1 + rng.below(9) as usize);
+            let mut m = crate::mask::Mask::new(w, h, false);
+            for y in 0..h {
+                for x in 0..w {
+                    if rng.below(10) < 7 {
+                        m.set(x, y, true);
+                    }
+                }
+            }
+            let runs = m.row_runs();
+            let set = |x: i64, y: i64| {
+                x >= 0
+                    && y >= 0
+                    && (x as usize) < w
+                    && (y as usize) < h
+                    && m.get(x as usize, y as usize)
+            };
+            let line = rng.below(h as u64 + 1) as i64;
+            let (a, b) = (
+                rng.below(w as u64 + 1) as i64,
+                rng.below(w as u64 + 1) as i64,
+            );
+            let (x0, x1) = (a.min(b), a.max(b));
+            for up in [false, true] {
+                let ours = heights_across(&runs, line, x0, x1, up);
+                for x in x0..x1 {
+                    let step = |k: i64| if up { line - 1 - k } else { line + k };
+                    let brute = (0..).take_while(|&k| set(x, step(k))).count() as i64;
+                    assert_eq!(
+                        ours[(x - x0) as usize],
+                        brute,
+                        "case {case} x {x} up {up}\n{m:?}"
+                    );
+                }
+            }
+            let line = rng.below(w as u64 + 1) as i64;
+            let (a, b) = (
+                rng.below(h as u64 + 1) as i64,
+                rng.below(h as u64 + 1) as i64,
+            );
+            let (y0, y1) = (a.min(b), a.max(b));
+            for right in [false, true] {
+                let ours = heights_along(&runs, line, y0, y1, right);
+                for y in y0..y1 {
+                    let step = |k: i64| if right { line + k } else { line - 1 - k };
+                    let brute = (0..).take_while(|&k| set(step(k), y)).count() as i64;
+                    assert_eq!(
+                        ours[(y - y0) as usize],
+                        brute,
+                        "case {case} y {y} right {right}\n{m:?}"
+                    );
+                }
+            }
+        }
+    }
+
     /// The largest rectangle under a histogram, against every pair of
     /// columns (brute force).
     #[test]

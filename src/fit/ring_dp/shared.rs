@@ -48,8 +48,9 @@ pub fn split_opaque_sharing(
             continue;
         };
         if last_total == Some(total) {
-            // the curves give nothing more for a larger count
-            break;
+            // the same rings as for the count before (a curve may have no
+            // polygon for some counts, so larger counts are still tried)
+            continue;
         }
         last_total = Some(total);
         // positions of one class are distinct (rings simple, pairwise apart)
@@ -64,4 +65,53 @@ pub fn split_opaque_sharing(
         }
     }
     best
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::outline::Point;
+
+    fn ring(points: Vec<Point>) -> Ring {
+        Ring {
+            points,
+            hole: false,
+            component: 0,
+        }
+    }
+
+    /// A worked example: the covering rings use 6 positions of a budget of
+    /// 10, two of them also corners of the opaque curve's hexagon. Counted
+    /// apart, the opaque side has 4 vertices (its square, twice-area 100);
+    /// counted once, the hexagon (150) fits: 6 + 6 - 2 = 10 positions. A
+    /// hexagon sharing nothing does not fit, and the square is kept.
+    #[test]
+    fn a_shared_position_counts_once() {
+        let square = vec![[0, 0], [10, 0], [10, 10], [0, 10]];
+        let hexagon = vec![[0, 0], [10, 0], [12, 5], [10, 10], [0, 10], [-2, 5]];
+        let item = |hex: Vec<Point>| Item {
+            curve: (0..=8)
+                .map(|k| match k {
+                    4 => Some((100, square.clone())),
+                    6 => Some((150, hex.clone())),
+                    _ => None,
+                })
+                .collect(),
+            component: 0,
+        };
+        let covering = vec![ring(vec![
+            [0, 0],
+            [10, 0],
+            [20, -5],
+            [30, 0],
+            [30, 30],
+            [-5, 30],
+        ])];
+        let shared = split_opaque_sharing(&[item(hexagon.clone())], &covering, 6, 10);
+        assert_eq!(shared.map(|s| s.0), Some(150));
+        assert_eq!(split_opaque(&[item(hexagon)], 4).map(|s| s.0), Some(100));
+        let apart: Vec<Point> = vec![[1, 1], [9, 1], [11, 5], [9, 9], [1, 9], [-1, 5]];
+        let alone = split_opaque_sharing(&[item(apart)], &covering, 6, 10);
+        assert_eq!(alone.map(|s| s.0), Some(100));
+    }
 }
