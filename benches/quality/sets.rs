@@ -225,8 +225,7 @@ fn character(seed: u64) -> AlphaMap {
         let in_arms = y > 2.0 * head + 4.0
             && y < 2.0 * head + 4.0 + arm
             && ((4.0..10.0).contains(&x) || (22.0..28.0).contains(&x));
-        let in_legs = y >= 34.0
-            && y < 46.0
+        let in_legs = (34.0..46.0).contains(&y)
             && ((11.0 - stride..15.0 - stride).contains(&x)
                 || (17.0 + stride..21.0 + stride).contains(&x));
         in_head || in_body || in_arms || in_legs
@@ -235,7 +234,7 @@ fn character(seed: u64) -> AlphaMap {
 
 /// A prop: a barrel (64 x 80, rounded) or a crate with a notched lid.
 fn prop(seed: u64) -> AlphaMap {
-    if seed % 2 == 0 {
+    if seed.is_multiple_of(2) {
         hard(64, 80, |x, y| {
             let bulge = 28.0 + 4.0 * (1.0 - ((y - 40.0) / 38.0).powi(2));
             (x - 32.0).abs() < bulge && (2.0..78.0).contains(&y)

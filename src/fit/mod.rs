@@ -34,6 +34,7 @@ mod queue;
 mod rects;
 mod refine;
 mod ring_dp;
+mod tabs;
 mod variants;
 mod vertex_edits;
 

@@ -45,6 +45,9 @@
 //! region with its holes opened).
 
 mod off_outline;
+mod shared;
+
+pub use shared::split_opaque_sharing;
 
 use super::geom::{orient, segments_touch};
 use super::Prepared;

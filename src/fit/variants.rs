@@ -108,24 +108,58 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
     let constructed = parts.map(|(items, mut options, dp_options)| {
         let greedy_best = results.iter().max_by_key(|r| r.0).map(|r| r.1.result());
         options.extend(greedy_best.as_ref().map(covering_rings));
-        [options, dp_options]
+        // the plain pairings first, then those counting shared positions
+        // once (kept apart below)
+        [(&options, false), (&dp_options, false)]
+            .into_iter()
+            .chain([(&options, true), (&dp_options, true)])
+            .collect::<Vec<_>>()
             .into_par_iter()
-            .filter_map(|options| constructed_fit(dp_safe, cover, &items, options, budget))
+            .filter_map(|(options, sharing)| {
+                constructed_fit(dp_safe, cover, &items, options, budget, sharing)
+            })
             .collect::<Vec<_>>()
     });
-    results.extend(constructed.into_iter().flatten());
-    // the first of the best, so the choice does not depend on scheduling
-    let (_, (_, mut best)) = results
-        .into_iter()
-        .enumerate()
-        .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
-        .expect("at least one variant");
+    let mut sharing = Vec::new();
+    for (obj, fitter, shares) in constructed.into_iter().flatten() {
+        if shares {
+            sharing.push((obj, fitter));
+        } else {
+            results.push((obj, fitter));
+        }
+    }
+    let (plain_obj, mut best) = first_best(results).expect("at least one variant");
     // the wider local moves (`improve`), on the chosen fit only (on every
     // variant they cost about 40% more time for a few tenths of a percent
     // on a few layers); they only gain, so no variant's result is lost
     best.improve_chosen(budget);
+    // the constructed variants that count shared positions once
+    // (`ring_dp::shared`) challenge the chosen fit only where they beat it
+    // before the local moves, and win only where they end strictly better
+    // after their own: so no cut ends worse than without them
+    if let Some((obj, mut other)) = first_best(sharing) {
+        if obj > plain_obj {
+            other.improve_chosen(budget);
+            if other.objective() > best.objective() {
+                best = other;
+            }
+        }
+    }
+    // rectangles of the safe region on straight opaque edges (`tabs`),
+    // kept only where they end strictly better
+    best.grow_tabs(budget);
     debug_assert!(best.vertices() <= budget);
     best.result()
+}
+
+/// The first of the variants with the largest objective, so the choice
+/// does not depend on scheduling.
+fn first_best(results: Vec<(i64, Fitter<'_>)>) -> Option<(i64, Fitter<'_>)> {
+    results
+        .into_iter()
+        .enumerate()
+        .max_by_key(|(i, (obj, _))| (*obj, std::cmp::Reverse(*i)))
+        .map(|(_, r)| r)
 }
 
 /// Budgets up to which the per-ring dynamic program also runs (its cost
@@ -210,22 +244,27 @@ fn constructed_parts(
     Some((items, options, dp_options))
 }
 
-/// The dynamic program's opaque rings with the best of the covering
-/// options (by objective: opaque area minus covering area), refined by the
-/// fitter's insertions, exchanges and lattice moves.
-fn constructed_fit<'a>(
-    safe: &'a Prepared,
-    cover: &'a Prepared,
+/// The dynamic program's opaque rings paired with the best of the covering
+/// options (by objective: opaque area minus covering area), with that
+/// objective. `sharing`: the opaque side may use the positions the covering
+/// rings leave of the budget plus those it shares with them
+/// ([`super::ring_dp::split_opaque_sharing`]); else the budget minus the
+/// covering rings' count.
+fn best_pairing(
     items: &[super::ring_dp::Item],
-    options: Vec<CoverOption>,
+    options: &[CoverOption],
     budget: usize,
-) -> Option<(i64, Fitter<'a>)> {
-    let mut best: Option<(i64, Vec<Ring>, Vec<Ring>)> = None;
+    sharing: bool,
+) -> Option<(i64, Vec<Ring>, Vec<Ring>)> {
+    let mut best: Option<(i64, Vec<Ring>, &[Ring])> = None;
     for (covering, used) in options {
         let cover_area2: i64 = covering.iter().map(|r| geom::twice_area(&r.points)).sum();
-        let Some((opaque_area2, opaque)) =
-            super::ring_dp::split_opaque(items, budget.saturating_sub(used))
-        else {
+        let split = if sharing {
+            super::ring_dp::split_opaque_sharing(items, covering, *used, budget)
+        } else {
+            super::ring_dp::split_opaque(items, budget.saturating_sub(*used))
+        };
+        let Some((opaque_area2, opaque)) = split else {
             continue;
         };
         let objective = opaque_area2 - cover_area2;
@@ -233,14 +272,34 @@ fn constructed_fit<'a>(
             best = Some((objective, opaque, covering));
         }
     }
-    let (_, opaque, covering) = best?;
+    best.map(|(o, opaque, covering)| (o, opaque, covering.to_vec()))
+}
+
+/// The best pairing ([`best_pairing`]) refined by the fitter's insertions,
+/// exchanges and lattice moves, with `sharing` passed back. With `sharing`,
+/// `None` where it pairs the same rings as without.
+fn constructed_fit<'a>(
+    safe: &'a Prepared,
+    cover: &'a Prepared,
+    items: &[super::ring_dp::Item],
+    options: &[CoverOption],
+    budget: usize,
+    sharing: bool,
+) -> Option<(i64, Fitter<'a>, bool)> {
+    let (objective, opaque, covering) = best_pairing(items, options, budget, sharing)?;
+    if sharing {
+        let plain = best_pairing(items, options, budget, false);
+        if plain.is_some_and(|p| p.0 == objective && p.1 == opaque && p.2 == covering) {
+            return None;
+        }
+    }
     let mut fitter = Fitter::from_rings(safe, cover, opaque, covering);
     if fitter.vertices() > budget {
         return None;
     }
     fitter.budget = budget;
     fitter.spend_rest(budget);
-    Some((fitter.objective(), fitter))
+    Some((fitter.objective(), fitter, sharing))
 }
 
 /// Whether a vertex of the safe region's exact outline lies on the
