@@ -127,14 +127,22 @@ impl CellRows {
     /// exact, O(rows crossed).
     pub fn holds_segment(&self, a: Point, b: Point) -> bool {
         if a[1] == b[1] {
-            // on lattice line y: covered by the cells of rows y - 1 and y
+            // on lattice line y: covered by the cells of rows y - 1 and y;
+            // the two rows' intervals are walked in sorted order (a merge
+            // of the two sorted lists, no allocation)
             let (x0, x1) = (a[0].min(b[0]), a[0].max(b[0]));
-            let mut iv: Vec<[i64; 2]> = self.row(a[1] - 1).to_vec();
-            iv.extend_from_slice(self.row(a[1]));
-            iv.sort_unstable();
+            let (ra, rb) = (self.row(a[1] - 1), self.row(a[1]));
+            let (mut ia, mut ib) = (0, 0);
             let mut reach = x0;
             let mut started = false;
-            for r in iv {
+            while ia < ra.len() || ib < rb.len() {
+                let r = if ib >= rb.len() || (ia < ra.len() && ra[ia] <= rb[ib]) {
+                    ia += 1;
+                    ra[ia - 1]
+                } else {
+                    ib += 1;
+                    rb[ib - 1]
+                };
                 if r[0] <= reach && r[1] >= reach {
                     started = true;
                     reach = reach.max(r[1]);
@@ -149,18 +157,31 @@ impl CellRows {
         }
         let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
         let (den, dx) = (q[1] - p[1], q[0] - p[0]);
+        // x on line y as `xq + xr / den` (0 <= xr < den), stepped from line
+        // to line without a division; over row y the span runs from the
+        // floor of the smaller to the ceiling of the larger of the x on
+        // lines y and y + 1
+        let (dq, dr) = (dx.div_euclid(den), dx.rem_euclid(den));
+        let (mut xq, mut xr) = (p[0], 0);
         for y in p[1]..q[1] {
-            // x on lines y and y + 1, as num / den
-            let n0 = p[0] * den + (y - p[1]) * dx;
-            let n1 = n0 + dx;
-            let (lo, hi) = (n0.min(n1), n0.max(n1));
-            let flo = lo.div_euclid(den);
-            let chi = -((-hi).div_euclid(den));
+            let (mut nq, mut nr) = (xq + dq, xr + dr);
+            if nr >= den {
+                nr -= den;
+                nq += 1;
+            }
+            let flo = xq.min(nq);
+            let chi = (xq + (xr != 0) as i64).max(nq + (nr != 0) as i64);
             let row = self.row(y);
-            let i = row.partition_point(|r| r[1] < chi);
+            let i = if row.len() == 1 {
+                (row[0][1] < chi) as usize
+            } else {
+                row.partition_point(|r| r[1] < chi)
+            };
             if i >= row.len() || row[i][0] > flo {
                 return false;
             }
+            xq = nq;
+            xr = nr;
         }
         true
     }
@@ -341,8 +362,22 @@ fn curve_over(
     // best[m * n + j]: best sum over paths start -> .. -> u_j with m edges
     let mut best = vec![worst; kmax * n];
     let mut from = vec![u16::MAX; kmax * n];
+    // per start, the candidates in the order walked from it (`rv[j]` is
+    // `u_j`) and the chords into each `u_j` (`into[j * n + i]`: whether
+    // u_i -> u_j is valid), so the inner loop reads memory in order
+    let mut rv: Vec<Point> = vec![[0, 0]; n];
+    let mut into = vec![false; n * n];
     for &s in &starts {
         let u = |j: usize| (s + j) % n;
+        for (j, p) in rv.iter_mut().enumerate() {
+            *p = v[u(j)];
+        }
+        for j in 0..n {
+            let uj = u(j);
+            for (i, ok) in into[j * n..(j + 1) * n].iter_mut().enumerate() {
+                *ok = valid[u(i) * n + uj];
+            }
+        }
         best.fill(worst);
         for j in 1..n {
             if valid[s * n + u(j)] {
@@ -351,21 +386,16 @@ fn curve_over(
             }
         }
         for m in 2..kmax {
+            let (done, rest) = best.split_at_mut(m * n);
+            let prev_row = &done[(m - 1) * n..];
             for j in m..n {
-                let uj = u(j);
-                let (mut b, mut f) = (worst, u16::MAX);
-                for i in m - 1..j {
-                    let prev = best[(m - 1) * n + i];
-                    if prev == worst || !valid[u(i) * n + uj] {
-                        continue;
-                    }
-                    let c = prev + cross(v[u(i)], v[uj]);
-                    if better(c, b) {
-                        b = c;
-                        f = i as u16;
-                    }
-                }
-                best[m * n + j] = b;
+                let col = &into[j * n..j * n + j];
+                let (b, f) = if maximise {
+                    relax::<true>(prev_row, col, &rv, m - 1, j, worst)
+                } else {
+                    relax::<false>(prev_row, col, &rv, m - 1, j, worst)
+                };
+                rest[j] = b;
                 from[m * n + j] = f;
             }
         }
@@ -402,6 +432,35 @@ fn curve_over(
         }
     }
     curve
+}
+
+/// The best path sum into `rv[j]` over one more chord from `rv[i]`,
+/// `i` in `lo..j` (`prev[i]`: the best sum into `rv[i]`, `worst` for none;
+/// `col[i]`: whether the chord `rv[i]` -> `rv[j]` is valid), with the `i`
+/// it came from (the first of equals); `MAX`: largest, else smallest.
+#[inline]
+fn relax<const MAX: bool>(
+    prev: &[i64],
+    col: &[bool],
+    rv: &[Point],
+    lo: usize,
+    j: usize,
+    worst: i64,
+) -> (i64, u16) {
+    let (mut b, mut f) = (worst, u16::MAX);
+    let vj = rv[j];
+    for i in lo..j {
+        let p = prev[i];
+        if p == worst || !col[i] {
+            continue;
+        }
+        let c = p + cross(rv[i], vj);
+        if (MAX && c > b) || (!MAX && c < b) {
+            b = c;
+            f = i as u16;
+        }
+    }
+    (b, f)
 }
 
 /// One opaque ring to fit: its area curve.
