@@ -38,7 +38,7 @@ mod variants;
 mod vertex_edits;
 
 pub use holes::{open_holes, open_holes_in_runs};
-pub use variants::{fit_outlines, prepare_cover};
+pub use variants::{fit_outlines, prepare_cover, LayerFit};
 
 pub use geom::orient;
 

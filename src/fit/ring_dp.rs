@@ -535,21 +535,91 @@ pub fn split_opaque(items: &[Item], budget: usize) -> Option<(i64, Vec<Ring>)> {
 /// vertices each (holes are left out: a covering island without its holes
 /// only covers more), or `None` when there are more than `max_islands`.
 pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option<Vec<Item>> {
+    let parts = cover_curve_parts(cover, kmax, max_islands)?;
+    Some(parts.iter().map(|p| p.up_to(kmax)).collect())
+}
+
+/// A covering island's two curves before they are joined: over candidates
+/// on its outline (only where its convex hull has at most the largest
+/// count asked of corners) and off it. Made once for the largest count a
+/// layer's budgets ask, then cut back to each budget ([`CoverParts::up_to`]).
+pub struct CoverParts {
+    hull_len: usize,
+    on: Vec<Option<(i64, Vec<Point>)>>,
+    off: Vec<Option<(i64, Vec<Point>)>>,
+    component: u32,
+}
+
+impl CoverParts {
+    /// The island's covering curve up to `kmax` (at most the count the
+    /// parts were made for): exactly what [`cover_curves`] gives for
+    /// `kmax`, as a count's best polygon does not depend on the largest
+    /// count asked.
+    pub fn up_to(&self, kmax: usize) -> Item {
+        // a polygon with its corners on the outline that holds the island
+        // keeps every corner of the island's convex hull: where the hull
+        // has more corners than `kmax`, no count is reachable with
+        // candidates on the outline, and only the candidates off the
+        // outline are tried
+        let mut curve = if self.hull_len <= kmax {
+            cut_back(&self.on, kmax)
+        } else {
+            Vec::new()
+        };
+        let off = cut_back(&self.off, kmax);
+        if curve.len() < off.len() {
+            curve.resize(off.len(), None);
+        }
+        for (k, c) in off.into_iter().enumerate() {
+            let Some((a2, _)) = &c else { continue };
+            if curve[k].as_ref().is_none_or(|(b2, _)| a2 < b2) {
+                curve[k] = c;
+            }
+        }
+        Item {
+            curve,
+            component: self.component,
+        }
+    }
+}
+
+/// A curve made for a larger count, cut back to what [`curve_over`] gives
+/// for `kmax` (its counts up to `kmax` do not depend on the largest count
+/// asked: each count's polygon is found apart).
+fn cut_back(curve: &[Option<(i64, Vec<Point>)>], kmax: usize) -> Vec<Option<(i64, Vec<Point>)>> {
+    curve[..curve.len().min(kmax + 1)].to_vec()
+}
+
+impl Item {
+    /// The curve cut back to `kmax` vertices: exactly the item
+    /// [`opaque_curves`] gives for `kmax` when this one was made for a
+    /// larger count.
+    pub fn up_to(&self, kmax: usize) -> Item {
+        Item {
+            curve: cut_back(&self.curve, kmax),
+            component: self.component,
+        }
+    }
+}
+
+/// [`cover_curves`]' two curves per island, made for `kmax` (cut back to
+/// any smaller count by [`CoverParts::up_to`]).
+pub fn cover_curve_parts(
+    cover: &Prepared,
+    kmax: usize,
+    max_islands: usize,
+) -> Option<Vec<CoverParts>> {
     let outer: Vec<&Ring> = cover.rings.iter().filter(|r| !r.hole).collect();
     if outer.is_empty() || outer.len() > max_islands {
         return None;
     }
-    // a polygon with its corners on the outline that holds the island
-    // keeps every corner of the island's convex hull: where the hull has
-    // more corners than `kmax`, no count is reachable with candidates on
-    // the outline, and only the candidates off the outline are tried
     let outside = CellRows::outside(&cover.runs);
     Some(
         outer
             .iter()
             .map(|r| {
                 let hull = super::island_edits::convex_hull(r.points.clone());
-                let mut curve = if hull.len() <= kmax {
+                let on = if hull.len() <= kmax {
                     ring_curve(&r.points, &outside, false, kmax)
                 } else {
                     Vec::new()
@@ -558,17 +628,10 @@ pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option
                 let sum = hull.iter().fold([0, 0], |s, p| [s[0] + p[0], s[1] + p[1]]);
                 let around = Some((sum, hull.len() as i64));
                 let off = curve_over(&off, &outside, false, kmax, OFF_OUTLINE_STARTS, around);
-                if curve.len() < off.len() {
-                    curve.resize(off.len(), None);
-                }
-                for (k, c) in off.into_iter().enumerate() {
-                    let Some((a2, _)) = &c else { continue };
-                    if curve[k].as_ref().is_none_or(|(b2, _)| a2 < b2) {
-                        curve[k] = c;
-                    }
-                }
-                Item {
-                    curve,
+                CoverParts {
+                    hull_len: hull.len(),
+                    on,
+                    off,
                     component: r.component,
                 }
             })
