@@ -12,7 +12,7 @@
 //! has at most `budget` distinct vertex positions; the choice among
 //! variants does not depend on thread scheduling.
 
-use super::{geom, open_holes_in_runs, Fit, Fitter, Prepared};
+use super::{geom, open_holes_in_runs, Fit, Fitter, Prepared, SharedAnswers};
 use crate::mask::RowRuns;
 use crate::outline::Ring;
 use rayon::prelude::*;
@@ -44,6 +44,8 @@ pub struct LayerFit<'c> {
     opened: Option<Prepared>,
     shared: bool,
     curves: Option<Curves>,
+    /// The tall triangles' containment answers, shared by every fitter.
+    answers: SharedAnswers,
 }
 
 /// The dynamic program's curves made once for a layer's budgets.
@@ -80,6 +82,7 @@ impl<'c> LayerFit<'c> {
             opened,
             shared,
             curves: None,
+            answers: SharedAnswers::default(),
         };
         // the curves are made here only when more than one budget uses
         // them (a single fit makes them beside its greedy edits)
@@ -125,10 +128,13 @@ fn fit_variants(layer: &LayerFit, budget: usize) -> Fit {
         .par_iter()
         .map(|&(safe, credit)| {
             if credit {
-                let (capped, uncapped) = Fitter::fit_greedy_both(safe, cover, true, budget);
+                let answers = Some(&layer.answers);
+                let (capped, uncapped) =
+                    Fitter::fit_greedy_both_sharing(safe, cover, true, budget, answers);
                 std::iter::once(capped).chain(uncapped).collect::<Vec<_>>()
             } else {
                 let mut fitter = Fitter::new(safe, cover);
+                fitter.share_answers(&layer.answers);
                 fitter.set_share_credit(false);
                 fitter.fit_greedy(budget);
                 vec![fitter]
@@ -163,7 +169,7 @@ fn fit_variants(layer: &LayerFit, budget: usize) -> Fit {
                 })
                 .collect()
         },
-        || constructed_parts(dp_safe, cover, budget, layer.curves.as_ref()),
+        || constructed_parts(dp_safe, cover, budget, layer),
     );
     // the constructed rings, paired with the covering rings of the greedy
     // edits (also the best greedy fit's) and, apart, with the covering
@@ -174,7 +180,9 @@ fn fit_variants(layer: &LayerFit, budget: usize) -> Fit {
         options.extend(greedy_best.as_ref().map(covering_rings));
         [options, dp_options]
             .into_par_iter()
-            .filter_map(|options| constructed_fit(dp_safe, cover, &items, options, budget))
+            .filter_map(|options| {
+                constructed_fit(dp_safe, cover, &items, options, budget, &layer.answers)
+            })
             .collect::<Vec<_>>()
     });
     results.extend(constructed.into_iter().flatten());
@@ -240,7 +248,7 @@ fn constructed_parts(
     safe: &Prepared,
     cover: &Prepared,
     budget: usize,
-    made: Option<&Curves>,
+    layer: &LayerFit,
 ) -> Option<(
     Vec<super::ring_dp::Item>,
     Vec<CoverOption>,
@@ -249,6 +257,7 @@ fn constructed_parts(
     if budget > CONSTRUCTED_MAX_BUDGET {
         return None;
     }
+    let made = layer.curves.as_ref();
     let items = match made {
         Some(c) => c.opaque.as_ref()?.iter().map(|i| i.up_to(budget)).collect(),
         None => super::ring_dp::opaque_curves(safe, budget)?,
@@ -261,6 +270,7 @@ fn constructed_parts(
     shares.sort_unstable_by(|a, b| b.cmp(a));
     shares.dedup();
     let mut alone = Fitter::from_rings(safe, cover, Vec::new(), cover.rings.clone());
+    alone.share_answers(&layer.answers);
     let mut options = Vec::new();
     for share in shares {
         alone.fit_greedy(share);
@@ -294,6 +304,7 @@ fn constructed_fit<'a>(
     items: &[super::ring_dp::Item],
     options: Vec<CoverOption>,
     budget: usize,
+    answers: &'a SharedAnswers,
 ) -> Option<(i64, Fitter<'a>)> {
     let mut best: Option<(i64, Vec<Ring>, Vec<Ring>)> = None;
     for (covering, used) in options {
@@ -310,6 +321,7 @@ fn constructed_fit<'a>(
     }
     let (_, opaque, covering) = best?;
     let mut fitter = Fitter::from_rings(safe, cover, opaque, covering);
+    fitter.share_answers(answers);
     if fitter.vertices() > budget {
         return None;
     }
