@@ -5,7 +5,7 @@
 use crate::outline::Point;
 
 /// Side of a bucket, half-texel units.
-pub const CELL: i64 = 32;
+pub const CELL: i64 = 64;
 
 /// Vertex ids and edges (pairs of vertex ids) filed by bucket, each with
 /// its position(s), so a query can pass over entries that cannot meet it
