@@ -161,6 +161,11 @@ impl CellRows {
         // to line without a division; over row y the span runs from the
         // floor of the smaller to the ceiling of the larger of the x on
         // lines y and y + 1
+        // the middle row first: a chord that leaves the region mostly does
+        // so away from its ends (the answer is the same: every row must hold)
+        if den > 8 && !self.holds_row(p, den, dx, p[1] + den / 2) {
+            return false;
+        }
         let (dq, dr) = (dx.div_euclid(den), dx.rem_euclid(den));
         let (mut xq, mut xr) = (p[0], 0);
         for y in p[1]..q[1] {
@@ -184,6 +189,23 @@ impl CellRows {
             xr = nr;
         }
         true
+    }
+}
+
+impl CellRows {
+    /// Whether row `y` holds the part of the chord from `p` (its upper
+    /// end) with `den` rows and `dx` columns over that row: the span from
+    /// the floor of its smaller to the ceiling of its larger `x` on lines
+    /// `y` and `y + 1` lies in one interval.
+    fn holds_row(&self, p: Point, den: i64, dx: i64, y: i64) -> bool {
+        let n0 = p[0] * den + (y - p[1]) * dx;
+        let n1 = n0 + dx;
+        let (lo, hi) = (n0.min(n1), n0.max(n1));
+        let flo = lo.div_euclid(den);
+        let chi = -((-hi).div_euclid(den));
+        let row = self.row(y);
+        let i = row.partition_point(|r| r[1] < chi);
+        i < row.len() && row[i][0] <= flo
     }
 }
 
@@ -363,21 +385,24 @@ fn curve_over(
     let mut best = vec![worst; kmax * n];
     let mut from = vec![u16::MAX; kmax * n];
     // per start, the candidates in the order walked from it (`rv[j]` is
-    // `u_j`) and the chords into each `u_j` (`into[j * n + i]`: whether
-    // u_i -> u_j is valid), so the inner loop reads memory in order
+    // `u_j`) and the valid chords into each `u_j` (`preds[at[j]..at[j +
+    // 1]]`: the i < j with u_i -> u_j valid, ascending), so the inner loop
+    // reads memory in order and only over valid chords
     let mut rv: Vec<Point> = vec![[0, 0]; n];
-    let mut into = vec![false; n * n];
+    let mut preds: Vec<u16> = Vec::with_capacity(n * n / 2);
+    let mut at = vec![0usize; n + 1];
     for &s in &starts {
         let u = |j: usize| (s + j) % n;
         for (j, p) in rv.iter_mut().enumerate() {
             *p = v[u(j)];
         }
+        preds.clear();
         for j in 0..n {
             let uj = u(j);
-            for (i, ok) in into[j * n..(j + 1) * n].iter_mut().enumerate() {
-                *ok = valid[u(i) * n + uj];
-            }
+            at[j] = preds.len();
+            preds.extend((0..j).filter(|&i| valid[u(i) * n + uj]).map(|i| i as u16));
         }
+        at[n] = preds.len();
         best.fill(worst);
         for j in 1..n {
             if valid[s * n + u(j)] {
@@ -389,11 +414,12 @@ fn curve_over(
             let (done, rest) = best.split_at_mut(m * n);
             let prev_row = &done[(m - 1) * n..];
             for j in m..n {
-                let col = &into[j * n..j * n + j];
+                let col = &preds[at[j]..at[j + 1]];
+                let col = &col[col.partition_point(|&i| (i as usize) < m - 1)..];
                 let (b, f) = if maximise {
-                    relax::<true>(prev_row, col, &rv, m - 1, j, worst)
+                    relax::<true>(prev_row, col, &rv, j, worst)
                 } else {
-                    relax::<false>(prev_row, col, &rv, m - 1, j, worst)
+                    relax::<false>(prev_row, col, &rv, j, worst)
                 };
                 rest[j] = b;
                 from[m * n + j] = f;
@@ -434,24 +460,24 @@ fn curve_over(
     curve
 }
 
-/// The best path sum into `rv[j]` over one more chord from `rv[i]`,
-/// `i` in `lo..j` (`prev[i]`: the best sum into `rv[i]`, `worst` for none;
-/// `col[i]`: whether the chord `rv[i]` -> `rv[j]` is valid), with the `i`
+/// The best path sum into `rv[j]` over one more chord from `rv[i]`, `i`
+/// in `col` (ascending: the `i` whose chord `rv[i]` -> `rv[j]` is valid;
+/// `prev[i]`: the best sum into `rv[i]`, `worst` for none), with the `i`
 /// it came from (the first of equals); `MAX`: largest, else smallest.
 #[inline]
 fn relax<const MAX: bool>(
     prev: &[i64],
-    col: &[bool],
+    col: &[u16],
     rv: &[Point],
-    lo: usize,
     j: usize,
     worst: i64,
 ) -> (i64, u16) {
     let (mut b, mut f) = (worst, u16::MAX);
     let vj = rv[j];
-    for i in lo..j {
+    for &i in col {
+        let i = i as usize;
         let p = prev[i];
-        if p == worst || !col[i] {
+        if p == worst {
             continue;
         }
         let c = p + cross(rv[i], vj);
