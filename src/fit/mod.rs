@@ -211,20 +211,24 @@ pub struct Fitter<'a> {
 /// its memory on large layers.
 #[derive(Default)]
 pub(crate) struct SharedAnswers {
-    map: std::sync::Mutex<HashMap<([Point; 3], u8, usize), bool, foldhash::fast::FixedState>>,
+    map: std::sync::Mutex<HashMap<AnswerKey, bool, foldhash::fast::FixedState>>,
 }
+
+/// A kept answer's key: the triangle, the test (0: inside the safe region,
+/// 1: clear of the must-cover region) and the address of the region's runs.
+type AnswerKey = ([Point; 3], u8, usize);
 
 impl SharedAnswers {
     /// Entries kept at most (about 20 MiB).
     const MAX: usize = 1 << 18;
-    fn get(&self, key: &([Point; 3], u8, usize)) -> Option<bool> {
+    fn get(&self, key: &AnswerKey) -> Option<bool> {
         self.map
             .lock()
             .expect("no panic holds it")
             .get(key)
             .copied()
     }
-    fn insert(&self, key: ([Point; 3], u8, usize), answer: bool) {
+    fn insert(&self, key: AnswerKey, answer: bool) {
         let mut map = self.map.lock().expect("no panic holds it");
         if map.len() < Self::MAX {
             map.insert(key, answer);

@@ -397,9 +397,9 @@ fn curve_over(
             *p = v[u(j)];
         }
         preds.clear();
-        for j in 0..n {
+        for (j, start) in at.iter_mut().take(n).enumerate() {
             let uj = u(j);
-            at[j] = preds.len();
+            *start = preds.len();
             preds.extend((0..j).filter(|&i| valid[u(i) * n + uj]).map(|i| i as u16));
         }
         at[n] = preds.len();

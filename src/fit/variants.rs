@@ -33,8 +33,8 @@ pub fn fit_outlines(safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
 /// A layer's fitting work that does not depend on the budget, done once
 /// and shared by the fits at each of its budgets: the safe region prepared
 /// (and with its holes opened), whether it shares a position with the
-/// must-cover outline, and, when several budgets up to
-/// [`CONSTRUCTED_MAX_BUDGET`] are asked, the per-ring dynamic program's
+/// must-cover outline, and, when several budgets up to 32
+/// (`CONSTRUCTED_MAX_BUDGET`) are asked, the per-ring dynamic program's
 /// curves for the largest of them (a count's polygon does not depend on
 /// the largest count asked, so each budget's fit is exactly the one made
 /// alone).
