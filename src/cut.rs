@@ -21,7 +21,7 @@
 
 use crate::alpha::{must_cover_sampled, safe_opaque_sampled, AlphaMap, RegionStats, Sampled};
 use crate::check::check_mesh_sampled;
-use crate::fit::{fit_outlines, prepare_cover, Class, Fit, Prepared};
+use crate::fit::{fit_outlines, prepare_cover, Class, Fit, LayerFit, Prepared};
 use crate::mask::RowRuns;
 use crate::mesh::{LayerMesh, MeshStats, TriangleList, Winding, FORMAT, VERSION};
 use crate::outline::Point;
@@ -255,11 +255,13 @@ pub fn cut_budgets(
 ) -> Vec<CutOutcome> {
     use rayon::prelude::*;
     let regions = prepare_regions(sampled, base);
+    // what the fit does not owe to the budget is done once (`LayerFit`)
+    let layer_fit = LayerFit::new(regions.safe, &regions.cover, budgets);
     budgets
         .par_iter()
         .map(|&budget| {
             let settings = CutSettings { budget, ..*base };
-            let fit = fit_outlines(regions.safe.clone(), &regions.cover, budget);
+            let fit = layer_fit.fit(budget);
             let outlines = Outlines {
                 fit,
                 stats: regions.stats,

@@ -71,63 +71,53 @@ pub fn twice_area(poly: &[Point]) -> i64 {
 /// division per line), rounded down for the span's left end and up for its
 /// right end.
 pub fn triangle_row_spans(tri: &[Point; 3], mut f: impl FnMut(i64, i64, i64) -> bool) -> bool {
-    struct Step {
-        y0: i64,
-        y1: i64,
-        q: i64,
-        r: i64,
-        dq: i64,
-        dr: i64,
-        den: i64,
+    // the corners from top to bottom: between the top and bottom lines a
+    // line crosses the long edge (top to bottom) and one short edge, or
+    // passes through the middle corner
+    let mut v = *tri;
+    if v[0][1] > v[1][1] {
+        v.swap(0, 1);
     }
-    let mut edges: [Option<Step>; 3] = [None, None, None];
-    for (i, e) in edges.iter_mut().enumerate() {
-        let (a, b) = (tri[i], tri[(i + 1) % 3]);
-        if a[1] == b[1] {
-            continue;
-        }
-        let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
-        let (den, dx) = (q[1] - p[1], q[0] - p[0]);
-        // the crossing of line p.y + 1: x = (p.x * den + dx) / den
-        let num = p[0] * den + dx;
-        *e = Some(Step {
-            y0: p[1],
-            y1: q[1],
-            q: num.div_euclid(den),
-            r: num.rem_euclid(den),
-            dq: dx.div_euclid(den),
-            dr: dx.rem_euclid(den),
-            den,
-        });
+    if v[1][1] > v[2][1] {
+        v.swap(1, 2);
     }
-    let ymin = tri.iter().map(|p| p[1]).min().expect("three points");
-    let ymax = tri.iter().map(|p| p[1]).max().expect("three points");
-    // the extent on line `yl`: vertices on it and edges crossing it
-    let mut line = |yl: i64| -> (i64, i64) {
-        let (mut lo, mut hi) = (i64::MAX, i64::MIN);
-        for p in tri {
-            if p[1] == yl {
-                lo = lo.min(p[0]);
-                hi = hi.max(p[0]);
-            }
-        }
-        for s in edges.iter_mut().flatten() {
-            if s.y0 < yl && yl < s.y1 {
-                lo = lo.min(s.q);
-                hi = hi.max(s.q + (s.r != 0) as i64);
-                s.q += s.dq;
-                s.r += s.dr;
-                if s.r >= s.den {
-                    s.r -= s.den;
-                    s.q += 1;
-                }
-            }
-        }
-        (lo, hi)
+    if v[0][1] > v[1][1] {
+        v.swap(0, 1);
+    }
+    let [a, b, c] = v;
+    if a[1] == c[1] {
+        return true;
+    }
+    // the extent on the top line: its corners
+    let mut above = if b[1] == a[1] {
+        (a[0].min(b[0]), a[0].max(b[0]))
+    } else {
+        (a[0], a[0])
     };
-    let mut above = line(ymin);
-    for y in ymin..ymax {
-        let below = line(y + 1);
+    let mut long = EdgeStep::new(a, c);
+    let mut short = if a[1] < b[1] {
+        EdgeStep::new(a, b)
+    } else {
+        EdgeStep::new(b, c)
+    };
+    for y in a[1]..c[1] {
+        let yl = y + 1;
+        let below = if yl == c[1] {
+            if b[1] == c[1] {
+                (c[0].min(b[0]), c[0].max(b[0]))
+            } else {
+                (c[0], c[0])
+            }
+        } else {
+            let (l0, l1) = long.take();
+            let (s0, s1) = if yl == b[1] {
+                short = EdgeStep::new(b, c);
+                (b[0], b[0])
+            } else {
+                short.take()
+            };
+            (l0.min(s0), l1.max(s1))
+        };
         let (lo, hi) = (above.0.min(below.0), above.1.max(below.1));
         if lo < hi && !f(y, lo, hi) {
             return false;
@@ -135,6 +125,47 @@ pub fn triangle_row_spans(tri: &[Point; 3], mut f: impl FnMut(i64, i64, i64) -> 
         above = below;
     }
     true
+}
+
+/// An edge's crossings with successive lattice lines, from the line below
+/// its upper end: `x = q + r / den` (0 <= r < den), stepped by
+/// `dq + dr / den` per line (no division per line).
+struct EdgeStep {
+    q: i64,
+    r: i64,
+    dq: i64,
+    dr: i64,
+    den: i64,
+}
+
+impl EdgeStep {
+    /// The edge from `p` down to `q` (`p[1] < q[1]`; any other pair gives
+    /// a step that is never taken).
+    #[inline]
+    fn new(p: Point, q: Point) -> EdgeStep {
+        let (den, dx) = ((q[1] - p[1]).max(1), q[0] - p[0]);
+        // the crossing of line p.y + 1: x = (p.x * den + dx) / den
+        let num = p[0] * den + dx;
+        EdgeStep {
+            q: num.div_euclid(den),
+            r: num.rem_euclid(den),
+            dq: dx.div_euclid(den),
+            dr: dx.rem_euclid(den),
+            den,
+        }
+    }
+    /// The crossing's floor and ceiling on this line; then on to the next.
+    #[inline]
+    fn take(&mut self) -> (i64, i64) {
+        let out = (self.q, self.q + (self.r != 0) as i64);
+        self.q += self.dq;
+        self.r += self.dr;
+        if self.r >= self.den {
+            self.r -= self.den;
+            self.q += 1;
+        }
+        out
+    }
 }
 
 #[cfg(test)]

@@ -5,7 +5,7 @@
 use crate::outline::Point;
 
 /// Side of a bucket, half-texel units.
-pub const CELL: i64 = 32;
+pub const CELL: i64 = 64;
 
 /// Vertex ids and edges (pairs of vertex ids) filed by bucket, each with
 /// its position(s), so a query can pass over entries that cannot meet it
@@ -90,7 +90,8 @@ impl BucketGrid {
         for cx in cx0..=cx1 {
             // the segment's y extent over x in [xa, xb] (closed), widened to
             // whole lattice units: floor of the lower end, ceiling of the upper
-            let (ya, yb) = if dx == 0 {
+            // (over one bucket column: its end points' extent)
+            let (ya, yb) = if dx == 0 || cx0 == cx1 {
                 (p[1].min(q[1]), p[1].max(q[1]))
             } else {
                 let xa = (cx * CELL).max(p[0]);
@@ -183,8 +184,13 @@ impl BucketGrid {
         let n = poly.len();
         for cy in cy0..=cy1 {
             let (y0, y1) = ((cy * CELL).max(ymin), ((cy + 1) * CELL).min(ymax));
-            let (mut xlo, mut xhi) = (i64::MAX, i64::MIN);
-            for i in 0..n {
+            // over one bucket row: the polygon's whole extent
+            let (mut xlo, mut xhi) = if cy0 == cy1 {
+                (bx[0], bx[2])
+            } else {
+                (i64::MAX, i64::MIN)
+            };
+            for i in (0..n).filter(|_| cy0 != cy1) {
                 let (a, b) = (poly[i], poly[(i + 1) % n]);
                 let (p, q) = if a[1] <= b[1] { (a, b) } else { (b, a) };
                 if q[1] < y0 || p[1] > y1 {

@@ -39,7 +39,7 @@ mod variants;
 mod vertex_edits;
 
 pub use holes::{open_holes, open_holes_in_runs};
-pub use variants::{fit_outlines, prepare_cover};
+pub use variants::{fit_outlines, prepare_cover, LayerFit};
 
 pub use geom::orient;
 
@@ -200,6 +200,41 @@ pub struct Fitter<'a> {
     /// Containment answers of tall triangles ([`Fitter::triangle_allowed`]):
     /// the regions never change, so an answer holds for the whole fit.
     triangle_answers: std::cell::RefCell<PointMap3<bool>>,
+    /// The same answers shared by every fitter of a layer (all variants,
+    /// all budgets: [`LayerFit`]), used instead of `triangle_answers`.
+    shared_answers: Option<&'a SharedAnswers>,
+}
+
+/// Containment answers of tall triangles shared by every fitter of one
+/// layer's regions (a cache: no result depends on it, as the regions never
+/// change), keyed by the triangle, the test and the region tested. It
+/// stops taking new answers at [`SharedAnswers::MAX`] entries, to bound
+/// its memory on large layers.
+#[derive(Default)]
+pub(crate) struct SharedAnswers {
+    map: std::sync::Mutex<HashMap<AnswerKey, bool, foldhash::fast::FixedState>>,
+}
+
+/// A kept answer's key: the triangle, the test (0: inside the safe region,
+/// 1: clear of the must-cover region) and the address of the region's runs.
+type AnswerKey = ([Point; 3], u8, usize);
+
+impl SharedAnswers {
+    /// Entries kept at most (about 20 MiB).
+    const MAX: usize = 1 << 18;
+    fn get(&self, key: &AnswerKey) -> Option<bool> {
+        self.map
+            .lock()
+            .expect("no panic holds it")
+            .get(key)
+            .copied()
+    }
+    fn insert(&self, key: AnswerKey, answer: bool) {
+        let mut map = self.map.lock().expect("no panic holds it");
+        if map.len() < Self::MAX {
+            map.insert(key, answer);
+        }
+    }
 }
 
 /// A map keyed by a triangle's three lattice points and a class.
@@ -243,6 +278,7 @@ impl<'a> Fitter<'a> {
             watch_cap: false,
             cap_diverged: false,
             triangle_answers: Default::default(),
+            shared_answers: None,
         };
         let rects = &opaque.rects;
         for (class, rings) in [(Class::Opaque, opaque_rings), (Class::Cover, cover_rings)] {
@@ -396,8 +432,21 @@ impl<'a> Fitter<'a> {
         share_credit: bool,
         budget: usize,
     ) -> (Fitter<'a>, Option<Fitter<'a>>) {
+        Fitter::fit_greedy_both_sharing(opaque, cover, share_credit, budget, None)
+    }
+
+    /// [`Fitter::fit_greedy_both`], the fitters keeping their containment
+    /// answers in `answers` (shared with the layer's other fitters).
+    pub(crate) fn fit_greedy_both_sharing(
+        opaque: &'a Prepared,
+        cover: &'a Prepared,
+        share_credit: bool,
+        budget: usize,
+        answers: Option<&'a SharedAnswers>,
+    ) -> (Fitter<'a>, Option<Fitter<'a>>) {
         assert!(budget >= 4, "a budget below 4 vertices cannot hold a quad");
         let mut this = Fitter::new(opaque, cover);
+        this.shared_answers = answers;
         this.share_credit = share_credit;
         this.fit_greedy_pair(opaque, cover, budget)
     }
@@ -432,11 +481,18 @@ impl<'a> Fitter<'a> {
         // the fallbacks follow, where the rankings may differ: the second
         // ranking starts afresh
         let mut other = Fitter::new(opaque, cover);
+        other.shared_answers = self.shared_answers;
         other.share_credit = self.share_credit;
         other.cap_savings = false;
         other.fit_greedy(budget);
         self.finish_greedy(budget);
         (self, Some(other))
+    }
+
+    /// Keeps this fitter's containment answers in `answers`, shared with
+    /// the layer's other fitters.
+    pub(crate) fn share_answers(&mut self, answers: &'a SharedAnswers) {
+        self.shared_answers = Some(answers);
     }
 
     fn finish_greedy(&mut self, budget: usize) {

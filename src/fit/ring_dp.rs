@@ -130,14 +130,22 @@ impl CellRows {
     /// exact, O(rows crossed).
     pub fn holds_segment(&self, a: Point, b: Point) -> bool {
         if a[1] == b[1] {
-            // on lattice line y: covered by the cells of rows y - 1 and y
+            // on lattice line y: covered by the cells of rows y - 1 and y;
+            // the two rows' intervals are walked in sorted order (a merge
+            // of the two sorted lists, no allocation)
             let (x0, x1) = (a[0].min(b[0]), a[0].max(b[0]));
-            let mut iv: Vec<[i64; 2]> = self.row(a[1] - 1).to_vec();
-            iv.extend_from_slice(self.row(a[1]));
-            iv.sort_unstable();
+            let (ra, rb) = (self.row(a[1] - 1), self.row(a[1]));
+            let (mut ia, mut ib) = (0, 0);
             let mut reach = x0;
             let mut started = false;
-            for r in iv {
+            while ia < ra.len() || ib < rb.len() {
+                let r = if ib >= rb.len() || (ia < ra.len() && ra[ia] <= rb[ib]) {
+                    ia += 1;
+                    ra[ia - 1]
+                } else {
+                    ib += 1;
+                    rb[ib - 1]
+                };
                 if r[0] <= reach && r[1] >= reach {
                     started = true;
                     reach = reach.max(r[1]);
@@ -152,20 +160,55 @@ impl CellRows {
         }
         let (p, q) = if a[1] < b[1] { (a, b) } else { (b, a) };
         let (den, dx) = (q[1] - p[1], q[0] - p[0]);
+        // x on line y as `xq + xr / den` (0 <= xr < den), stepped from line
+        // to line without a division; over row y the span runs from the
+        // floor of the smaller to the ceiling of the larger of the x on
+        // lines y and y + 1
+        // the middle row first: a chord that leaves the region mostly does
+        // so away from its ends (the answer is the same: every row must hold)
+        if den > 8 && !self.holds_row(p, den, dx, p[1] + den / 2) {
+            return false;
+        }
+        let (dq, dr) = (dx.div_euclid(den), dx.rem_euclid(den));
+        let (mut xq, mut xr) = (p[0], 0);
         for y in p[1]..q[1] {
-            // x on lines y and y + 1, as num / den
-            let n0 = p[0] * den + (y - p[1]) * dx;
-            let n1 = n0 + dx;
-            let (lo, hi) = (n0.min(n1), n0.max(n1));
-            let flo = lo.div_euclid(den);
-            let chi = -((-hi).div_euclid(den));
+            let (mut nq, mut nr) = (xq + dq, xr + dr);
+            if nr >= den {
+                nr -= den;
+                nq += 1;
+            }
+            let flo = xq.min(nq);
+            let chi = (xq + (xr != 0) as i64).max(nq + (nr != 0) as i64);
             let row = self.row(y);
-            let i = row.partition_point(|r| r[1] < chi);
+            let i = if row.len() == 1 {
+                (row[0][1] < chi) as usize
+            } else {
+                row.partition_point(|r| r[1] < chi)
+            };
             if i >= row.len() || row[i][0] > flo {
                 return false;
             }
+            xq = nq;
+            xr = nr;
         }
         true
+    }
+}
+
+impl CellRows {
+    /// Whether row `y` holds the part of the chord from `p` (its upper
+    /// end) with `den` rows and `dx` columns over that row: the span from
+    /// the floor of its smaller to the ceiling of its larger `x` on lines
+    /// `y` and `y + 1` lies in one interval.
+    fn holds_row(&self, p: Point, den: i64, dx: i64, y: i64) -> bool {
+        let n0 = p[0] * den + (y - p[1]) * dx;
+        let n1 = n0 + dx;
+        let (lo, hi) = (n0.min(n1), n0.max(n1));
+        let flo = lo.div_euclid(den);
+        let chi = -((-hi).div_euclid(den));
+        let row = self.row(y);
+        let i = row.partition_point(|r| r[1] < chi);
+        i < row.len() && row[i][0] <= flo
     }
 }
 
@@ -344,8 +387,25 @@ fn curve_over(
     // best[m * n + j]: best sum over paths start -> .. -> u_j with m edges
     let mut best = vec![worst; kmax * n];
     let mut from = vec![u16::MAX; kmax * n];
+    // per start, the candidates in the order walked from it (`rv[j]` is
+    // `u_j`) and the valid chords into each `u_j` (`preds[at[j]..at[j +
+    // 1]]`: the i < j with u_i -> u_j valid, ascending), so the inner loop
+    // reads memory in order and only over valid chords
+    let mut rv: Vec<Point> = vec![[0, 0]; n];
+    let mut preds: Vec<u16> = Vec::with_capacity(n * n / 2);
+    let mut at = vec![0usize; n + 1];
     for &s in &starts {
         let u = |j: usize| (s + j) % n;
+        for (j, p) in rv.iter_mut().enumerate() {
+            *p = v[u(j)];
+        }
+        preds.clear();
+        for (j, start) in at.iter_mut().take(n).enumerate() {
+            let uj = u(j);
+            *start = preds.len();
+            preds.extend((0..j).filter(|&i| valid[u(i) * n + uj]).map(|i| i as u16));
+        }
+        at[n] = preds.len();
         best.fill(worst);
         for j in 1..n {
             if valid[s * n + u(j)] {
@@ -354,21 +414,17 @@ fn curve_over(
             }
         }
         for m in 2..kmax {
+            let (done, rest) = best.split_at_mut(m * n);
+            let prev_row = &done[(m - 1) * n..];
             for j in m..n {
-                let uj = u(j);
-                let (mut b, mut f) = (worst, u16::MAX);
-                for i in m - 1..j {
-                    let prev = best[(m - 1) * n + i];
-                    if prev == worst || !valid[u(i) * n + uj] {
-                        continue;
-                    }
-                    let c = prev + cross(v[u(i)], v[uj]);
-                    if better(c, b) {
-                        b = c;
-                        f = i as u16;
-                    }
-                }
-                best[m * n + j] = b;
+                let col = &preds[at[j]..at[j + 1]];
+                let col = &col[col.partition_point(|&i| (i as usize) < m - 1)..];
+                let (b, f) = if maximise {
+                    relax::<true>(prev_row, col, &rv, j, worst)
+                } else {
+                    relax::<false>(prev_row, col, &rv, j, worst)
+                };
+                rest[j] = b;
                 from[m * n + j] = f;
             }
         }
@@ -405,6 +461,35 @@ fn curve_over(
         }
     }
     curve
+}
+
+/// The best path sum into `rv[j]` over one more chord from `rv[i]`, `i`
+/// in `col` (ascending: the `i` whose chord `rv[i]` -> `rv[j]` is valid;
+/// `prev[i]`: the best sum into `rv[i]`, `worst` for none), with the `i`
+/// it came from (the first of equals); `MAX`: largest, else smallest.
+#[inline]
+fn relax<const MAX: bool>(
+    prev: &[i64],
+    col: &[u16],
+    rv: &[Point],
+    j: usize,
+    worst: i64,
+) -> (i64, u16) {
+    let (mut b, mut f) = (worst, u16::MAX);
+    let vj = rv[j];
+    for &i in col {
+        let i = i as usize;
+        let p = prev[i];
+        if p == worst {
+            continue;
+        }
+        let c = p + cross(rv[i], vj);
+        if (MAX && c > b) || (!MAX && c < b) {
+            b = c;
+            f = i as u16;
+        }
+    }
+    (b, f)
 }
 
 /// One opaque ring to fit: its area curve.
@@ -479,21 +564,91 @@ pub fn split_opaque(items: &[Item], budget: usize) -> Option<(i64, Vec<Ring>)> {
 /// vertices each (holes are left out: a covering island without its holes
 /// only covers more), or `None` when there are more than `max_islands`.
 pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option<Vec<Item>> {
+    let parts = cover_curve_parts(cover, kmax, max_islands)?;
+    Some(parts.iter().map(|p| p.up_to(kmax)).collect())
+}
+
+/// A covering island's two curves before they are joined: over candidates
+/// on its outline (only where its convex hull has at most the largest
+/// count asked of corners) and off it. Made once for the largest count a
+/// layer's budgets ask, then cut back to each budget ([`CoverParts::up_to`]).
+pub struct CoverParts {
+    hull_len: usize,
+    on: Vec<Option<(i64, Vec<Point>)>>,
+    off: Vec<Option<(i64, Vec<Point>)>>,
+    component: u32,
+}
+
+impl CoverParts {
+    /// The island's covering curve up to `kmax` (at most the count the
+    /// parts were made for): exactly what [`cover_curves`] gives for
+    /// `kmax`, as a count's best polygon does not depend on the largest
+    /// count asked.
+    pub fn up_to(&self, kmax: usize) -> Item {
+        // a polygon with its corners on the outline that holds the island
+        // keeps every corner of the island's convex hull: where the hull
+        // has more corners than `kmax`, no count is reachable with
+        // candidates on the outline, and only the candidates off the
+        // outline are tried
+        let mut curve = if self.hull_len <= kmax {
+            cut_back(&self.on, kmax)
+        } else {
+            Vec::new()
+        };
+        let off = cut_back(&self.off, kmax);
+        if curve.len() < off.len() {
+            curve.resize(off.len(), None);
+        }
+        for (k, c) in off.into_iter().enumerate() {
+            let Some((a2, _)) = &c else { continue };
+            if curve[k].as_ref().is_none_or(|(b2, _)| a2 < b2) {
+                curve[k] = c;
+            }
+        }
+        Item {
+            curve,
+            component: self.component,
+        }
+    }
+}
+
+/// A curve made for a larger count, cut back to what [`curve_over`] gives
+/// for `kmax` (its counts up to `kmax` do not depend on the largest count
+/// asked: each count's polygon is found apart).
+fn cut_back(curve: &[Option<(i64, Vec<Point>)>], kmax: usize) -> Vec<Option<(i64, Vec<Point>)>> {
+    curve[..curve.len().min(kmax + 1)].to_vec()
+}
+
+impl Item {
+    /// The curve cut back to `kmax` vertices: exactly the item
+    /// [`opaque_curves`] gives for `kmax` when this one was made for a
+    /// larger count.
+    pub fn up_to(&self, kmax: usize) -> Item {
+        Item {
+            curve: cut_back(&self.curve, kmax),
+            component: self.component,
+        }
+    }
+}
+
+/// [`cover_curves`]' two curves per island, made for `kmax` (cut back to
+/// any smaller count by [`CoverParts::up_to`]).
+pub fn cover_curve_parts(
+    cover: &Prepared,
+    kmax: usize,
+    max_islands: usize,
+) -> Option<Vec<CoverParts>> {
     let outer: Vec<&Ring> = cover.rings.iter().filter(|r| !r.hole).collect();
     if outer.is_empty() || outer.len() > max_islands {
         return None;
     }
-    // a polygon with its corners on the outline that holds the island
-    // keeps every corner of the island's convex hull: where the hull has
-    // more corners than `kmax`, no count is reachable with candidates on
-    // the outline, and only the candidates off the outline are tried
     let outside = CellRows::outside(&cover.runs);
     Some(
         outer
             .iter()
             .map(|r| {
                 let hull = super::island_edits::convex_hull(r.points.clone());
-                let mut curve = if hull.len() <= kmax {
+                let on = if hull.len() <= kmax {
                     ring_curve(&r.points, &outside, false, kmax)
                 } else {
                     Vec::new()
@@ -502,17 +657,10 @@ pub fn cover_curves(cover: &Prepared, kmax: usize, max_islands: usize) -> Option
                 let sum = hull.iter().fold([0, 0], |s, p| [s[0] + p[0], s[1] + p[1]]);
                 let around = Some((sum, hull.len() as i64));
                 let off = curve_over(&off, &outside, false, kmax, OFF_OUTLINE_STARTS, around);
-                if curve.len() < off.len() {
-                    curve.resize(off.len(), None);
-                }
-                for (k, c) in off.into_iter().enumerate() {
-                    let Some((a2, _)) = &c else { continue };
-                    if curve[k].as_ref().is_none_or(|(b2, _)| a2 < b2) {
-                        curve[k] = c;
-                    }
-                }
-                Item {
-                    curve,
+                CoverParts {
+                    hull_len: hull.len(),
+                    on,
+                    off,
                     component: r.component,
                 }
             })

@@ -12,7 +12,7 @@
 //! has at most `budget` distinct vertex positions; the choice among
 //! variants does not depend on thread scheduling.
 
-use super::{geom, open_holes_in_runs, Fit, Fitter, Prepared};
+use super::{geom, open_holes_in_runs, Fit, Fitter, Prepared, SharedAnswers};
 use crate::mask::RowRuns;
 use crate::outline::Ring;
 use rayon::prelude::*;
@@ -26,33 +26,100 @@ pub fn prepare_cover(mut cover: RowRuns) -> Prepared {
 
 /// Fits the safe region's runs (consumed) against the prepared must-cover
 /// region to `budget`.
-pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
-    safe.remove_pinches();
-    let plain = Prepared::from_runs(safe, true);
-    // An island with more holes than the budget can keep may do better as
-    // one ring with notches: then also try the safe region with its holes
-    // opened (on its runs). Each region is fitted with both rankings of
-    // large edits; the best result (opaque area minus covering area) wins.
-    // Every variant ends by spending what is left of the budget and
-    // exchanging vertices while that gains area (`Fitter::fit`).
-    let opened = plain.has_holes().then(|| {
-        let mut runs = open_holes_in_runs(plain.runs());
-        runs.remove_pinches();
-        Prepared::from_runs(runs, true)
-    });
-    // Where the outlines coincide (hard edges), the greedy edits also run
-    // without counting a position given up by one class as half saved;
-    // where the two regions' exact outlines share no position, that ranking
-    // is the same as the default one, so the variant is left out.
-    let shared = shares_a_position(&plain, cover);
+pub fn fit_outlines(safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
+    LayerFit::new(safe, cover, &[budget]).fit(budget)
+}
+
+/// A layer's fitting work that does not depend on the budget, done once
+/// and shared by the fits at each of its budgets: the safe region prepared
+/// (and with its holes opened), whether it shares a position with the
+/// must-cover outline, and, when several budgets up to 32
+/// (`CONSTRUCTED_MAX_BUDGET`) are asked, the per-ring dynamic program's
+/// curves for the largest of them (a count's polygon does not depend on
+/// the largest count asked, so each budget's fit is exactly the one made
+/// alone).
+pub struct LayerFit<'c> {
+    cover: &'c Prepared,
+    plain: Prepared,
+    opened: Option<Prepared>,
+    shared: bool,
+    curves: Option<Curves>,
+    /// The tall triangles' containment answers, shared by every fitter.
+    answers: SharedAnswers,
+}
+
+/// The dynamic program's curves made once for a layer's budgets.
+struct Curves {
+    opaque: Option<Vec<super::ring_dp::Item>>,
+    cover: Option<Vec<super::ring_dp::CoverParts>>,
+}
+
+impl<'c> LayerFit<'c> {
+    /// Prepares the safe region's runs (consumed) for fitting against the
+    /// prepared must-cover region at each of `budgets`.
+    pub fn new(mut safe: RowRuns, cover: &'c Prepared, budgets: &[usize]) -> LayerFit<'c> {
+        safe.remove_pinches();
+        let plain = Prepared::from_runs(safe, true);
+        // An island with more holes than the budget can keep may do better as
+        // one ring with notches: then also try the safe region with its holes
+        // opened (on its runs). Each region is fitted with both rankings of
+        // large edits; the best result (opaque area minus covering area) wins.
+        // Every variant ends by spending what is left of the budget and
+        // exchanging vertices while that gains area (`Fitter::fit`).
+        let opened = plain.has_holes().then(|| {
+            let mut runs = open_holes_in_runs(plain.runs());
+            runs.remove_pinches();
+            Prepared::from_runs(runs, true)
+        });
+        // Where the outlines coincide (hard edges), the greedy edits also run
+        // without counting a position given up by one class as half saved;
+        // where the two regions' exact outlines share no position, that ranking
+        // is the same as the default one, so the variant is left out.
+        let shared = shares_a_position(&plain, cover);
+        let mut fit = LayerFit {
+            cover,
+            plain,
+            opened,
+            shared,
+            curves: None,
+            answers: SharedAnswers::default(),
+        };
+        // the curves are made here only when more than one budget uses
+        // them (a single fit makes them beside its greedy edits)
+        let constructed: Vec<usize> = budgets
+            .iter()
+            .copied()
+            .filter(|&b| b <= CONSTRUCTED_MAX_BUDGET)
+            .collect();
+        if let (true, Some(&kmax)) = (constructed.len() > 1, constructed.iter().max()) {
+            let dp_safe = fit.opened.as_ref().unwrap_or(&fit.plain);
+            let (opaque, cover) = rayon::join(
+                || super::ring_dp::opaque_curves(dp_safe, kmax),
+                || super::ring_dp::cover_curve_parts(cover, kmax, COVER_DP_MAX_ISLANDS),
+            );
+            fit.curves = Some(Curves { opaque, cover });
+        }
+        fit
+    }
+
+    /// The fit at `budget`: the best of the variants, identical to
+    /// [`fit_outlines`] at that budget.
+    pub fn fit(&self, budget: usize) -> Fit {
+        fit_variants(self, budget)
+    }
+}
+
+/// [`LayerFit::fit`].
+fn fit_variants(layer: &LayerFit, budget: usize) -> Fit {
+    let (plain, opened, cover, shared) = (&layer.plain, &layer.opened, layer.cover, layer.shared);
     // Each fit with its own share credit runs both rankings of large
     // edits, sharing the edits they make alike (`Fitter::fit_greedy_both`);
     // the share-less one with the first ranking only. The order of the
     // variants (which wins a tie) is: plain capped, plain uncapped, plain
     // without share credit, opened capped, opened uncapped.
-    let mut runs: Vec<(&Prepared, bool)> = vec![(&plain, true)];
+    let mut runs: Vec<(&Prepared, bool)> = vec![(plain, true)];
     if shared {
-        runs.push((&plain, false));
+        runs.push((plain, false));
     }
     if let Some(o) = &opened {
         runs.push((o, true));
@@ -61,10 +128,13 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
         .par_iter()
         .map(|&(safe, credit)| {
             if credit {
-                let (capped, uncapped) = Fitter::fit_greedy_both(safe, cover, true, budget);
+                let answers = Some(&layer.answers);
+                let (capped, uncapped) =
+                    Fitter::fit_greedy_both_sharing(safe, cover, true, budget, answers);
                 std::iter::once(capped).chain(uncapped).collect::<Vec<_>>()
             } else {
                 let mut fitter = Fitter::new(safe, cover);
+                fitter.share_answers(&layer.answers);
                 fitter.set_share_credit(false);
                 fitter.fit_greedy(budget);
                 vec![fitter]
@@ -88,7 +158,7 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
             new
         })
         .collect();
-    let dp_safe = opened.as_ref().unwrap_or(&plain);
+    let dp_safe = opened.as_ref().unwrap_or(plain);
     let (mut results, parts) = rayon::join(
         || -> Vec<(i64, Fitter)> {
             distinct
@@ -99,7 +169,7 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
                 })
                 .collect()
         },
-        || constructed_parts(dp_safe, cover, budget),
+        || constructed_parts(dp_safe, cover, budget, layer),
     );
     // the constructed rings, paired with the covering rings of the greedy
     // edits (also the best greedy fit's) and, apart, with the covering
@@ -116,7 +186,15 @@ pub fn fit_outlines(mut safe: RowRuns, cover: &Prepared, budget: usize) -> Fit {
             .collect::<Vec<_>>()
             .into_par_iter()
             .filter_map(|(options, sharing)| {
-                constructed_fit(dp_safe, cover, &items, options, budget, sharing)
+                constructed_fit(
+                    dp_safe,
+                    cover,
+                    &items,
+                    options,
+                    budget,
+                    sharing,
+                    &layer.answers,
+                )
             })
             .collect::<Vec<_>>()
     });
@@ -210,6 +288,7 @@ fn constructed_parts(
     safe: &Prepared,
     cover: &Prepared,
     budget: usize,
+    layer: &LayerFit,
 ) -> Option<(
     Vec<super::ring_dp::Item>,
     Vec<CoverOption>,
@@ -218,7 +297,11 @@ fn constructed_parts(
     if budget > CONSTRUCTED_MAX_BUDGET {
         return None;
     }
-    let items = super::ring_dp::opaque_curves(safe, budget)?;
+    let made = layer.curves.as_ref();
+    let items = match made {
+        Some(c) => c.opaque.as_ref()?.iter().map(|i| i.up_to(budget)).collect(),
+        None => super::ring_dp::opaque_curves(safe, budget)?,
+    };
     // largest share first (each continues from the last)
     let mut shares: Vec<usize> = [2, 3, 4, 5, 6]
         .iter()
@@ -227,6 +310,7 @@ fn constructed_parts(
     shares.sort_unstable_by(|a, b| b.cmp(a));
     shares.dedup();
     let mut alone = Fitter::from_rings(safe, cover, Vec::new(), cover.rings.clone());
+    alone.share_answers(&layer.answers);
     let mut options = Vec::new();
     for share in shares {
         alone.fit_greedy(share);
@@ -235,7 +319,14 @@ fn constructed_parts(
     // the covering rings of smallest area for every count, by the same
     // dynamic program (candidates on the covering outline)
     let mut dp_options = Vec::new();
-    if let Some(cover_items) = super::ring_dp::cover_curves(cover, budget, COVER_DP_MAX_ISLANDS) {
+    let cover_items = match made {
+        Some(c) => c
+            .cover
+            .as_ref()
+            .map(|parts| parts.iter().map(|p| p.up_to(budget)).collect::<Vec<_>>()),
+        None => super::ring_dp::cover_curves(cover, budget, COVER_DP_MAX_ISLANDS),
+    };
+    if let Some(cover_items) = cover_items {
         let max_used = budget.saturating_sub(3);
         for (used, _, rings) in super::ring_dp::split_cover(&cover_items, max_used) {
             dp_options.push((rings, used));
@@ -285,6 +376,7 @@ fn constructed_fit<'a>(
     options: &[CoverOption],
     budget: usize,
     sharing: bool,
+    answers: &'a SharedAnswers,
 ) -> Option<(i64, Fitter<'a>, bool)> {
     let (objective, opaque, covering) = best_pairing(items, options, budget, sharing)?;
     if sharing {
@@ -294,6 +386,7 @@ fn constructed_fit<'a>(
         }
     }
     let mut fitter = Fitter::from_rings(safe, cover, opaque, covering);
+    fitter.share_answers(answers);
     if fitter.vertices() > budget {
         return None;
     }

@@ -102,6 +102,20 @@ impl Fitter<'_> {
         if ymax - ymin < TALL_TRIANGLE_ROWS {
             return self.triangle_allowed_walk(class, tri, delta);
         }
+        if let Some(shared) = self.shared_answers {
+            let region = if kind == 0 {
+                self.safe as *const RowRuns as usize
+            } else {
+                self.cover as *const RowRuns as usize
+            };
+            let key = (*tri, kind, region);
+            if let Some(answer) = shared.get(&key) {
+                return answer;
+            }
+            let answer = self.triangle_allowed_walk(class, tri, delta);
+            shared.insert(key, answer);
+            return answer;
+        }
         let key = (*tri, kind);
         if let Some(&answer) = self.triangle_answers.borrow().get(&key) {
             return answer;
