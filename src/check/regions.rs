@@ -113,8 +113,11 @@ fn axis(n: usize, level: u32, reach: i64, wrap: bool) -> Axis {
 struct Columns {
     bad: Vec<u8>,
     vis: Vec<u8>,
-    bad_sum: Vec<u32>,
-    vis_sum: Vec<u32>,
+    /// Prefix counts of both flags in one word: non-opaque columns in the
+    /// high 32 bits, visible ones in the low 32 (a count never exceeds the
+    /// width, below 2^31, so a difference of two prefixes never borrows
+    /// across the halves and one subtraction answers both).
+    sums: Vec<u64>,
 }
 
 impl Columns {
@@ -122,8 +125,7 @@ impl Columns {
         Columns {
             bad: vec![0; w],
             vis: vec![0; w],
-            bad_sum: vec![0; w + 1],
-            vis_sum: vec![0; w + 1],
+            sums: vec![0; w + 1],
         }
     }
 
@@ -141,23 +143,30 @@ impl Columns {
                 }
             }
         }
-        for x in 0..w {
-            self.bad_sum[x + 1] = self.bad_sum[x] + self.bad[x] as u32;
-            self.vis_sum[x + 1] = self.vis_sum[x] + self.vis[x] as u32;
+        let mut total = 0u64;
+        for ((sum, &b), &v) in self.sums[1..].iter_mut().zip(&self.bad).zip(&self.vis) {
+            total += ((b as u64) << 32) | v as u64;
+            *sum = total;
         }
-        let count = |sum: &[u32], sx: &Span| {
-            sx.ranges()
-                .iter()
-                .map(|&(p, q)| sum[q + 1] - sum[p])
-                .sum::<u32>()
+        let sums = &self.sums;
+        let count = |sx: &Span| {
+            let (p, q) = sx.r[0];
+            let first = sums[q + 1] - sums[p];
+            if sx.n == 1 {
+                first
+            } else {
+                let (p, q) = sx.r[1];
+                first + (sums[q + 1] - sums[p])
+            }
         };
         let (mut safe, mut cover) = (Vec::new(), Vec::new());
-        for (k, sx) in ax.runs.iter().enumerate() {
-            let (s, e) = (ax.starts[k] as u32, ax.starts[k + 1] as u32);
-            if count(&self.bad_sum, sx) == 0 {
+        for (sx, se) in ax.runs.iter().zip(ax.starts.windows(2)) {
+            let (s, e) = (se[0] as u32, se[1] as u32);
+            let both = count(sx);
+            if both >> 32 == 0 {
                 push_merged(&mut safe, s, e);
             }
-            if count(&self.vis_sum, sx) != 0 {
+            if both & 0xffff_ffff != 0 {
                 push_merged(&mut cover, s, e);
             }
         }
