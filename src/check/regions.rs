@@ -28,7 +28,7 @@
 //! Images are assumed to be narrower than 2^31 texels (column counts and
 //! cell indices are u32).
 
-use super::runs::{intersect_into, push_merged, union_into, CellRuns, Run};
+use super::runs::{intersect_into, union_into, CellRuns, Run};
 use crate::alpha::AlphaMap;
 use crate::settings::{AlphaThresholds, Filter, FilterMode, Wrap};
 use rayon::prelude::*;
@@ -159,16 +159,37 @@ impl Columns {
                 first + (sums[q + 1] - sums[p])
             }
         };
+        // the x-runs tile the row in order, so each region's runs open
+        // where a run is in and the one before is not, and close where a
+        // run is out after one that is (maximal by construction)
         let (mut safe, mut cover) = (Vec::new(), Vec::new());
-        for (sx, se) in ax.runs.iter().zip(ax.starts.windows(2)) {
-            let (s, e) = (se[0] as u32, se[1] as u32);
+        let (mut safe_from, mut cover_from) = (None, None);
+        for (sx, &s) in ax.runs.iter().zip(&ax.starts) {
+            let s = s as u32;
             let both = count(sx);
-            if both >> 32 == 0 {
-                push_merged(&mut safe, s, e);
+            match (both >> 32 == 0, safe_from) {
+                (true, None) => safe_from = Some(s),
+                (false, Some(from)) => {
+                    safe.push([from, s]);
+                    safe_from = None;
+                }
+                _ => {}
             }
-            if both & 0xffff_ffff != 0 {
-                push_merged(&mut cover, s, e);
+            match (both & 0xffff_ffff != 0, cover_from) {
+                (true, None) => cover_from = Some(s),
+                (false, Some(from)) => {
+                    cover.push([from, s]);
+                    cover_from = None;
+                }
+                _ => {}
             }
+        }
+        let end = ax.starts[ax.runs.len()] as u32;
+        if let Some(from) = safe_from {
+            safe.push([from, end]);
+        }
+        if let Some(from) = cover_from {
+            cover.push([from, end]);
         }
         [safe, cover]
     }
