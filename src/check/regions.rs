@@ -143,6 +143,18 @@ impl Columns {
                 }
             }
         }
+        // a y-run whose columns all agree (every texel opaque, or none
+        // visible and none opaque: a solid or an empty row) gives every
+        // x-run the same answers, so the row is whole or empty
+        let bad: u32 = self.bad.iter().map(|&b| b as u32).sum();
+        let vis: u32 = self.vis.iter().map(|&v| v as u32).sum();
+        let all = w as u32;
+        if (bad == 0 || bad == all) && (vis == 0 || vis == all) {
+            let whole = vec![[0, ax.starts[ax.runs.len()] as u32]];
+            let safe = if bad == 0 { whole.clone() } else { Vec::new() };
+            let cover = if vis == all { whole } else { Vec::new() };
+            return [safe, cover];
+        }
         let mut total = 0u64;
         for ((sum, &b), &v) in self.sums[1..].iter_mut().zip(&self.bad).zip(&self.vis) {
             total += ((b as u64) << 32) | v as u64;
