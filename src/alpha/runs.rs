@@ -39,20 +39,37 @@ fn push_merged(out: &mut Row, x0: u32, x1: u32) {
 /// The runs of `alpha` at least `min`.
 pub fn threshold(alpha: &[u8], min: u8, out: &mut Row) {
     out.clear();
-    let mut x = 0;
     let n = alpha.len();
+    let mut x = 0;
     while x < n {
-        while x < n && alpha[x] < min {
-            x += 1;
+        let s = x + first_where(&alpha[x..], |a| a >= min);
+        if s == n {
+            break;
         }
-        let s = x;
-        while x < n && alpha[x] >= min {
-            x += 1;
-        }
-        if s < x {
-            out.push([s as u32, x as u32]);
-        }
+        x = s + first_where(&alpha[s..], |a| a < min);
+        out.push([s as u32, x as u32]);
     }
+}
+
+/// The index of the first byte of `bytes` where `hit` holds, or its
+/// length. Whole blocks without a hit are passed over by a test of the
+/// block (a branch-free fold, which the compiler vectorizes); long runs of
+/// one class, the common case in a sprite's alpha, cost little per byte.
+#[inline]
+fn first_where(bytes: &[u8], hit: impl Fn(u8) -> bool) -> usize {
+    const BLOCK: usize = 32;
+    let mut i = 0;
+    while i + BLOCK <= bytes.len() {
+        let block = &bytes[i..i + BLOCK];
+        if block.iter().fold(false, |any, &a| any | hit(a)) {
+            return i + block.iter().position(|&a| hit(a)).unwrap_or(BLOCK);
+        }
+        i += BLOCK;
+    }
+    i + bytes[i..]
+        .iter()
+        .position(|&a| hit(a))
+        .unwrap_or(bytes.len() - i)
 }
 
 /// `a ∩ b` into `out`.

@@ -28,7 +28,7 @@
 //! Images are assumed to be narrower than 2^31 texels (column counts and
 //! cell indices are u32).
 
-use super::runs::{intersect_into, push_merged, union_into, CellRuns, Run};
+use super::runs::{intersect_into, union_into, CellRuns, Run};
 use crate::alpha::AlphaMap;
 use crate::settings::{AlphaThresholds, Filter, FilterMode, Wrap};
 use rayon::prelude::*;
@@ -113,8 +113,11 @@ fn axis(n: usize, level: u32, reach: i64, wrap: bool) -> Axis {
 struct Columns {
     bad: Vec<u8>,
     vis: Vec<u8>,
-    bad_sum: Vec<u32>,
-    vis_sum: Vec<u32>,
+    /// Prefix counts of both flags in one word: non-opaque columns in the
+    /// high 32 bits, visible ones in the low 32 (a count never exceeds the
+    /// width, below 2^31, so a difference of two prefixes never borrows
+    /// across the halves and one subtraction answers both).
+    sums: Vec<u64>,
 }
 
 impl Columns {
@@ -122,8 +125,7 @@ impl Columns {
         Columns {
             bad: vec![0; w],
             vis: vec![0; w],
-            bad_sum: vec![0; w + 1],
-            vis_sum: vec![0; w + 1],
+            sums: vec![0; w + 1],
         }
     }
 
@@ -141,25 +143,65 @@ impl Columns {
                 }
             }
         }
-        for x in 0..w {
-            self.bad_sum[x + 1] = self.bad_sum[x] + self.bad[x] as u32;
-            self.vis_sum[x + 1] = self.vis_sum[x] + self.vis[x] as u32;
+        // a y-run whose columns all agree (every texel opaque, or none
+        // visible and none opaque: a solid or an empty row) gives every
+        // x-run the same answers, so the row is whole or empty
+        let bad: u32 = self.bad.iter().map(|&b| b as u32).sum();
+        let vis: u32 = self.vis.iter().map(|&v| v as u32).sum();
+        let all = w as u32;
+        if (bad == 0 || bad == all) && (vis == 0 || vis == all) {
+            let whole = vec![[0, ax.starts[ax.runs.len()] as u32]];
+            let safe = if bad == 0 { whole.clone() } else { Vec::new() };
+            let cover = if vis == all { whole } else { Vec::new() };
+            return [safe, cover];
         }
-        let count = |sum: &[u32], sx: &Span| {
-            sx.ranges()
-                .iter()
-                .map(|&(p, q)| sum[q + 1] - sum[p])
-                .sum::<u32>()
+        let mut total = 0u64;
+        for ((sum, &b), &v) in self.sums[1..].iter_mut().zip(&self.bad).zip(&self.vis) {
+            total += ((b as u64) << 32) | v as u64;
+            *sum = total;
+        }
+        let sums = &self.sums;
+        let count = |sx: &Span| {
+            let (p, q) = sx.r[0];
+            let first = sums[q + 1] - sums[p];
+            if sx.n == 1 {
+                first
+            } else {
+                let (p, q) = sx.r[1];
+                first + (sums[q + 1] - sums[p])
+            }
         };
+        // the x-runs tile the row in order, so each region's runs open
+        // where a run is in and the one before is not, and close where a
+        // run is out after one that is (maximal by construction)
         let (mut safe, mut cover) = (Vec::new(), Vec::new());
-        for (k, sx) in ax.runs.iter().enumerate() {
-            let (s, e) = (ax.starts[k] as u32, ax.starts[k + 1] as u32);
-            if count(&self.bad_sum, sx) == 0 {
-                push_merged(&mut safe, s, e);
+        let (mut safe_from, mut cover_from) = (None, None);
+        for (sx, &s) in ax.runs.iter().zip(&ax.starts) {
+            let s = s as u32;
+            let both = count(sx);
+            match (both >> 32 == 0, safe_from) {
+                (true, None) => safe_from = Some(s),
+                (false, Some(from)) => {
+                    safe.push([from, s]);
+                    safe_from = None;
+                }
+                _ => {}
             }
-            if count(&self.vis_sum, sx) != 0 {
-                push_merged(&mut cover, s, e);
+            match (both & 0xffff_ffff != 0, cover_from) {
+                (true, None) => cover_from = Some(s),
+                (false, Some(from)) => {
+                    cover.push([from, s]);
+                    cover_from = None;
+                }
+                _ => {}
             }
+        }
+        let end = ax.starts[ax.runs.len()] as u32;
+        if let Some(from) = safe_from {
+            safe.push([from, end]);
+        }
+        if let Some(from) = cover_from {
+            cover.push([from, end]);
         }
         [safe, cover]
     }
