@@ -206,11 +206,8 @@ impl Fitter<'_> {
             let mut path = vec![a];
             path.extend_from_slice(&points);
             path.push(b);
-            let gain2: i64 = path
-                .windows(2)
-                .map(|p| p[0][0] * p[1][1] - p[1][0] * p[0][1])
-                .sum::<i64>()
-                - (a[0] * b[1] - b[0] * a[1]);
+            // the closed path a, tab, b: what the tab adds to the ring
+            let gain2 = geom::twice_area(&path);
             if gain2 <= 0 || best.as_ref().is_some_and(|t| t.gain2 >= gain2) {
                 continue;
             }
